@@ -1,0 +1,48 @@
+import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import type { InspectionStatus } from '@/lib/domain';
+
+/** The engine's report on one entry's G-code. Headline figures are columns for sorting standings. */
+export class Inspection extends Model<InferAttributes<Inspection>, InferCreationAttributes<Inspection>> {
+  declare id: CreationOptional<number>;
+  declare entryId: ForeignKey<number>;
+  declare storedFileId: ForeignKey<number> | null;
+  declare engineVersion: string;
+  declare status: CreationOptional<InspectionStatus>;
+  declare report: Record<string, unknown> | null;
+  declare ruleResults: CreationOptional<unknown[]>;
+  declare flags: CreationOptional<unknown[]>;
+  declare blockingFailures: CreationOptional<number>;
+  declare advisoryFlags: CreationOptional<number>;
+  declare peakFlowMm3s: number | null;
+  declare p95FlowMm3s: number | null;
+  declare estimatedTimeS: number | null;
+  declare layerHeightMm: number | null;
+  declare error: string | null;
+  declare finishedAt: Date | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+
+  static initModel(sequelize: Sequelize) {
+    Inspection.init(
+      {
+        id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+        engineVersion: { type: DataTypes.STRING(32), allowNull: false },
+        status: { type: DataTypes.STRING(16), allowNull: false, defaultValue: 'queued' },
+        report: { type: DataTypes.JSON, allowNull: true },
+        ruleResults: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
+        flags: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
+        blockingFailures: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+        advisoryFlags: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+        peakFlowMm3s: { type: DataTypes.DOUBLE, allowNull: true },
+        p95FlowMm3s: { type: DataTypes.DOUBLE, allowNull: true },
+        estimatedTimeS: { type: DataTypes.DOUBLE, allowNull: true },
+        layerHeightMm: { type: DataTypes.DOUBLE, allowNull: true },
+        error: { type: DataTypes.TEXT, allowNull: true },
+        finishedAt: { type: DataTypes.DATE, allowNull: true },
+        createdAt: DataTypes.DATE,
+        updatedAt: DataTypes.DATE,
+      },
+      { sequelize, tableName: 'inspections', underscored: true },
+    );
+  }
+}
