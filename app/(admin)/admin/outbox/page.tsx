@@ -1,0 +1,36 @@
+import { requirePageRole } from '@/lib/auth/guard';
+import { listOutbox } from '@/lib/admin';
+import { mailTransportKind } from '@/lib/mail';
+import { formatDateTime } from '@/lib/format';
+
+export const metadata = { title: 'Outbox' };
+
+export default async function OutboxPage({ searchParams }: { searchParams: Promise<{ to?: string }> }) {
+  await requirePageRole('/admin/outbox', 'admin');
+  const { to } = await searchParams;
+  const messages = await listOutbox({ to });
+  return (
+    <div className="space-y-6">
+      <h1>Outbox</h1>
+      <p className="text-sm text-ink-600">
+        {mailTransportKind() === 'fake'
+          ? 'No SMTP_URL is set, so mail stays here instead of leaving the machine.'
+          : 'Mail goes out through SMTP; this is the record of what was sent.'}
+      </p>
+      <form className="flex gap-2" action="/admin/outbox">
+        <label htmlFor="to" className="sr-only">Recipient</label>
+        <input id="to" name="to" defaultValue={to} placeholder="Filter by recipient" className="input max-w-xs" />
+        <button className="btn-quiet">Filter</button>
+      </form>
+      <ul className="space-y-3">
+        {messages.map((m) => (
+          <li key={m.id} className="card" data-testid="outbox-message">
+            <p className="text-sm text-ink-500">{formatDateTime(m.createdAt)} · to <span data-testid="mail-to">{m.to}</span> · {m.transport}</p>
+            <p className="font-semibold" data-testid="mail-subject">{m.subject}</p>
+            <pre className="mt-2 whitespace-pre-wrap break-all font-mono text-xs text-ink-700" data-testid="mail-text">{m.text}</pre>
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}

@@ -1,0 +1,65 @@
+import { notFound } from 'next/navigation';
+import { publicSeason } from '@/lib/seasonView';
+import { StatePill } from '@/components/StatePill';
+import { SafetyNotes } from '@/components/SafetyNotes';
+import { formatDateTime } from '@/lib/format';
+import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
+
+export default async function SeasonPage({ params }: { params: Promise<{ slug: string }> }) {
+  const { slug } = await params;
+  const view = await publicSeason(slug);
+  if (!view) notFound();
+  const { season, classes, rules, testPiece } = view;
+  const seasonRules = rules.filter((r) => r.classId == null);
+  return (
+    <div className="space-y-8">
+      <header>
+        <div className="flex flex-wrap items-center gap-3">
+          <h1>{season.name}</h1>
+          <StatePill state={season.state} />
+        </div>
+        <p className="text-ink-600">
+          Hosted by {season.hostName} · {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}
+        </p>
+        <p className="mt-3 max-w-3xl whitespace-pre-line text-ink-800">{season.description}</p>
+        <p className="mt-2 text-sm text-ink-600">Timing: {season.timingConvention}. Evidence: {season.photosRequired} photos{season.videoRequired ? ' and a video link' : ''}.</p>
+      </header>
+      {testPiece && (
+        <section className="card">
+          <h2>Test piece: {testPiece.name}</h2>
+          <p className="num text-sm text-ink-700">
+            {testPiece.sizeXMm.toFixed(2)} × {testPiece.sizeYMm.toFixed(2)} × {testPiece.sizeZMm.toFixed(2)} mm · {testPiece.triangleCount} triangles · {(testPiece.volumeMm3 / 1000).toFixed(2)} cm³
+          </p>
+        </section>
+      )}
+      <section>
+        <h2 className="mb-3">Classes</h2>
+        <ul className="grid gap-4 sm:grid-cols-3">
+          {classes.map((c) => (
+            <li key={c.id} className="card">
+              <h3 className="font-semibold">{c.name}</h3>
+              <p className="text-sm text-ink-600">{c.description}</p>
+              <p className="mt-2 text-xs text-ink-500">
+                {c.nozzleDiametersMm.length ? `Nozzle ${c.nozzleDiametersMm.join(' / ')} mm` : c.nozzleMinMm ? `Nozzle ${c.nozzleMinMm} mm and up` : 'Any nozzle'}
+                {c.motionSystems.length ? ` · ${c.motionSystems.map((m) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m).join(', ')}` : ''}
+                {c.buildVolumeMaxMm ? ` · build volume up to ${c.buildVolumeMaxMm} mm` : ''}
+              </p>
+            </li>
+          ))}
+        </ul>
+      </section>
+      <section>
+        <h2 className="mb-3">Rulebook</h2>
+        <ol className="card list-decimal space-y-1 pl-10">
+          {seasonRules.map((r) => (
+            <li key={r.id}>
+              {r.sentence || `${r.metric} ${r.comparator} ${r.value}`}{' '}
+              <span className={`pill ${r.severity === 'blocking' ? 'bg-alarm-100 text-alarm-700' : 'bg-ink-100 text-ink-700'}`}>{r.severity}</span>
+            </li>
+          ))}
+        </ol>
+      </section>
+      <SafetyNotes />
+    </div>
+  );
+}

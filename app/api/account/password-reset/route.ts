@@ -1,0 +1,8 @@
+import { route, readBody } from '@/lib/http';
+import { ResetRequestSchema } from '@/lib/auth/schemas';
+import { requestPasswordReset } from '@/lib/accounts';
+
+export const POST = route(async (req) => {
+  const { email } = await readBody(req, ResetRequestSchema);
+  return Response.json(await requestPasswordReset(email), { status: 202 });
+});

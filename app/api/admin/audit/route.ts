@@ -1,0 +1,8 @@
+import { route } from '@/lib/http';
+import { requireRole } from '@/lib/auth/guard';
+import { listAudit } from '@/lib/admin';
+
+export const GET = route(async () => {
+  await requireRole('admin');
+  return Response.json({ events: await listAudit() });
+});

@@ -1,0 +1,39 @@
+import type { Metadata } from 'next';
+import localFont from 'next/font/local';
+import Link from 'next/link';
+import { SiteHeader } from '@/components/SiteHeader';
+import './globals.css';
+
+// Fonts ship with the app (SIL OFL, licences beside the files); nothing is fetched at build time.
+const manrope = localFont({ src: './fonts/manrope-latin-wght.woff2', variable: '--font-manrope', weight: '200 800', display: 'swap' });
+const jetbrains = localFont({
+  src: [
+    { path: './fonts/jetbrains-mono-latin-400.woff2', weight: '400' },
+    { path: './fonts/jetbrains-mono-latin-600.woff2', weight: '600' },
+  ],
+  variable: '--font-jetbrains',
+  display: 'swap',
+});
+
+export const metadata: Metadata = {
+  title: { default: 'Hotlap', template: '%s · Hotlap' },
+  description: 'Speed-with-quality 3D-print contests with inspected G-code.',
+  icons: { icon: '/favicon.svg' },
+};
+
+export default function RootLayout({ children }: { children: React.ReactNode }) {
+  return (
+    <html lang="en" className={`${manrope.variable} ${jetbrains.variable}`}>
+      <body>
+        <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:rounded focus:bg-white focus:p-2">
+          Skip to content
+        </a>
+        <SiteHeader />
+        <main id="main" className="mx-auto max-w-6xl px-4 py-8">{children}</main>
+        <footer className="mx-auto max-w-6xl px-4 pb-10 text-sm text-ink-500">
+          Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a run.
+        </footer>
+      </body>
+    </html>
+  );
+}

@@ -1,0 +1,42 @@
+import Link from 'next/link';
+import { getServerSession } from 'next-auth';
+import { authOptions } from '@/lib/auth/options';
+import { navFor } from '@/lib/nav';
+import { LogoMark } from '@/components/Logo';
+import { SignOutButton } from '@/components/SignOutButton';
+
+export async function SiteHeader() {
+  const session = await getServerSession(authOptions);
+  const user = session?.user;
+  const items = navFor(user?.roles);
+  return (
+    <header className="border-b border-ink-800 bg-ink-900 text-ink-100">
+      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
+        <Link href="/" className="flex items-center gap-2 text-lg font-extrabold tracking-tight text-white no-underline hover:no-underline">
+          <LogoMark />
+          Hotlap
+        </Link>
+        <nav aria-label="Main" className="flex flex-1 flex-wrap items-center gap-1 text-sm">
+          {items.map((item) => (
+            <Link key={item.href} href={item.href} className="rounded-md px-2.5 py-1.5 text-ink-200 no-underline hover:bg-ink-800 hover:text-white hover:no-underline">
+              {item.label}
+            </Link>
+          ))}
+        </nav>
+        <div className="flex items-center gap-3 text-sm">
+          {user ? (
+            <>
+              <span className="text-ink-300" data-testid="signed-in-as">{user.name}</span>
+              <SignOutButton />
+            </>
+          ) : (
+            <>
+              <Link href="/signin" className="text-ink-100">Sign in</Link>
+              <Link href="/signup" className="btn-primary">Sign up</Link>
+            </>
+          )}
+        </div>
+      </div>
+    </header>
+  );
+}
