@@ -1,0 +1,11 @@
+/** @type {import('next').NextConfig} */
+const nextConfig = {
+  // The ORM and the native SQLite driver load dialect modules dynamically; bundling breaks that.
+  serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs'],
+  poweredByHeader: false,
+  reactStrictMode: true,
+  // forbidden() renders app/forbidden.tsx with HTTP 403 for signed-in users without the role.
+  experimental: { authInterrupts: true },
+};
+
+export default nextConfig;

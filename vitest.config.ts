@@ -1,0 +1,26 @@
+import { defineConfig } from 'vitest/config';
+import path from 'node:path';
+
+export default defineConfig({
+  resolve: { alias: { '@': path.resolve(__dirname) } },
+  test: {
+    projects: [
+      {
+        resolve: { alias: { '@': path.resolve(__dirname) } },
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node', testTimeout: 60_000 },
+      },
+      {
+        resolve: { alias: { '@': path.resolve(__dirname) } },
+        test: {
+          name: 'integration',
+          include: ['tests/integration/**/*.test.ts'],
+          environment: 'node',
+          globalSetup: ['tests/integration/global-setup.ts'],
+          testTimeout: 60_000,
+          hookTimeout: 180_000,
+          fileParallelism: false,
+        },
+      },
+    ],
+  },
+});
