@@ -1,0 +1,542 @@
+/**
+ * Settings measured from the toolpaths alone: wall count, top and bottom solid layers, sparse
+ * infill density, layer height, line width and nozzle. Comments (";TYPE:" labels, the settings
+ * block) are never used for the figures, so a stripped or edited comment block changes nothing.
+ *
+ * Method, per layer (extruding moves grouped by Z, one layer in memory at a time):
+ *  1. Each move's cross-section A = ΔE × filament area ÷ length; its width by the flow model of a
+ *     rectangle with semicircular ends, w = A ÷ h + h (1 − π/4) (Slic3r flow math, "Flow" in its
+ *     manual), h = layer thickness.
+ *  2. Moves that chain end-to-start and come back to their start are closed loops (walls, skirts).
+ *  3. The layer is rasterised (cell ≈ w / 2.5, at most 1024² cells), each move painted at its width;
+ *     empty space is split into outside, holes (wide, bounded by loops) and gaps between infill
+ *     lines; the part's filled region F is everything but outside and holes.
+ *  4. A chamfer distance transform gives each cell's depth inside F. Each loop's median depth puts
+ *     it in a band (outer wall ≈ w/2 deep, next ≈ w/2 + spacing, …; spacing = A ÷ h, the Slic3r
+ *     extrusion spacing). Walls on the layer = bands 1…K all occupied.
+ *  5. The infill region is F deeper than the innermost wall plus 1.5 w (clear of wall overlap and of
+ *     infill connections along the walls). Its volume fraction = extruded volume ÷ (area × h) is the
+ *     slicers' density: PrusaSlicer/Slic3r space sparse lines at spacing ÷ density with A = spacing × h,
+ *     CuraEngine at width ÷ density with A = width × h, so both give fraction = density.
+ *  6. Fixed 2 mm-ish XY blocks are followed through the layers (ColumnTracker) to count solid layers
+ *     over bottom surfaces and under top surfaces.
+ * Layer height is the mode of Z steps; walls the mode over mid-height layers.
+ */
+import type { Segment, SegmentSink } from './types';
+import { LayerGrid, MAX_GRID_CELLS, OUTSIDE, HOLE } from './toolpath/layerGrid';
+import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
+
+export interface MeasuredFigure {
+  value: number | null;
+  detail: string;
+}
+
+export interface MeasuredSettings {
+  walls: MeasuredFigure;
+  top_layers: MeasuredFigure;
+  bottom_layers: MeasuredFigure;
+  infill_percent: MeasuredFigure;
+  layer_height_mm: MeasuredFigure;
+  first_layer_height_mm: MeasuredFigure;
+  line_width_mm: MeasuredFigure;
+  nozzle_mm: MeasuredFigure;
+  /** Layers with extrusion (minor ones such as a prime line included). */
+  layers: number;
+  warnings: string[];
+}
+
+export interface ToolpathSettingsOptions {
+  filamentDiameterMm: number;
+  /** Nozzle hint (mm) for the first layer's grid before any width is known. */
+  nozzleMm?: number;
+}
+
+/** Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source). */
+const STANDARD_NOZZLES_MM = [0.15, 0.2, 0.25, 0.3, 0.35, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2];
+/**
+ * Slicer defaults put wall lines at 100 % (CuraEngine) to 112.5 % (PrusaSlicer) of the nozzle; 1.1
+ * sits between them (common practice, no source).
+ */
+const WIDTH_PER_NOZZLE = 1.1;
+
+/** A block counts as solid at ≥ 75 % volume fraction (solid infill is ~100 %, contest sparse ≤ 50 %). */
+const SOLID_FRACTION = 0.75;
+/** Most segments kept for one layer (5 floats each); beyond this the layer is analysed in part. */
+const MAX_LAYER_SEGMENTS = 400_000;
+/** Most layer records kept. */
+const MAX_LAYERS = 200_000;
+const Z_EPS_MM = 0.0015;
+
+interface LayerRecord {
+  z: number;
+  h: number;
+  volumeMm3: number;
+  segments: number;
+  walls: number | null;
+  /** Σ volume and Σ area×h over SPARSE blocks. */
+  sparseVolMm3: number;
+  sparseAreaMm2: number;
+  sparseBlocks: number;
+  solidBlocks: number;
+  loopWidthMm: number | null;
+  sequence: number;
+}
+
+export type ToolpathSettingsAnalyzer = SegmentSink & { result(): MeasuredSettings };
+
+export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): ToolpathSettingsAnalyzer {
+  const filamentAreaMm2 = Math.PI * (opts.filamentDiameterMm / 2) ** 2;
+  const warnings: string[] = [];
+
+  // Current layer buffer: x0 y0 x1 y1 A per segment, chain id per segment.
+  let seg = new Float32Array(5 * 4096);
+  let chainOf = new Int32Array(4096);
+  let chainStart = new Int32Array(1024);
+  let nSeg = 0;
+  let nChains = 0;
+  let layerZ = Number.NaN;
+  let layerVolumeMm3 = 0;
+  let layerTruncated = false;
+  let lastEndX = Number.NaN;
+  let lastEndY = Number.NaN;
+  let broken = true;
+
+  let prevLayerZ = Number.NaN;
+  let sequence = 0;
+  const layers: LayerRecord[] = [];
+  let layerCount = 0;
+  const grid = new LayerGrid();
+  const columns = new ColumnTracker();
+  let blockMm = 0;
+  let refWidthMm = 0;
+  /** Width histogram of loop segments, 0.005 mm bins, length-weighted. */
+  const loopWidthHist = new Float64Array(600);
+
+  function ensureCapacity(): void {
+    if (nSeg * 5 + 5 > seg.length) {
+      const s2 = new Float32Array(seg.length * 2);
+      s2.set(seg);
+      seg = s2;
+      const c2 = new Int32Array(chainOf.length * 2);
+      c2.set(chainOf);
+      chainOf = c2;
+    }
+  }
+
+  function newChain(): void {
+    if (nChains + 1 >= chainStart.length) {
+      const c2 = new Int32Array(chainStart.length * 2);
+      c2.set(chainStart);
+      chainStart = c2;
+    }
+    chainStart[nChains++] = nSeg;
+  }
+
+  function segment(s: Segment): void {
+    if (!s.extruding) {
+      if (s.x0 !== s.x1 || s.y0 !== s.y1 || s.eMm < 0) broken = true;
+      return;
+    }
+    const dx = s.x1 - s.x0;
+    const dy = s.y1 - s.y0;
+    const lenXY = Math.sqrt(dx * dx + dy * dy);
+    if (lenXY < 1e-6) return;
+    const z = s.z1;
+    if (!(Math.abs(z - layerZ) <= Z_EPS_MM)) {
+      // Moves that climb while extruding (spiral "vase" mode) stay on the current layer.
+      const spiral = Math.abs(s.z1 - s.z0) > 1e-4 && nSeg > 0 && Math.abs(z - layerZ) < 0.05;
+      if (!spiral) {
+        finishLayer();
+        layerZ = z;
+        broken = true;
+      }
+    }
+    if (nSeg >= MAX_LAYER_SEGMENTS) {
+      layerTruncated = true;
+      return;
+    }
+    ensureCapacity();
+    if (broken || Math.abs(s.x0 - lastEndX) > 1e-3 || Math.abs(s.y0 - lastEndY) > 1e-3) newChain();
+    broken = false;
+    const areaMm2 = (s.eMm * filamentAreaMm2) / lenXY;
+    const o = nSeg * 5;
+    seg[o] = s.x0;
+    seg[o + 1] = s.y0;
+    seg[o + 2] = s.x1;
+    seg[o + 3] = s.y1;
+    seg[o + 4] = areaMm2;
+    chainOf[nSeg] = nChains - 1;
+    nSeg++;
+    layerVolumeMm3 += areaMm2 * lenXY;
+    lastEndX = s.x1;
+    lastEndY = s.y1;
+  }
+
+  function finishLayer(): void {
+    if (nSeg === 0) return;
+    const z = layerZ;
+    if (!Number.isNaN(prevLayerZ) && z < prevLayerZ - Z_EPS_MM) {
+      // Z went back down: a new print sequence (prime line before the first layer, sequential objects).
+      columns.finish();
+      sequence++;
+      prevLayerZ = Number.NaN;
+    }
+    const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
+    try {
+      analyseLayer(z, h);
+    } catch (err) {
+      if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} could not be analysed: ${(err as Error).message}`);
+    }
+    prevLayerZ = z;
+    nSeg = 0;
+    nChains = 0;
+    layerVolumeMm3 = 0;
+    if (layerTruncated && warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} has more than ${MAX_LAYER_SEGMENTS} moves; only the first were analysed.`);
+    layerTruncated = false;
+  }
+
+  function widthOf(areaMm2: number, h: number): number {
+    // Slic3r flow math: rectangle with semicircular ends, A = (w − h) h + π h² / 4.
+    return areaMm2 / h + h * (1 - Math.PI / 4);
+  }
+
+  function analyseLayer(z: number, h: number): void {
+    layerCount++;
+    const rec: LayerRecord = {
+      z,
+      h,
+      volumeMm3: layerVolumeMm3,
+      segments: nSeg,
+      walls: null,
+      sparseVolMm3: 0,
+      sparseAreaMm2: 0,
+      sparseBlocks: 0,
+      solidBlocks: 0,
+      loopWidthMm: null,
+      sequence,
+    };
+    if (layers.length < MAX_LAYERS) layers.push(rec);
+    if (!(h > 0.01 && h < 2)) {
+      columns.beginLayer();
+      columns.endLayer();
+      return;
+    }
+
+    // Chain closure → loops. A loop returns within 2 widths of its start and encloses some area.
+    const isLoop = new Uint8Array(nChains);
+    let medianWidth = 0;
+    {
+      const hist = new Float64Array(400);
+      for (let i = 0; i < nSeg; i++) {
+        const o = i * 5;
+        const w = widthOf(seg[o + 4], h);
+        const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+        const b = Math.min(399, Math.max(0, Math.round(w / 0.005)));
+        hist[b] += len;
+      }
+      medianWidth = histMedian(hist, 0.005);
+    }
+    if (!(medianWidth > 0.05)) medianWidth = opts.nozzleMm ? opts.nozzleMm * WIDTH_PER_NOZZLE : 0.45;
+    if (refWidthMm === 0) {
+      refWidthMm = opts.nozzleMm ? Math.max(medianWidth, opts.nozzleMm) : medianWidth;
+      // Block size: wide enough to see sparse infill as sparse, fixed for the whole file.
+      blockMm = Math.min(6, Math.max(2, 4.5 * refWidthMm));
+    }
+    for (let c = 0; c < nChains; c++) {
+      const a = chainStart[c];
+      const b = c + 1 < nChains ? chainStart[c + 1] : nSeg;
+      if (b - a < 3) continue;
+      const sx = seg[a * 5];
+      const sy = seg[a * 5 + 1];
+      const ex = seg[(b - 1) * 5 + 2];
+      const ey = seg[(b - 1) * 5 + 3];
+      const tol = Math.max(2 * medianWidth, 0.5);
+      if (Math.hypot(ex - sx, ey - sy) > tol) continue;
+      let area2 = 0;
+      for (let i = a; i < b; i++) {
+        const o = i * 5;
+        area2 += seg[o] * seg[o + 3] - seg[o + 2] * seg[o + 1];
+      }
+      area2 += ex * sy - sx * ey;
+      if (Math.abs(area2) / 2 < 2 * medianWidth * medianWidth) continue;
+      isLoop[c] = 1;
+    }
+
+    // Grid: origin on the global block lattice so blocks line up from layer to layer.
+    let minX = Infinity;
+    let minY = Infinity;
+    let maxX = -Infinity;
+    let maxY = -Infinity;
+    for (let i = 0; i < nSeg; i++) {
+      const o = i * 5;
+      const x0 = seg[o];
+      const y0 = seg[o + 1];
+      const x1 = seg[o + 2];
+      const y1 = seg[o + 3];
+      if (x0 < minX) minX = x0;
+      if (x1 < minX) minX = x1;
+      if (y0 < minY) minY = y0;
+      if (y1 < minY) minY = y1;
+      if (x0 > maxX) maxX = x0;
+      if (x1 > maxX) maxX = x1;
+      if (y0 > maxY) maxY = y0;
+      if (y1 > maxY) maxY = y1;
+    }
+    const B = blockMm;
+    const ox = Math.floor(minX / B) * B - B;
+    const oy = Math.floor(minY / B) * B - B;
+    const spanX = Math.ceil((maxX - ox) / B) * B + B;
+    const spanY = Math.ceil((maxY - oy) / B) * B + B;
+    let k = Math.max(1, Math.round(B / (refWidthMm / 2.5)));
+    while (k > 1 && (spanX / B) * k * ((spanY / B) * k) > MAX_GRID_CELLS) k--;
+    const nbx = Math.round(spanX / B);
+    const nby = Math.round(spanY / B);
+    if (nbx * k * nby * k > MAX_GRID_CELLS) {
+      // Bed-sized spread at a 1-cell-per-block grid still too large: skip the raster for this layer.
+      if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} spans ${(maxX - minX).toFixed(0)} × ${(maxY - minY).toFixed(0)} mm, too large to rasterise; skipped.`);
+      columns.beginLayer();
+      columns.endLayer();
+      return;
+    }
+    const c = B / k;
+    grid.reset(ox, oy, c, nbx * k, nby * k);
+    const inflate = c * 0.25;
+    for (let i = 0; i < nSeg; i++) {
+      const o = i * 5;
+      const A = seg[o + 4];
+      const x0 = seg[o];
+      const y0 = seg[o + 1];
+      const x1 = seg[o + 2];
+      const y1 = seg[o + 3];
+      const len = Math.hypot(x1 - x0, y1 - y0);
+      const w = Math.min(5 * medianWidth, Math.max(0.05, widthOf(A, h)));
+      grid.paint(x0, y0, x1, y1, w / 2 + inflate, A * len, isLoop[chainOf[i]] === 1);
+    }
+    grid.classify(2 * medianWidth);
+    grid.distanceTransform();
+
+    // Loop depth bands → walls on this layer.
+    const depths: number[] = [];
+    const widthHistLayer = new Float64Array(600);
+    let spacingSum = 0;
+    let spacingLen = 0;
+    const samples: number[] = [];
+    for (let ch = 0; ch < nChains; ch++) {
+      if (!isLoop[ch]) continue;
+      const a = chainStart[ch];
+      const b = ch + 1 < nChains ? chainStart[ch + 1] : nSeg;
+      samples.length = 0;
+      for (let i = a; i < b; i++) {
+        const o = i * 5;
+        const x0 = seg[o];
+        const y0 = seg[o + 1];
+        const x1 = seg[o + 2];
+        const y1 = seg[o + 3];
+        const len = Math.hypot(x1 - x0, y1 - y0);
+        const A = seg[o + 4];
+        spacingSum += (A / h) * len;
+        spacingLen += len;
+        const bw = Math.min(599, Math.max(0, Math.round(widthOf(A, h) / 0.005)));
+        widthHistLayer[bw] += len;
+        const n = Math.max(1, Math.floor(len / c));
+        for (let j = 0; j < n; j++) {
+          const t = (j + 0.5) / n;
+          const d = grid.depthAtMm(x0 + (x1 - x0) * t, y0 + (y1 - y0) * t);
+          if (d >= 0) samples.push(d);
+        }
+      }
+      if (samples.length > 0) depths.push(median(samples));
+    }
+    const loopWidth = spacingLen > 0 ? histMedian(widthHistLayer, 0.005) : null;
+    rec.loopWidthMm = loopWidth;
+    let wallsDeepestMm = 0;
+    if (depths.length > 0 && spacingLen > 0) {
+      const spacing = spacingSum / spacingLen;
+      const dMin = Math.min(...depths);
+      if (dMin <= 1.5 * (loopWidth ?? medianWidth)) {
+        const bands = new Set<number>();
+        for (const d of depths) {
+          const band = Math.round((d - dMin) / spacing) + 1;
+          if (band <= 12) bands.add(band);
+        }
+        let K = 0;
+        while (bands.has(K + 1)) K++;
+        rec.walls = K;
+        wallsDeepestMm = dMin + (K - 1) * spacing;
+      }
+    }
+    if (rec.walls !== null && rec.walls > 0) {
+      for (let b = 0; b < 600; b++) loopWidthHist[b] += widthHistLayer[b];
+    }
+
+    // Infill region: deeper than the innermost wall's inner edge plus 1.5 widths.
+    const wallEdgeMm = rec.walls ? wallsDeepestMm + medianWidth / 2 : 2 * medianWidth;
+    const deepUnits = ((wallEdgeMm + 1.5 * medianWidth) / c) * 3;
+    const nx = grid.nx;
+    const lab = grid.label;
+    const dist = grid.dist;
+    const vol = grid.volume;
+    columns.beginLayer();
+    const bx0 = Math.round(ox / B);
+    const by0 = Math.round(oy / B);
+    const cellArea = c * c;
+    const blockCells = k * k;
+    for (let by = 0; by < nby; by++) {
+      for (let bx = 0; bx < nbx; bx++) {
+        let fCells = 0;
+        let dCells = 0;
+        let dVol = 0;
+        for (let yy = 0; yy < k; yy++) {
+          let kk = (by * k + yy) * nx + bx * k;
+          for (let xx = 0; xx < k; xx++, kk++) {
+            const l = lab[kk];
+            if (l === OUTSIDE || l === HOLE) continue;
+            fCells++;
+            if (dist[kk] > deepUnits) {
+              dCells++;
+              dVol += vol[kk];
+            }
+          }
+        }
+        let state: number;
+        if (fCells < 0.1 * blockCells) state = B_EMPTY;
+        else if (dCells >= blockCells) {
+          const frac = dVol / (dCells * cellArea * h);
+          if (frac >= SOLID_FRACTION) {
+            state = B_SOLID;
+            rec.solidBlocks++;
+          } else {
+            state = B_SPARSE;
+            rec.sparseBlocks++;
+            rec.sparseVolMm3 += dVol;
+            rec.sparseAreaMm2 += dCells * cellArea;
+          }
+        } else state = B_EDGE;
+        if (state !== B_EMPTY) columns.set(ColumnTracker.key(bx0 + bx, by0 + by), state);
+      }
+    }
+    columns.endLayer();
+  }
+
+  function end(): void {
+    finishLayer();
+    columns.finish();
+  }
+
+  function result(): MeasuredSettings {
+    return summarise(layers, layerCount, columns, loopWidthHist, warnings);
+  }
+
+  return { segment, end, result };
+}
+
+function median(v: number[]): number {
+  const s = v.slice().sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** Median of a weighted histogram with bins of `binMm`. */
+function histMedian(hist: Float64Array, binMm: number): number {
+  let total = 0;
+  for (let i = 0; i < hist.length; i++) total += hist[i];
+  if (total <= 0) return 0;
+  let acc = 0;
+  for (let i = 0; i < hist.length; i++) {
+    acc += hist[i];
+    if (acc >= total / 2) return i * binMm;
+  }
+  return (hist.length - 1) * binMm;
+}
+
+function modeOf(m: Map<number, number>): { value: number; count: number; total: number } | null {
+  let best: number | null = null;
+  let bestN = 0;
+  let total = 0;
+  for (const [v, n] of m) {
+    total += n;
+    if (n > bestN || (n === bestN && best !== null && v < best)) {
+      best = v;
+      bestN = n;
+    }
+  }
+  return best === null ? null : { value: best, count: bestN, total };
+}
+
+const pct = (a: number, b: number) => `${Math.round((a / b) * 100)} %`;
+
+function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, warnings: string[]): MeasuredSettings {
+  const unknown = (detail: string): MeasuredFigure => ({ value: null, detail });
+  const out: MeasuredSettings = {
+    walls: unknown('No layers with closed loops.'),
+    top_layers: unknown('No top surface with sparse infill below it.'),
+    bottom_layers: unknown('No bottom surface with sparse infill above it.'),
+    infill_percent: unknown('No layer has a sparse-infill region wide enough to measure.'),
+    layer_height_mm: unknown('Fewer than two layers.'),
+    first_layer_height_mm: unknown('No extrusion.'),
+    line_width_mm: unknown('No wall loops.'),
+    nozzle_mm: unknown('No wall loops.'),
+    layers: layerCount,
+    warnings,
+  };
+  if (layers.length === 0) return out;
+
+  // Substantive layers: at least 10 % of the median layer volume (drops prime lines and wipes).
+  const vols = layers.map((l) => l.volumeMm3);
+  const medVol = median(vols);
+  const main = layers.filter((l) => l.volumeMm3 >= 0.1 * medVol);
+
+  // Layer height: mode of Z steps between consecutive substantive layers of one sequence.
+  const steps = new Map<number, number>();
+  for (let i = 1; i < main.length; i++) {
+    if (main[i].sequence !== main[i - 1].sequence) continue;
+    const d = Math.round((main[i].z - main[i - 1].z) * 1000) / 1000;
+    if (d > 0) steps.set(d, (steps.get(d) ?? 0) + 1);
+  }
+  const stepMode = modeOf(steps);
+  if (stepMode) out.layer_height_mm = { value: stepMode.value, detail: `Mode of ${stepMode.total} Z steps; ${pct(stepMode.count, stepMode.total)} are ${stepMode.value.toFixed(3)} mm.` };
+  const first = main.reduce((a, b) => (b.z < a.z ? b : a), main[0]);
+  out.first_layer_height_mm = { value: Math.round(first.z * 1000) / 1000, detail: 'Z of the lowest printed layer (bed at Z 0).' };
+
+  // Walls: mode over mid-height layers (20–80 % of the layer count), preferring layers with sparse infill.
+  const lo = Math.floor(main.length * 0.2);
+  const hi = Math.max(lo + 1, Math.ceil(main.length * 0.8));
+  const mid = main.slice(lo, hi).filter((l) => l.walls !== null && l.walls > 0);
+  const midSparse = mid.filter((l) => l.sparseBlocks > 0);
+  const wallLayers = midSparse.length >= 3 ? midSparse : mid;
+  if (wallLayers.length > 0) {
+    const m = new Map<number, number>();
+    for (const l of wallLayers) m.set(l.walls!, (m.get(l.walls!) ?? 0) + 1);
+    const wm = modeOf(m)!;
+    out.walls = { value: wm.value, detail: `Mode over ${wm.total} mid-height layers (Z ${wallLayers[0].z.toFixed(2)}–${wallLayers[wallLayers.length - 1].z.toFixed(2)} mm); ${pct(wm.count, wm.total)} agree.` };
+  }
+
+  // Top and bottom: mode over columns.
+  const bm = modeOf(columns.bottomRuns);
+  if (bm) out.bottom_layers = { value: bm.value, detail: `Solid layers over bottom surfaces in ${bm.total} 2 mm columns; ${pct(bm.count, bm.total)} show ${bm.value}.` };
+  const tm = modeOf(columns.topRuns);
+  if (tm) out.top_layers = { value: tm.value, detail: `Solid layers under top surfaces in ${tm.total} columns; ${pct(tm.count, tm.total)} show ${tm.value}.` };
+
+  // Infill: median over layers with a measurable sparse region (≥ 4 blocks).
+  const sparseLayers = main.filter((l) => l.sparseBlocks >= 4 && l.sparseAreaMm2 > 0);
+  if (sparseLayers.length > 0) {
+    const fr = sparseLayers.map((l) => (l.sparseVolMm3 / (l.sparseAreaMm2 * l.h)) * 100);
+    const med = median(fr);
+    const min = Math.min(...fr);
+    const max = Math.max(...fr);
+    out.infill_percent = {
+      value: Math.round(med * 10) / 10,
+      detail: `Volume fraction of the infill region, median over ${sparseLayers.length} layers (range ${min.toFixed(1)}–${max.toFixed(1)} %).`,
+    };
+  }
+
+  const lw = histMedian(loopWidthHist, 0.005);
+  if (lw > 0) {
+    out.line_width_mm = { value: Math.round(lw * 1000) / 1000, detail: 'Median wall-loop width from the flow model (rectangle with round ends).' };
+    const guess = lw / WIDTH_PER_NOZZLE;
+    const nozzle = STANDARD_NOZZLES_MM.reduce((a, b) => (Math.abs(b - guess) < Math.abs(a - guess) ? b : a));
+    out.nozzle_mm = { value: nozzle, detail: `Estimate: wall width ${lw.toFixed(3)} mm ÷ ${WIDTH_PER_NOZZLE}, snapped to a standard nozzle size.` };
+  }
+  if (columns.overflowed) warnings.push('Too many XY columns to follow; top/bottom counts use part of the bed.');
+  return out;
+}
