@@ -7,15 +7,20 @@ import fs from 'node:fs';
 import { Sequelize } from 'sequelize';
 import sqlite3 from 'sqlite3';
 
+/** Where the app keeps its files: the SQLite database and data/uploads. HOTLAP_DATA_DIR moves it. */
+export function dataDir(): string {
+  return process.env.HOTLAP_DATA_DIR || path.join(process.cwd(), 'data');
+}
+
 export function databaseUrl(): string {
-  return process.env.DATABASE_URL || `sqlite:${path.join(process.cwd(), 'data', 'hotlap.sqlite')}`;
+  return process.env.DATABASE_URL || `sqlite:${path.join(dataDir(), 'hotlap.sqlite')}`;
 }
 
 function createSequelize(): Sequelize {
   const url = databaseUrl();
   if (!url.startsWith('sqlite:')) return new Sequelize(url, { logging: false });
   const storage = url.slice('sqlite:'.length) || ':memory:';
-  if (storage !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(storage)), { recursive: true });
+  if (storage !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(/*turbopackIgnore: true*/ storage)), { recursive: true });
   return new Sequelize({
     dialect: 'sqlite',
     // Passing the driver explicitly keeps the dialect loading out of the bundler's way.

@@ -65,9 +65,15 @@ export function route<C = unknown>(fn: Handler<C>): Handler<C> {
   };
 }
 
-export function clientIp(headers: Headers | Record<string, string | string[] | undefined>): string {
+/**
+ * The client's address, from X-Forwarded-For / X-Real-IP — trusted only when TRUST_PROXY=1 says a
+ * reverse proxy in front of the app sets them (anyone can send these headers otherwise).
+ * Null when unknown: route handlers in the App Router do not see the socket address.
+ */
+export function clientIp(headers: Headers | Record<string, string | string[] | undefined>): string | null {
+  if (process.env.TRUST_PROXY !== '1') return null;
   const get = (k: string) => (headers instanceof Headers ? headers.get(k) : (headers[k] as string | undefined));
   const fwd = get('x-forwarded-for');
-  if (fwd) return String(fwd).split(',')[0].trim();
-  return get('x-real-ip') ?? 'local';
+  if (fwd) return String(fwd).split(',')[0].trim().slice(0, 64);
+  return get('x-real-ip')?.slice(0, 64) ?? null;
 }

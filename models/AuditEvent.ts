@@ -22,7 +22,7 @@ export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreation
         ip: { type: DataTypes.STRING(64), allowNull: true },
         createdAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'audit_events', underscored: true, updatedAt: false },
+      { sequelize, modelName: 'AuditEvent', tableName: 'audit_events', underscored: true, updatedAt: false },
     );
   }
 }

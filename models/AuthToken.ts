@@ -23,7 +23,7 @@ export class AuthToken extends Model<InferAttributes<AuthToken>, InferCreationAt
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'auth_tokens', underscored: true },
+      { sequelize, modelName: 'AuthToken', tableName: 'auth_tokens', underscored: true },
     );
   }
 }

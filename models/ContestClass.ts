@@ -40,7 +40,7 @@ export class ContestClass extends Model<InferAttributes<ContestClass>, InferCrea
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'classes', underscored: true },
+      { sequelize, modelName: 'ContestClass', tableName: 'classes', underscored: true },
     );
   }
 }

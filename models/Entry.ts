@@ -44,7 +44,7 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'entries', underscored: true },
+      { sequelize, modelName: 'Entry', tableName: 'entries', underscored: true },
     );
   }
 }

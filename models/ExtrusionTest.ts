@@ -38,7 +38,7 @@ export class ExtrusionTest extends Model<InferAttributes<ExtrusionTest>, InferCr
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'extrusion_tests', underscored: true },
+      { sequelize, modelName: 'ExtrusionTest', tableName: 'extrusion_tests', underscored: true },
     );
   }
 }

@@ -42,7 +42,7 @@ export class Inspection extends Model<InferAttributes<Inspection>, InferCreation
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'inspections', underscored: true },
+      { sequelize, modelName: 'Inspection', tableName: 'inspections', underscored: true },
     );
   }
 }

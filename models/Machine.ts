@@ -43,7 +43,7 @@ export class Machine extends Model<InferAttributes<Machine>, InferCreationAttrib
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'machines', underscored: true },
+      { sequelize, modelName: 'Machine', tableName: 'machines', underscored: true },
     );
   }
 }

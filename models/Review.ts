@@ -24,7 +24,7 @@ export class Review extends Model<InferAttributes<Review>, InferCreationAttribut
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'reviews', underscored: true },
+      { sequelize, modelName: 'Review', tableName: 'reviews', underscored: true },
     );
   }
 }

@@ -31,7 +31,7 @@ export class Rule extends Model<InferAttributes<Rule>, InferCreationAttributes<R
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'rules', underscored: true },
+      { sequelize, modelName: 'Rule', tableName: 'rules', underscored: true },
     );
   }
 }

@@ -44,7 +44,7 @@ export class Season extends Model<InferAttributes<Season>, InferCreationAttribut
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'seasons', underscored: true },
+      { sequelize, modelName: 'Season', tableName: 'seasons', underscored: true },
     );
   }
 }

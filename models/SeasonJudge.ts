@@ -17,7 +17,7 @@ export class SeasonJudge extends Model<InferAttributes<SeasonJudge>, InferCreati
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'season_judges', underscored: true },
+      { sequelize, modelName: 'SeasonJudge', tableName: 'season_judges', underscored: true },
     );
   }
 }

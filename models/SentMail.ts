@@ -26,7 +26,7 @@ export class SentMail extends Model<InferAttributes<SentMail>, InferCreationAttr
         raw: { type: DataTypes.TEXT, allowNull: true },
         createdAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'sent_mails', underscored: true, updatedAt: false },
+      { sequelize, modelName: 'SentMail', tableName: 'sent_mails', underscored: true, updatedAt: false },
     );
   }
 }

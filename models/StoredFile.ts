@@ -30,7 +30,7 @@ export class StoredFile extends Model<InferAttributes<StoredFile>, InferCreation
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'stored_files', underscored: true },
+      { sequelize, modelName: 'StoredFile', tableName: 'stored_files', underscored: true },
     );
   }
 }

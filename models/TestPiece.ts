@@ -29,7 +29,7 @@ export class TestPiece extends Model<InferAttributes<TestPiece>, InferCreationAt
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'test_pieces', underscored: true },
+      { sequelize, modelName: 'TestPiece', tableName: 'test_pieces', underscored: true },
     );
   }
 }

@@ -15,7 +15,7 @@ export class Throttle extends Model<InferAttributes<Throttle>, InferCreationAttr
         windowStart: { type: DataTypes.DATE, allowNull: false },
         lockedUntil: { type: DataTypes.DATE, allowNull: true },
       },
-      { sequelize, tableName: 'throttles', underscored: true, timestamps: false },
+      { sequelize, modelName: 'Throttle', tableName: 'throttles', underscored: true, timestamps: false },
     );
   }
 }

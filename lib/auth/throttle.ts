@@ -1,8 +1,10 @@
 /**
- * Sign-in throttling per e-mail and per client address. Failures inside a 15-minute window first
- * slow the answer (from the 4th failure, +1 s each, at most 5 s), then from the 8th failure refuse
- * for 15 minutes with HTTP 429. Counting per address too stops one client from spraying many
- * e-mails; counting per e-mail stops a spread-out attack on one account.
+ * Sign-in throttling per e-mail and per client address. Failures for one e-mail inside a 15-minute
+ * window first slow the answer (from the 4th failure, +1 s each, at most 5 s), then from the 8th
+ * failure refuse for 15 minutes with HTTP 429. One address is refused after 30 failures over any
+ * e-mails (higher, since an address may be shared behind NAT). Counting per e-mail stops a
+ * spread-out attack on one account; counting per address stops one client spraying many e-mails.
+ * The address is known only behind a trusted proxy (TRUST_PROXY=1, see lib/http.ts clientIp).
  */
 import { Throttle } from '@/models';
 
@@ -12,10 +14,12 @@ export const THROTTLE = {
   slowStepMs: 1000,
   slowMaxMs: 5000,
   lockAfter: 8,
+  ipLockAfter: 30,
   lockMs: 15 * 60_000,
 };
 
-const keys = (email: string, ip: string) => [`email:${email.trim().toLowerCase()}`, `ip:${ip}`];
+const emailKey = (email: string) => `email:${email.trim().toLowerCase()}`;
+const keys = (email: string, ip: string | null) => (ip ? [emailKey(email), `ip:${ip}`] : [emailKey(email)]);
 
 export interface ThrottleVerdict {
   refused: boolean;
@@ -23,12 +27,12 @@ export interface ThrottleVerdict {
   delayMs: number;
 }
 
-export async function checkThrottle(email: string, ip: string, now = new Date()): Promise<ThrottleVerdict> {
+export async function checkThrottle(email: string, ip: string | null, now = new Date()): Promise<ThrottleVerdict> {
   const rows = await Throttle.findAll({ where: { key: keys(email, ip) } });
   let failures = 0;
   let lockedUntil = 0;
   for (const r of rows) {
-    if (now.getTime() - r.windowStart.getTime() < THROTTLE.windowMs) failures = Math.max(failures, r.failures);
+    if (r.key.startsWith('email:') && now.getTime() - r.windowStart.getTime() < THROTTLE.windowMs) failures = r.failures;
     if (r.lockedUntil) lockedUntil = Math.max(lockedUntil, r.lockedUntil.getTime());
   }
   if (lockedUntil > now.getTime()) {
@@ -38,20 +42,23 @@ export async function checkThrottle(email: string, ip: string, now = new Date())
   return { refused: false, retryAfterS: 0, delayMs: over > 0 ? Math.min(THROTTLE.slowMaxMs, over * THROTTLE.slowStepMs) : 0 };
 }
 
-export async function recordFailure(email: string, ip: string, now = new Date()) {
+export async function recordFailure(email: string, ip: string | null, now = new Date()) {
   for (const key of keys(email, ip)) {
     const row = await Throttle.findByPk(key);
     const fresh = !row || now.getTime() - row.windowStart.getTime() >= THROTTLE.windowMs;
     const failures = fresh ? 1 : row!.failures + 1;
-    const lockedUntil = failures >= THROTTLE.lockAfter ? new Date(now.getTime() + THROTTLE.lockMs) : (fresh ? null : row!.lockedUntil);
+    const limit = key.startsWith('ip:') ? THROTTLE.ipLockAfter : THROTTLE.lockAfter;
+    const lockedUntil = failures >= limit ? new Date(now.getTime() + THROTTLE.lockMs) : (fresh ? null : row!.lockedUntil);
     await Throttle.upsert({ key, failures, windowStart: fresh ? now : row!.windowStart, lockedUntil });
   }
 }
 
 /** A successful sign-in clears the e-mail's counter (the address keeps its count). */
 export async function recordSuccess(email: string) {
-  await Throttle.destroy({ where: { key: keys(email, '')[0] } });
+  await Throttle.destroy({ where: { key: emailKey(email) } });
 }
 
-export const TOO_MANY_MESSAGE = (retryAfterS: number) =>
-  `Too many failed sign-ins. Wait ${Math.ceil(retryAfterS / 60)} minute${retryAfterS > 60 ? 's' : ''} and try again, or reset your password.`;
+export const tooManyMessage = (retryAfterS: number) => {
+  const min = Math.max(1, Math.ceil(retryAfterS / 60));
+  return `Too many failed sign-ins. Wait ${min} minute${min > 1 ? 's' : ''} and try again, or reset your password.`;
+};

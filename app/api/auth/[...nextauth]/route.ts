@@ -4,7 +4,7 @@
  */
 import NextAuth from 'next-auth';
 import { authOptions } from '@/lib/auth/options';
-import { checkThrottle } from '@/lib/auth/throttle';
+import { checkThrottle, tooManyMessage } from '@/lib/auth/throttle';
 import { clientIp } from '@/lib/http';
 import { appUrl } from '@/lib/mail';
 
@@ -23,7 +23,7 @@ export async function POST(req: Request, ctx: Ctx) {
       return Response.json(
         {
           error: 'TooManyAttempts',
-          message: `Too many failed sign-ins. Wait ${Math.ceil(verdict.retryAfterS / 60)} minutes and try again, or reset your password.`,
+          message: tooManyMessage(verdict.retryAfterS),
           url: appUrl(`/signin?error=TooManyAttempts`),
         },
         { status: 429, headers: { 'Retry-After': String(verdict.retryAfterS) } },
