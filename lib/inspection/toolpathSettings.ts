@@ -49,6 +49,8 @@ export interface ToolpathSettingsOptions {
   filamentDiameterMm: number;
   /** Nozzle hint (mm) for the first layer's grid before any width is known. */
   nozzleMm?: number;
+  /** Diagnostics: called after each layer with its figures and the band (1 = outer wall) of each loop. */
+  onLayer?: (layer: Readonly<LayerRecord>, loopBands: readonly number[]) => void;
 }
 
 /** Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source). */
@@ -67,7 +69,7 @@ const MAX_LAYER_SEGMENTS = 400_000;
 const MAX_LAYERS = 200_000;
 const Z_EPS_MM = 0.0015;
 
-interface LayerRecord {
+export interface LayerRecord {
   z: number;
   h: number;
   volumeMm3: number;
@@ -237,6 +239,12 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       medianWidth = histMedian(hist, 0.005);
     }
     if (!(medianWidth > 0.05)) medianWidth = opts.nozzleMm ? opts.nozzleMm * WIDTH_PER_NOZZLE : 0.45;
+    if (refWidthMm === 0 && nSeg < 20) {
+      // A prime line or purge before the print: too little to size the grid from.
+      columns.beginLayer();
+      columns.endLayer();
+      return;
+    }
     if (refWidthMm === 0) {
       refWidthMm = opts.nozzleMm ? Math.max(medianWidth, opts.nozzleMm) : medianWidth;
       // Block size: wide enough to see sparse infill as sparse, fixed for the whole file.
@@ -310,67 +318,81 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       const y1 = seg[o + 3];
       const len = Math.hypot(x1 - x0, y1 - y0);
       const w = Math.min(5 * medianWidth, Math.max(0.05, widthOf(A, h)));
-      grid.paint(x0, y0, x1, y1, w / 2 + inflate, A * len, isLoop[chainOf[i]] === 1);
+      grid.paint(x0, y0, x1, y1, w / 2 + inflate, A * len, isLoop[chainOf[i]] === 1 ? chainOf[i] : -1);
     }
     grid.classify(2 * medianWidth);
     grid.distanceTransform();
 
-    // Loop depth bands → walls on this layer.
-    const depths: number[] = [];
+    // Walls: from points along each loop, walk out of the part both ways along the normal and count
+    // the other loops crossed; the shorter way out (the nearer outside or hole) gives the loop's band
+    // (outer wall = band 1). Walls on the layer = bands 1…K all present.
+    const loopBands: number[] = [];
     const widthHistLayer = new Float64Array(600);
     let spacingSum = 0;
     let spacingLen = 0;
-    const samples: number[] = [];
+    const bandsSeen = new Uint8Array(16);
+    const seen = new Int32Array(16);
+    const maxWalkMm = 16 * medianWidth;
+    const bandVotes: number[] = [];
     for (let ch = 0; ch < nChains; ch++) {
       if (!isLoop[ch]) continue;
       const a = chainStart[ch];
       const b = ch + 1 < nChains ? chainStart[ch + 1] : nSeg;
-      samples.length = 0;
+      let loopLen = 0;
       for (let i = a; i < b; i++) {
         const o = i * 5;
-        const x0 = seg[o];
-        const y0 = seg[o + 1];
-        const x1 = seg[o + 2];
-        const y1 = seg[o + 3];
-        const len = Math.hypot(x1 - x0, y1 - y0);
+        const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+        loopLen += len;
         const A = seg[o + 4];
         spacingSum += (A / h) * len;
         spacingLen += len;
         const bw = Math.min(599, Math.max(0, Math.round(widthOf(A, h) / 0.005)));
         widthHistLayer[bw] += len;
-        const n = Math.max(1, Math.floor(len / c));
-        for (let j = 0; j < n; j++) {
-          const t = (j + 0.5) / n;
-          const d = grid.depthAtMm(x0 + (x1 - x0) * t, y0 + (y1 - y0) * t);
-          if (d >= 0) samples.push(d);
-        }
       }
-      if (samples.length > 0) depths.push(median(samples));
+      // About 24 probes per loop, at segment midpoints spread along it.
+      const every = loopLen / 24;
+      let acc = every / 2;
+      bandVotes.length = 0;
+      for (let i = a; i < b; i++) {
+        const o = i * 5;
+        const x0 = seg[o];
+        const y0 = seg[o + 1];
+        const ex = seg[o + 2] - x0;
+        const ey = seg[o + 3] - y0;
+        const len = Math.hypot(ex, ey);
+        while (acc < len) {
+          const t = acc / len;
+          const px = x0 + ex * t;
+          const py = y0 + ey * t;
+          const nx = -ey / len;
+          const ny = ex / len;
+          const n1 = grid.loopsCrossed(px, py, nx, ny, ch, maxWalkMm, seen);
+          const n2 = grid.loopsCrossed(px, py, -nx, -ny, ch, maxWalkMm, seen);
+          const n = n1 < 0 ? n2 : n2 < 0 ? n1 : Math.min(n1, n2);
+          if (n >= 0) bandVotes.push(n + 1);
+          acc += every;
+        }
+        acc -= len;
+      }
+      if (bandVotes.length > 0) {
+        const band = Math.round(median(bandVotes));
+        loopBands.push(band);
+        if (band < bandsSeen.length) bandsSeen[band] = 1;
+      }
     }
     const loopWidth = spacingLen > 0 ? histMedian(widthHistLayer, 0.005) : null;
     rec.loopWidthMm = loopWidth;
-    let wallsDeepestMm = 0;
-    if (depths.length > 0 && spacingLen > 0) {
-      const spacing = spacingSum / spacingLen;
-      const dMin = Math.min(...depths);
-      if (dMin <= 1.5 * (loopWidth ?? medianWidth)) {
-        const bands = new Set<number>();
-        for (const d of depths) {
-          const band = Math.round((d - dMin) / spacing) + 1;
-          if (band <= 12) bands.add(band);
-        }
-        let K = 0;
-        while (bands.has(K + 1)) K++;
-        rec.walls = K;
-        wallsDeepestMm = dMin + (K - 1) * spacing;
-      }
+    if (loopBands.length > 0) {
+      let K = 0;
+      while (K + 1 < bandsSeen.length && bandsSeen[K + 1]) K++;
+      rec.walls = K;
     }
     if (rec.walls !== null && rec.walls > 0) {
       for (let b = 0; b < 600; b++) loopWidthHist[b] += widthHistLayer[b];
     }
 
     // Infill region: deeper than the innermost wall's inner edge plus 1.5 widths.
-    const wallEdgeMm = rec.walls ? wallsDeepestMm + medianWidth / 2 : 2 * medianWidth;
+    const wallEdgeMm = (rec.walls || 2) * (loopWidth ?? medianWidth);
     const deepUnits = ((wallEdgeMm + 1.5 * medianWidth) / c) * 3;
     const nx = grid.nx;
     const lab = grid.label;
@@ -416,6 +438,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       }
     }
     columns.endLayer();
+    opts.onLayer?.(rec, loopBands);
   }
 
   function end(): void {
@@ -517,16 +540,24 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
   const tm = modeOf(columns.topRuns);
   if (tm) out.top_layers = { value: tm.value, detail: `Solid layers under top surfaces in ${tm.total} columns; ${pct(tm.count, tm.total)} show ${tm.value}.` };
 
-  // Infill: median over layers with a measurable sparse region (≥ 4 blocks).
-  const sparseLayers = main.filter((l) => l.sparseBlocks >= 4 && l.sparseAreaMm2 > 0);
-  if (sparseLayers.length > 0) {
-    const fr = sparseLayers.map((l) => (l.sparseVolMm3 / (l.sparseAreaMm2 * l.h)) * 100);
+  // Infill: median over layers with a measurable sparse region (≥ 4 blocks). Prefer layers that are
+  // sparse throughout and carry no loops beyond the walls: CuraEngine's skin-edge support adds
+  // infill outlines (extra loops) to the layers under a top skin, and layers at a top/bottom edge mix
+  // solid and sparse blocks.
+  const wallsMode = out.walls.value;
+  const candidates = main.filter((l) => l.sparseBlocks >= 4 && l.sparseAreaMm2 > 0);
+  const tiers = [
+    { layers: candidates.filter((l) => l.solidBlocks === 0 && (wallsMode === null || l.walls === null || l.walls <= wallsMode)), note: 'sparse throughout, no loops beyond the walls' },
+    { layers: candidates.filter((l) => l.solidBlocks === 0), note: 'sparse throughout' },
+    { layers: candidates, note: 'with some sparse region' },
+  ];
+  const tier = tiers.find((t) => t.layers.length >= 2) ?? tiers.find((t) => t.layers.length >= 1);
+  if (tier) {
+    const fr = tier.layers.map((l) => (l.sparseVolMm3 / (l.sparseAreaMm2 * l.h)) * 100);
     const med = median(fr);
-    const min = Math.min(...fr);
-    const max = Math.max(...fr);
     out.infill_percent = {
       value: Math.round(med * 10) / 10,
-      detail: `Volume fraction of the infill region, median over ${sparseLayers.length} layers (range ${min.toFixed(1)}–${max.toFixed(1)} %).`,
+      detail: `Volume fraction of the infill region, median over ${tier.layers.length} layers ${tier.note} (range ${Math.min(...fr).toFixed(1)}–${Math.max(...fr).toFixed(1)} %).`,
     };
   }
 

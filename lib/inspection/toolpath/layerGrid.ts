@@ -36,6 +36,8 @@ export class LayerGrid {
   volume = new Float32Array(0);
   /** Chamfer distance to the nearest cell outside F, in units of cellMm / 3. */
   dist = new Uint16Array(0);
+  /** Loop number + 1 of the closed loop painted last over each cell (0: none). */
+  loopId = new Int32Array(0);
   private queue = new Int32Array(0);
 
   reset(originX: number, originY: number, cellMm: number, nx: number, ny: number): void {
@@ -49,15 +51,18 @@ export class LayerGrid {
       this.label = new Uint8Array(n);
       this.volume = new Float32Array(n);
       this.dist = new Uint16Array(n);
+      this.loopId = new Int32Array(n);
       this.queue = new Int32Array(n);
     } else {
       this.label.fill(0, 0, n);
       this.volume.fill(0, 0, n);
+      this.loopId.fill(0, 0, n);
     }
   }
 
-  /** Paint a capsule of radius rMm around the segment and drop its volume along it. */
-  paint(x0: number, y0: number, x1: number, y1: number, rMm: number, volumeMm3: number, loop: boolean): void {
+  /** Paint a capsule of radius rMm around the segment and drop its volume along it; loop ≥ 0 marks a closed loop's number. */
+  paint(x0: number, y0: number, x1: number, y1: number, rMm: number, volumeMm3: number, loopNo: number): void {
+    const loop = loopNo >= 0;
     const c = this.cellMm;
     const dx = x1 - x0;
     const dy = y1 - y0;
@@ -103,6 +108,7 @@ export class LayerGrid {
             const k = row + gx;
             // A loop label wins over other paint: holes are recognised by their loop border.
             if (this.label[k] !== PAINT_LOOP) this.label[k] = lab;
+            if (loop) this.loopId[k] = loopNo + 1;
           }
         }
       }
@@ -237,6 +243,35 @@ export class LayerGrid {
     const gy = Math.floor((y - this.originY) / this.cellMm);
     if (gx < 0 || gy < 0 || gx >= this.nx || gy >= this.ny) return -1;
     return (this.dist[gy * this.nx + gx] / D_SIDE) * this.cellMm;
+  }
+
+  /**
+   * Walk from (x, y) along (dx, dy) (unit vector) until leaving the filled region F and count the
+   * distinct loops crossed on the way, other than `selfLoop`. Returns −1 when F is not left within
+   * maxMm (the walk went into the part instead of out of it).
+   */
+  loopsCrossed(x: number, y: number, dx: number, dy: number, selfLoop: number, maxMm: number, seen: Int32Array): number {
+    const c = this.cellMm;
+    const step = c * 0.5;
+    const nSteps = Math.ceil(maxMm / step);
+    let count = 0;
+    let last = selfLoop + 1;
+    for (let i = 1; i <= nSteps; i++) {
+      const gx = Math.floor((x + dx * step * i - this.originX) / c);
+      const gy = Math.floor((y + dy * step * i - this.originY) / c);
+      if (gx < 0 || gy < 0 || gx >= this.nx || gy >= this.ny) return count;
+      const k = gy * this.nx + gx;
+      const l = this.label[k];
+      if (l === OUTSIDE || l === HOLE) return count;
+      const id = this.loopId[k];
+      if (id !== 0 && id !== last && id !== selfLoop + 1) {
+        let known = false;
+        for (let j = 0; j < count; j++) if (seen[j] === id) known = true;
+        if (!known && count < seen.length) seen[count++] = id;
+        last = id;
+      }
+    }
+    return -1;
   }
 
   inF(k: number): boolean {
