@@ -1,0 +1,361 @@
+/**
+ * Print-time estimate with trapezoidal acceleration and cornering, in the style of the look-ahead
+ * planners in printer firmware (grbl/Marlin planner.cpp, Klipper toolhead.py):
+ *
+ * - every move gets a nominal speed (commanded feed capped by per-axis max feed M203 and Klipper
+ *   VELOCITY) and an acceleration (M204 print / travel / retract, capped by per-axis M201);
+ * - the speed allowed through a corner comes from junction deviation (Marlin M205 J, Klipper
+ *   square_corner_velocity) or, when the file sets classic jerk (M205 X/Y), from the per-axis speed
+ *   jump;
+ * - a backward pass over a bounded ring buffer lowers entry speeds so the machine can always stop by
+ *   the end of the buffer, and the forward pass at dequeue time caps them by what acceleration can
+ *   reach; each dequeued move is timed as a trapezoid (or triangle) velocity profile.
+ *
+ * The backward pass stops as soon as an entry speed no longer changes (a new move can only raise
+ * them), so the work per move is small and memory is a fixed set of typed arrays.
+ */
+import type { Segment } from './types';
+import type { MachineState } from './parser';
+
+/** Limits used when neither the file nor the options set them. */
+export interface MachineLimits {
+  accelPrintMms2: number;
+  accelTravelMms2: number;
+  accelRetractMms2: number;
+  /** Junction deviation (mm) used when the file sets no classic jerk. */
+  junctionDeviationMm: number;
+  /** Classic jerk (mm/s); null = use junction deviation. */
+  jerkXMms: number | null;
+  jerkYMms: number | null;
+  jerkZMms: number;
+  jerkEMms: number;
+  maxFeedXMms: number;
+  maxFeedYMms: number;
+  maxFeedZMms: number;
+  maxFeedEMms: number;
+  maxAccelXMms2: number;
+  maxAccelYMms2: number;
+  maxAccelZMms2: number;
+  maxAccelEMms2: number;
+}
+
+/**
+ * Defaults when the file sets nothing: accelerations and junction deviation from memory of Marlin 2's
+ * example Configuration.h (DEFAULT_ACCELERATION / DEFAULT_TRAVEL_ACCELERATION /
+ * DEFAULT_RETRACT_ACCELERATION 3000 mm/s², JUNCTION_DEVIATION_MM 0.013, E jerk 5 mm/s). Per-axis
+ * feed and acceleration caps are left open: without M201/M203 in the file we do not know the
+ * machine, and an estimate used to spot impossible claimed times must not invent a slower machine
+ * than the one the slicer planned for. Callers can pass real machine limits as options.
+ */
+export const DEFAULT_LIMITS: MachineLimits = {
+  accelPrintMms2: 3000,
+  accelTravelMms2: 3000,
+  accelRetractMms2: 3000,
+  junctionDeviationMm: 0.013,
+  jerkXMms: null,
+  jerkYMms: null,
+  jerkZMms: 0.4,
+  jerkEMms: 5,
+  maxFeedXMms: Infinity,
+  maxFeedYMms: Infinity,
+  maxFeedZMms: Infinity,
+  maxFeedEMms: Infinity,
+  maxAccelXMms2: Infinity,
+  maxAccelYMms2: Infinity,
+  maxAccelZMms2: Infinity,
+  maxAccelEMms2: Infinity,
+};
+
+/** Receives every move once its duration is final. */
+export interface PlannedMoveSink {
+  planned(timeS: number, flowMm3s: number, layerIndex: number): void;
+}
+
+/** Moves in the look-ahead window; 128 is in the range firmware uses (Marlin BLOCK_BUFFER_SIZE 16–64, Klipper ~2 s). */
+const RING = 128;
+const MASK = RING - 1;
+
+/**
+ * Time of one move with entry/exit speeds² v0², v1², cruise speed² vn², acceleration a and length L:
+ * the trapezoid t = (vn−v0)/a + (vn−v1)/a + (L − d_acc − d_dec)/vn with d = (vn² − v²)/(2a),
+ * or the triangle with peak vp² = (2aL + v0² + v1²)/2 when the cruise speed is not reached
+ * (constant-acceleration kinematics, v² = v0² + 2ad).
+ */
+export function trapezoidTimeS(v0sq: number, v1sq: number, vnsq: number, a: number, L: number): number {
+  if (L <= 0) return 0;
+  const vn = Math.sqrt(vnsq);
+  if (!(a > 0) || !Number.isFinite(a)) return L / vn;
+  const v0 = Math.sqrt(v0sq);
+  const v1 = Math.sqrt(v1sq);
+  const da = (vnsq - v0sq) / (2 * a);
+  const dd = (vnsq - v1sq) / (2 * a);
+  if (da + dd <= L) return (vn - v0) / a + (vn - v1) / a + (L - da - dd) / vn;
+  let vpsq = (2 * a * L + v0sq + v1sq) / 2;
+  const floor = v0sq > v1sq ? v0sq : v1sq;
+  if (vpsq < floor) vpsq = floor;
+  const vp = Math.sqrt(vpsq);
+  return (vp - v0) / a + (vp - v1) / a;
+}
+
+export class MotionPlanner {
+  private readonly out: PlannedMoveSink;
+  private readonly machine: MachineState | null;
+  private readonly base: MachineLimits;
+
+  // Ring buffer (structure of arrays).
+  private readonly lenMm = new Float64Array(RING);
+  private readonly accel = new Float64Array(RING);
+  private readonly nomV2 = new Float64Array(RING);
+  private readonly maxEntryV2 = new Float64Array(RING);
+  private readonly backV2 = new Float64Array(RING);
+  private readonly entryV2 = new Float64Array(RING);
+  private readonly flow = new Float64Array(RING);
+  private readonly layer = new Int32Array(RING);
+  private head = 0;
+  private count = 0;
+
+  // Previous move direction (unit XYZ), E per mm, nominal speed; prevKind 0 = none/stop, 1 = XYZ move, 2 = E-only.
+  private pux = 0;
+  private puy = 0;
+  private puz = 0;
+  private pue = 0;
+  private pv = 0;
+  private prevKind = 0;
+
+  // Effective limits, refreshed when MachineState.version changes.
+  private version = -1;
+  private aPrint = 0;
+  private aTravel = 0;
+  private aRetract = 0;
+  private jd = 0;
+  private scvJd = false;
+  private jerkX: number | null = null;
+  private jerkY: number | null = null;
+  private jerkZ = 0;
+  private jerkE = 0;
+  private vx = 0;
+  private vy = 0;
+  private vz = 0;
+  private ve = 0;
+  private vMax = Infinity;
+  private ax = 0;
+  private ay = 0;
+  private az = 0;
+  private ae = 0;
+
+  /** Total planned time, s. */
+  totalS = 0;
+  dwellS = 0;
+
+  constructor(out: PlannedMoveSink, machine: MachineState | null, base: MachineLimits = DEFAULT_LIMITS) {
+    this.out = out;
+    this.machine = machine;
+    this.base = base;
+    this.refresh();
+  }
+
+  private refresh(): void {
+    const m = this.machine;
+    const b = this.base;
+    this.version = m ? m.version : 0;
+    this.aPrint = m?.accelPrintMms2 ?? b.accelPrintMms2;
+    this.aTravel = m?.accelTravelMms2 ?? b.accelTravelMms2;
+    this.aRetract = m?.accelRetractMms2 ?? b.accelRetractMms2;
+    this.jerkX = m?.jerkXMms ?? b.jerkXMms;
+    this.jerkY = m?.jerkYMms ?? b.jerkYMms;
+    this.jerkZ = m?.jerkZMms ?? b.jerkZMms;
+    this.jerkE = m?.jerkEMms ?? b.jerkEMms;
+    // Junction deviation from M205 J, else Klipper square_corner_velocity (converted per move), else base.
+    this.scvJd = false;
+    if (m?.junctionDeviationMm != null) {
+      this.jd = m.junctionDeviationMm;
+      this.jerkX = null;
+      this.jerkY = null;
+    } else if (m?.squareCornerVelocityMms != null) {
+      this.scvJd = true;
+      this.jd = m.squareCornerVelocityMms;
+      this.jerkX = null;
+      this.jerkY = null;
+    } else {
+      this.jd = b.junctionDeviationMm;
+    }
+    this.vx = m?.maxFeedXMms ?? b.maxFeedXMms;
+    this.vy = m?.maxFeedYMms ?? b.maxFeedYMms;
+    this.vz = m?.maxFeedZMms ?? b.maxFeedZMms;
+    this.ve = m?.maxFeedEMms ?? b.maxFeedEMms;
+    this.vMax = m?.maxVelocityMms ?? Infinity;
+    this.ax = m?.maxAccelXMms2 ?? b.maxAccelXMms2;
+    this.ay = m?.maxAccelYMms2 ?? b.maxAccelYMms2;
+    this.az = m?.maxAccelZMms2 ?? b.maxAccelZMms2;
+    this.ae = m?.maxAccelEMms2 ?? b.maxAccelEMms2;
+  }
+
+  /** Adds one move. flowMm3s and layerIndex are passed through to the sink with its final duration. */
+  push(s: Segment, flowMm3s: number, layerIndex: number): void {
+    if (this.machine && this.machine.version !== this.version) this.refresh();
+    const L = s.lengthMm;
+    let feed = s.feedMms;
+    if (!(feed > 0)) return;
+    if (L > 0) {
+      const ux = (s.x1 - s.x0) / L;
+      const uy = (s.y1 - s.y0) / L;
+      const uz = (s.z1 - s.z0) / L;
+      const ue = s.eMm / L;
+      // Per-axis feed caps: |u_axis| · v ≤ vmax_axis (Marlin planner "speed_factor").
+      const aux = ux < 0 ? -ux : ux;
+      const auy = uy < 0 ? -uy : uy;
+      const auz = uz < 0 ? -uz : uz;
+      const aue = ue < 0 ? -ue : ue;
+      if (aux * feed > this.vx) feed = this.vx / aux;
+      if (auy * feed > this.vy) feed = this.vy / auy;
+      if (auz * feed > this.vz) feed = this.vz / auz;
+      if (aue * feed > this.ve) feed = this.ve / aue;
+      if (feed > this.vMax) feed = this.vMax;
+      let a = s.eMm > 0 ? this.aPrint : this.aTravel;
+      if (aux * a > this.ax) a = this.ax / aux;
+      if (auy * a > this.ay) a = this.ay / auy;
+      if (auz * a > this.az) a = this.az / auz;
+      if (aue * a > this.ae) a = this.ae / aue;
+      const vn2 = feed * feed;
+      let vj2: number;
+      if (this.prevKind === 1) vj2 = this.junctionV2(ux, uy, uz, ue, feed, a);
+      else vj2 = this.safeV2(aux, auy, auz, aue, feed);
+      this.enqueue(L, a, vn2, vj2, flowMm3s, layerIndex);
+      this.pux = ux;
+      this.puy = uy;
+      this.puz = uz;
+      this.pue = ue;
+      this.pv = feed;
+      this.prevKind = 1;
+    } else {
+      // Extruder-only move (retract / unretract): length is filament length at the E feed.
+      const eLen = s.eMm < 0 ? -s.eMm : s.eMm;
+      if (eLen === 0) return;
+      if (feed > this.ve) feed = this.ve;
+      let a = this.aRetract;
+      if (a > this.ae) a = this.ae;
+      const j = this.jerkE;
+      const vj = j < feed ? j : feed;
+      this.enqueue(eLen, a, feed * feed, this.prevKind === 1 ? 0 : vj * vj, flowMm3s, layerIndex);
+      this.prevKind = 2;
+      this.pv = feed;
+    }
+  }
+
+  /** Entry speed² from a standstill: classic jerk lets a move start at the jerk speed; JD starts at 0. */
+  private safeV2(aux: number, auy: number, auz: number, aue: number, v: number): number {
+    if (this.jerkX === null) return 0;
+    let s = v;
+    const jy = this.jerkY ?? this.jerkX;
+    if (aux * s > this.jerkX) s = this.jerkX / aux;
+    if (auy * s > jy) s = jy / auy;
+    if (auz * s > this.jerkZ) s = this.jerkZ / auz;
+    if (aue * s > this.jerkE) s = this.jerkE / aue;
+    return s * s;
+  }
+
+  /** Largest speed² through the corner between the previous move and this one. */
+  private junctionV2(ux: number, uy: number, uz: number, ue: number, v: number, a: number): number {
+    const pv = this.pv;
+    const vcap = v < pv ? v : pv;
+    if (this.jerkX !== null) {
+      // Classic jerk (Marlin planner.cpp, non-JD branch): scale the junction speed until no axis jumps
+      // by more than its jerk; opposite-sign components count by the larger magnitude.
+      const jy = this.jerkY ?? this.jerkX;
+      let f = 1;
+      f = jerkFactor(this.pux * vcap, ux * vcap, this.jerkX, f);
+      f = jerkFactor(this.puy * vcap, uy * vcap, jy, f);
+      f = jerkFactor(this.puz * vcap, uz * vcap, this.jerkZ, f);
+      f = jerkFactor(this.pue * vcap, ue * vcap, this.jerkE, f);
+      const vj = vcap * f;
+      return vj * vj;
+    }
+    // Junction deviation (grbl / Marlin JUNCTION_DEVIATION): v² = a·δ·sin(θ/2) / (1 − sin(θ/2)).
+    const cosTheta = -(this.pux * ux + this.puy * uy + this.puz * uz);
+    if (cosTheta < -0.999999) return vcap * vcap; // straight on
+    if (cosTheta > 0.999999) return 0; // full reversal
+    const sinHalf = Math.sqrt(0.5 * (1 - cosTheta));
+    let vj2: number;
+    if (this.scvJd) {
+      // Klipper: junction_deviation = scv² (√2 − 1) / accel, so v² = scv² (√2 − 1) sin/(1 − sin).
+      vj2 = (this.jd * this.jd * (Math.SQRT2 - 1) * sinHalf) / (1 - sinHalf);
+    } else {
+      vj2 = (a * this.jd * sinHalf) / (1 - sinHalf);
+    }
+    const c2 = vcap * vcap;
+    return vj2 < c2 ? vj2 : c2;
+  }
+
+  private enqueue(L: number, a: number, vn2: number, vj2: number, flow: number, layer: number): void {
+    if (this.count === RING) this.dequeue();
+    const idx = (this.head + this.count) & MASK;
+    if (vj2 > vn2) vj2 = vn2;
+    this.lenMm[idx] = L;
+    this.accel[idx] = a;
+    this.nomV2[idx] = vn2;
+    this.maxEntryV2[idx] = vj2;
+    this.flow[idx] = flow;
+    this.layer[idx] = layer;
+    const stop = 2 * a * L; // entry speed² from which it can stop within this move
+    this.backV2[idx] = vj2 < stop ? vj2 : stop;
+    if (this.count === 0) this.entryV2[idx] = vj2;
+    this.count++;
+    // Backward pass: raise earlier entry limits now that the stop point moved one move further away.
+    let next = idx;
+    for (let k = this.count - 2; k >= 0; k--) {
+      const i = (this.head + k) & MASK;
+      const reach = this.backV2[next] + 2 * this.accel[i] * this.lenMm[i];
+      const cap = this.maxEntryV2[i];
+      const nb = reach < cap ? reach : cap;
+      if (nb <= this.backV2[i]) break;
+      this.backV2[i] = nb;
+      next = i;
+    }
+  }
+
+  private dequeue(): void {
+    const h = this.head;
+    const L = this.lenMm[h];
+    const a = this.accel[h];
+    let v0 = this.entryV2[h];
+    if (v0 > this.backV2[h]) v0 = this.backV2[h];
+    let v1 = 0;
+    if (this.count > 1) {
+      const n = (h + 1) & MASK;
+      v1 = this.backV2[n];
+      const reach = v0 + 2 * a * L;
+      if (reach < v1) v1 = reach;
+      this.entryV2[n] = v1;
+    }
+    const t = trapezoidTimeS(v0, v1, this.nomV2[h], a, L);
+    this.totalS += t;
+    this.out.planned(t, this.flow[h], this.layer[h]);
+    this.head = (h + 1) & MASK;
+    this.count--;
+  }
+
+  /** Stops the machine (end of file, dwell): every queued move is timed with a final stop. */
+  flush(): void {
+    // Moves decelerate to zero at the last one: backV2 already assumes that.
+    while (this.count > 0) this.dequeue();
+    this.prevKind = 0;
+  }
+
+  /** G4: wait for the queue to empty, then pause. */
+  dwell(timeS: number, layerIndex: number): void {
+    this.flush();
+    this.totalS += timeS;
+    this.dwellS += timeS;
+    this.out.planned(timeS, 0, layerIndex);
+  }
+}
+
+/** Marlin classic-jerk speed jump of one axis between exit velocity ve and entry velocity vi. */
+function jerkFactor(vExit: number, vEntry: number, maxJerk: number, f: number): number {
+  let jerk: number;
+  if (vExit > vEntry) jerk = vEntry > 0 || vExit < 0 ? vExit - vEntry : Math.max(vExit, -vEntry);
+  else jerk = vEntry < 0 || vExit > 0 ? vEntry - vExit : Math.max(-vExit, vEntry);
+  jerk *= f;
+  if (jerk > maxJerk) return (f * maxJerk) / jerk;
+  return f;
+}

@@ -1,0 +1,312 @@
+/**
+ * Streaming byte reader: turns a file (plain or gzip) into lines handed to a LineSink as
+ * (buffer, start, end) ranges, without building strings and with memory bounded by one chunk
+ * plus one carried-over line (at most MAX_LINE_BYTES).
+ *
+ * Compression is detected from the gzip magic bytes 0x1f 0x8b (RFC 1952 §2.3.1), never from the
+ * file name. Binary G-code (the "GCDE" container some slicers can write) and other non-text input
+ * are refused with a sentence the entrant can act on.
+ */
+import { createReadStream } from 'node:fs';
+import { open, stat } from 'node:fs/promises';
+import type { Readable } from 'node:stream';
+import { createGunzip } from 'node:zlib';
+
+/** Longest line kept; the rest of a longer line is dropped with a warning. */
+export const MAX_LINE_BYTES = 64 * 1024;
+/** Read size for plain files; one reused buffer. */
+const CHUNK_BYTES = 1024 * 1024;
+
+export type InspectionErrorCode =
+  | 'not-found'
+  | 'unreadable'
+  | 'empty'
+  | 'binary-gcode'
+  | 'binary'
+  | 'truncated-gzip'
+  | 'corrupt-gzip';
+
+/** The one error type the engine throws for input it cannot inspect. */
+export class InspectionError extends Error {
+  readonly code: InspectionErrorCode;
+  constructor(code: InspectionErrorCode, message: string) {
+    super(message);
+    this.name = 'InspectionError';
+    this.code = code;
+  }
+}
+
+/** Receives lines; `start`/`end` index into `buf`, the line break is excluded. */
+export interface LineSink {
+  line(buf: Buffer, start: number, end: number): void;
+  /** The NEXT line handed to line() was longer than MAX_LINE_BYTES and has been cut. */
+  longLine?(bytes: number): void;
+}
+
+export interface ReadStats {
+  bytesIn: number;
+  bytesText: number;
+  gzip: boolean;
+  lines: number;
+}
+
+const LF = 10;
+const CR = 13;
+
+/**
+ * Splits byte chunks into lines. A line break is LF, CRLF or a lone CR (the parser also treats a CR
+ * inside a line as a break, so mixed files work). A line spanning chunks is copied into a fixed
+ * carry buffer.
+ */
+export class LineSplitter {
+  private readonly sink: LineSink;
+  private readonly carry = Buffer.alloc(MAX_LINE_BYTES);
+  private carryLen = 0;
+  /** Bytes of the current line dropped because it was too long. */
+  private dropped = 0;
+  lines = 0;
+  bytes = 0;
+  private checked = false;
+
+  constructor(sink: LineSink) {
+    this.sink = sink;
+  }
+
+  push(chunk: Buffer): void {
+    if (chunk.length === 0) return;
+    if (!this.checked) {
+      this.checked = true;
+      checkTextStart(chunk);
+    }
+    this.bytes += chunk.length;
+    let pos = 0;
+    const n = chunk.length;
+    while (pos < n) {
+      let lf = chunk.indexOf(LF, pos);
+      if (lf < 0) {
+        // No LF left in this chunk: a CR-only file is split on CR. A CR that is the chunk's last
+        // byte may be the first half of a CRLF, so it is carried (the parser ignores a trailing CR).
+        const cr = chunk.indexOf(CR, pos);
+        if (cr >= 0 && cr < n - 1) {
+          lf = cr;
+        } else {
+          this.append(chunk, pos, n);
+          return;
+        }
+      }
+      if (this.carryLen === 0 && this.dropped === 0) {
+        if (lf - pos > MAX_LINE_BYTES) {
+          this.lines++;
+          this.sink.longLine?.(lf - pos);
+          this.sink.line(chunk, pos, pos + MAX_LINE_BYTES);
+        } else {
+          this.lines++;
+          this.sink.line(chunk, pos, lf);
+        }
+      } else {
+        this.append(chunk, pos, lf);
+        this.flushCarry();
+      }
+      pos = lf + 1;
+    }
+  }
+
+  private append(chunk: Buffer, from: number, to: number): void {
+    const room = MAX_LINE_BYTES - this.carryLen;
+    const len = to - from;
+    if (len <= room) {
+      this.carry.set(chunk.subarray(from, to), this.carryLen);
+      this.carryLen += len;
+    } else {
+      if (room > 0) this.carry.set(chunk.subarray(from, from + room), this.carryLen);
+      this.carryLen = MAX_LINE_BYTES;
+      this.dropped += len - room;
+    }
+  }
+
+  private flushCarry(): void {
+    this.lines++;
+    if (this.dropped > 0) this.sink.longLine?.(this.carryLen + this.dropped);
+    this.sink.line(this.carry, 0, this.carryLen);
+    this.carryLen = 0;
+    this.dropped = 0;
+  }
+
+  /** Call once at end of input. */
+  end(): void {
+    if (this.carryLen > 0 || this.dropped > 0) this.flushCarry();
+  }
+}
+
+/**
+ * Refuses binary input by looking at the first decoded bytes: the binary G-code magic "GCDE",
+ * any NUL byte, or more than 10 % control bytes other than TAB/LF/CR/FF (text G-code has none).
+ */
+export function checkTextStart(chunk: Uint8Array): void {
+  if (chunk.length >= 4 && chunk[0] === 0x47 && chunk[1] === 0x43 && chunk[2] === 0x44 && chunk[3] === 0x45) {
+    throw new InspectionError(
+      'binary-gcode',
+      'This is binary G-code, which is not supported: export plain-text G-code from the slicer (turn off binary G-code output) and upload that.',
+    );
+  }
+  const n = Math.min(chunk.length, 4096);
+  let control = 0;
+  for (let i = 0; i < n; i++) {
+    const c = chunk[i];
+    if (c === 0) {
+      throw new InspectionError(
+        'binary',
+        'This file is binary, not G-code text: upload the plain-text .gcode (or .gcode.gz) the slicer exported.',
+      );
+    }
+    if (c < 32 && c !== 9 && c !== 10 && c !== 13 && c !== 12) control++;
+  }
+  if (control > n * 0.1) {
+    throw new InspectionError(
+      'binary',
+      'This file is binary, not G-code text: upload the plain-text .gcode (or .gcode.gz) the slicer exported.',
+    );
+  }
+}
+
+function isGzipStart(b: Uint8Array): boolean {
+  return b.length >= 2 && b[0] === 0x1f && b[1] === 0x8b;
+}
+
+function gzipError(err: unknown): InspectionError {
+  const e = err as NodeJS.ErrnoException;
+  if (e && (e.code === 'Z_BUF_ERROR' || /unexpected end/i.test(String(e.message)))) {
+    return new InspectionError(
+      'truncated-gzip',
+      'The compressed file ends early (truncated gzip): upload the complete file again.',
+    );
+  }
+  return new InspectionError(
+    'corrupt-gzip',
+    `The compressed file is damaged and cannot be decompressed (${e && e.message ? e.message : 'gzip error'}).`,
+  );
+}
+
+function emptyError(): InspectionError {
+  return new InspectionError('empty', 'The file is empty: there is no G-code to inspect.');
+}
+
+/** Reads a file path into the sink. Plain files are read with one reused buffer. */
+export async function readFileLines(path: string, sink: LineSink): Promise<ReadStats> {
+  let size: number;
+  try {
+    const st = await stat(path);
+    if (!st.isFile()) throw new InspectionError('unreadable', `Cannot read ${path}: it is not a regular file.`);
+    size = st.size;
+  } catch (err) {
+    if (err instanceof InspectionError) throw err;
+    const e = err as NodeJS.ErrnoException;
+    if (e.code === 'ENOENT') throw new InspectionError('not-found', `File not found: ${path}`);
+    throw new InspectionError('unreadable', `Cannot read ${path}: ${e.message}`);
+  }
+  if (size === 0) throw emptyError();
+  const fh = await open(path, 'r').catch((err: NodeJS.ErrnoException) => {
+    throw new InspectionError('unreadable', `Cannot read ${path}: ${err.message}`);
+  });
+  try {
+    const head = new Uint8Array(2);
+    await fh.read(head, 0, 2, 0);
+    if (isGzipStart(head)) {
+      await fh.close();
+      return await readStreamLines(createReadStream(path, { highWaterMark: 256 * 1024 }), sink);
+    }
+    const splitter = new LineSplitter(sink);
+    const buf = Buffer.allocUnsafe(CHUNK_BYTES);
+    let offset = 0;
+    for (;;) {
+      const { bytesRead } = await fh.read(buf, 0, CHUNK_BYTES, offset);
+      if (bytesRead === 0) break;
+      offset += bytesRead;
+      splitter.push(bytesRead === CHUNK_BYTES ? buf : buf.subarray(0, bytesRead));
+    }
+    splitter.end();
+    return { bytesIn: offset, bytesText: splitter.bytes, gzip: false, lines: splitter.lines };
+  } finally {
+    await fh.close().catch(() => undefined);
+  }
+}
+
+/**
+ * Reads any byte stream (plain or gzip, detected from the first bytes) into the sink. Backpressure
+ * comes from async iteration, so memory stays at one chunk.
+ */
+export async function readStreamLines(input: Readable, sink: LineSink): Promise<ReadStats> {
+  const splitter = new LineSplitter(sink);
+  let bytesIn = 0;
+  let gzip = false;
+  let decoded: AsyncIterable<Buffer | string> = input;
+  let first: Buffer | null = null;
+  const iter = input[Symbol.asyncIterator]();
+  // Peek at the first chunk to choose plain or gzip.
+  try {
+    const r = await iter.next();
+    if (!r.done) first = typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : (r.value as Buffer);
+  } catch (err) {
+    throw new InspectionError('unreadable', `Cannot read the input: ${(err as Error).message}`);
+  }
+  if (!first || first.length === 0) {
+    // Drain possibly-empty first chunk cases.
+    const rest = await collectUntilData(iter);
+    if (!rest) throw emptyError();
+    first = rest;
+  }
+  const rest: AsyncIterable<Buffer> = {
+    [Symbol.asyncIterator]() {
+      let sentFirst = false;
+      return {
+        next: async (): Promise<IteratorResult<Buffer>> => {
+          if (!sentFirst) {
+            sentFirst = true;
+            return { done: false, value: first as Buffer };
+          }
+          const r = await iter.next();
+          if (r.done) return { done: true, value: undefined };
+          return { done: false, value: typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : (r.value as Buffer) };
+        },
+      };
+    },
+  };
+  if (isGzipStart(first)) {
+    gzip = true;
+    const gunzip = createGunzip();
+    const feed = (async () => {
+      for await (const c of rest) {
+        bytesIn += c.length;
+        if (!gunzip.write(c)) await new Promise<void>((res) => gunzip.once('drain', res));
+      }
+      gunzip.end();
+    })();
+    feed.catch((err) => gunzip.destroy(err as Error));
+    decoded = gunzip;
+    try {
+      for await (const c of decoded) splitter.push(c as Buffer);
+    } catch (err) {
+      if (err instanceof InspectionError) throw err;
+      throw gzipError(err);
+    } finally {
+      await feed.catch(() => undefined);
+    }
+  } else {
+    for await (const c of rest) {
+      bytesIn += c.length;
+      splitter.push(c);
+    }
+  }
+  if (splitter.bytes === 0) throw emptyError();
+  splitter.end();
+  return { bytesIn, bytesText: splitter.bytes, gzip, lines: splitter.lines };
+}
+
+async function collectUntilData(iter: AsyncIterator<Buffer | string>): Promise<Buffer | null> {
+  for (;;) {
+    const r = await iter.next();
+    if (r.done) return null;
+    const b = typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : r.value;
+    if (b.length > 0) return b;
+  }
+}
