@@ -1,5 +1,7 @@
 /** @type {import('next').NextConfig} */
 const nextConfig = {
+  // Separate build folders let several test runs share one checkout (see DEVELOPERS.md).
+  distDir: process.env.NEXT_DIST_DIR || '.next',
   // The ORM and the native SQLite driver load dialect modules dynamically; bundling breaks that.
   serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs'],
   poweredByHeader: false,

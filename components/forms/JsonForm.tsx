@@ -68,7 +68,7 @@ export function JsonForm(props: {
         <Field key={f.name} {...f} error={errors[f.name]} />
       ))}
       {(message || hiddenErrors.length > 0) && (
-        <div className="rounded-lg border border-alarm-500 bg-alarm-50 p-3 text-sm text-alarm-700" role="alert">
+        <div className="rounded-lg border border-alarm-500 bg-alarm-50 p-3 text-sm text-alarm-700" role="alert" data-testid="form-error">
           {hiddenErrors.length > 0 ? hiddenErrors.map(([, v]) => <p key={v}>{v}</p>) : <p>{message}</p>}
         </div>
       )}

@@ -41,7 +41,7 @@ export function prepareDatabase(env: Record<string, string>) {
 }
 
 export async function startServer(port: number): Promise<TestServer> {
-  if (!fs.existsSync(path.join(ROOT, '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
+  if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-'));
   const env = testEnv(port, dataDir);
   prepareDatabase(env);

@@ -36,7 +36,7 @@ export function SignInForm({ callbackUrl, initialError }: { callbackUrl: string;
       <Field name="email" label="E-mail" type="email" autoComplete="email" />
       <Field name="password" label="Password" type="password" autoComplete="current-password" />
       {error && (
-        <div className="rounded-lg border border-alarm-500 bg-alarm-50 p-3 text-sm text-alarm-700" role="alert" data-code={code ?? undefined}>
+        <div className="rounded-lg border border-alarm-500 bg-alarm-50 p-3 text-sm text-alarm-700" role="alert" data-testid="form-error" data-code={code ?? undefined}>
           {error}
           {code === 'EmailNotVerified' && (
             <> <Link href="/verify">Send a new link</Link>.</>
