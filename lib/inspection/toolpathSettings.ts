@@ -23,7 +23,7 @@
  * Layer height is the mode of Z steps; walls the mode over mid-height layers.
  */
 import type { Segment, SegmentSink } from './types';
-import { LayerGrid, MAX_GRID_CELLS, OUTSIDE, HOLE } from './toolpath/layerGrid';
+import { LayerGrid, MAX_GRID_CELLS } from './toolpath/layerGrid';
 import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
 
 export interface MeasuredFigure {
@@ -42,6 +42,8 @@ export interface MeasuredSettings {
   nozzle_mm: MeasuredFigure;
   /** Layers with extrusion (minor ones such as a prime line included). */
   layers: number;
+  /** Layers rasterised in full (all of them unless the file exceeded the work budget). */
+  analysedLayers: number;
   warnings: string[];
 }
 
@@ -49,6 +51,11 @@ export interface ToolpathSettingsOptions {
   filamentDiameterMm: number;
   /** Nozzle hint (mm) for the first layer's grid before any width is known. */
   nozzleMm?: number;
+  /**
+   * Raster work allowed, in grid cells: baseCells plus cellsPerSegment for every extruding move
+   * seen. Beyond it, layers are analysed in windows of consecutive layers. Infinity = every layer.
+   */
+  cellBudget?: { baseCells: number; cellsPerSegment: number };
   /** Diagnostics: called after each layer with its figures and the band (1 = outer wall) of each loop. */
   onLayer?: (layer: Readonly<LayerRecord>, loopBands: readonly number[]) => void;
 }
@@ -68,6 +75,21 @@ const MAX_LAYER_SEGMENTS = 400_000;
 /** Most layer records kept. */
 const MAX_LAYERS = 200_000;
 const Z_EPS_MM = 0.0015;
+/** Grid cells across one line width: 2 resolves loops ~0.4 mm apart (tested 1.3–2.5 on the fixtures, same figures). */
+const CELLS_PER_WIDTH = 2;
+/**
+ * Default work budget: 10 M cells (~0.2 s here) covers the 36 × 42 × 40 mm Beacon at 0.2 mm layers in
+ * full (7.4 M cells); half a cell per extruding move keeps large files near parser speed.
+ */
+const DEFAULT_BUDGET_BASE_CELLS = 10_000_000;
+const DEFAULT_BUDGET_CELLS_PER_SEGMENT = 0.5;
+/** Consecutive layers analysed per window once sampling. */
+const SAMPLE_WINDOW_LAYERS = 24;
+// Local copies: imported bindings cost a getter call per access under CommonJS interop.
+const S_EMPTY = B_EMPTY;
+const S_SOLID = B_SOLID;
+const S_SPARSE = B_SPARSE;
+const S_EDGE = B_EDGE;
 
 export interface LayerRecord {
   z: number;
@@ -98,6 +120,10 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   let nChains = 0;
   let layerZ = Number.NaN;
   let layerVolumeMm3 = 0;
+  let bbMinX = Infinity;
+  let bbMinY = Infinity;
+  let bbMaxX = -Infinity;
+  let bbMaxY = -Infinity;
   let layerTruncated = false;
   let lastEndX = Number.NaN;
   let lastEndY = Number.NaN;
@@ -108,8 +134,21 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   const layers: LayerRecord[] = [];
   let layerCount = 0;
   const grid = new LayerGrid();
+  let blockBuf = new Float64Array(0);
+  const widthScratch = new Float64Array(600);
   const columns = new ColumnTracker();
   let blockMm = 0;
+  const cellBudgetBase = opts.cellBudget?.baseCells ?? DEFAULT_BUDGET_BASE_CELLS;
+  const cellBudgetPerSegment = opts.cellBudget?.cellsPerSegment ?? DEFAULT_BUDGET_CELLS_PER_SEGMENT;
+  let segmentsSeen = 0;
+  let spentCells = 0;
+  let sampling = false;
+  let windowLeft = 0;
+  let skippedLayers = 0;
+  let analysedLayers = 0;
+  let skipStoring = false;
+  let nSkippedSeg = 0;
+  let lastLayerCells = 0;
   let refWidthMm = 0;
   /** Width histogram of loop segments, 0.005 mm bins, length-weighted. */
   const loopWidthHist = new Float64Array(600);
@@ -146,12 +185,19 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const z = s.z1;
     if (!(Math.abs(z - layerZ) <= Z_EPS_MM)) {
       // Moves that climb while extruding (spiral "vase" mode) stay on the current layer.
-      const spiral = Math.abs(s.z1 - s.z0) > 1e-4 && nSeg > 0 && Math.abs(z - layerZ) < 0.05;
+      const spiral = Math.abs(s.z1 - s.z0) > 1e-4 && (nSeg > 0 || nSkippedSeg > 0) && Math.abs(z - layerZ) < 0.05;
       if (!spiral) {
         finishLayer();
         layerZ = z;
         broken = true;
       }
+    }
+    segmentsSeen++;
+    if (skipStoring) {
+      // This layer will not be rasterised (work budget): keep only its volume.
+      layerVolumeMm3 += s.eMm * filamentAreaMm2;
+      nSkippedSeg++;
+      return;
     }
     if (nSeg >= MAX_LAYER_SEGMENTS) {
       layerTruncated = true;
@@ -170,12 +216,39 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     chainOf[nSeg] = nChains - 1;
     nSeg++;
     layerVolumeMm3 += areaMm2 * lenXY;
+    if (s.x0 < bbMinX) bbMinX = s.x0;
+    if (s.x0 > bbMaxX) bbMaxX = s.x0;
+    if (s.x1 < bbMinX) bbMinX = s.x1;
+    if (s.x1 > bbMaxX) bbMaxX = s.x1;
+    if (s.y0 < bbMinY) bbMinY = s.y0;
+    if (s.y0 > bbMaxY) bbMaxY = s.y0;
+    if (s.y1 < bbMinY) bbMinY = s.y1;
+    if (s.y1 > bbMaxY) bbMaxY = s.y1;
     lastEndX = s.x1;
     lastEndY = s.y1;
   }
 
   function finishLayer(): void {
-    if (nSeg === 0) return;
+    if (nSeg === 0 && nSkippedSeg === 0) return;
+    if (nSeg === 0) {
+      // Not stored: record the layer for heights and counts only.
+      const z = layerZ;
+      if (!Number.isNaN(prevLayerZ) && z < prevLayerZ - Z_EPS_MM) {
+        columns.finish();
+        sequence++;
+        prevLayerZ = Number.NaN;
+      }
+      const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
+      layerCount++;
+      skippedLayers++;
+      columns.abandon();
+      if (layers.length < MAX_LAYERS) layers.push(emptyRecord(z, h, layerVolumeMm3, nSkippedSeg, sequence));
+      prevLayerZ = z;
+      nSkippedSeg = 0;
+      layerVolumeMm3 = 0;
+      decideStoring();
+      return;
+    }
     const z = layerZ;
     if (!Number.isNaN(prevLayerZ) && z < prevLayerZ - Z_EPS_MM) {
       // Z went back down: a new print sequence (prime line before the first layer, sequential objects).
@@ -193,8 +266,24 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     nSeg = 0;
     nChains = 0;
     layerVolumeMm3 = 0;
+    bbMinX = Infinity;
+    bbMinY = Infinity;
+    bbMaxX = -Infinity;
+    bbMaxY = -Infinity;
+    nSkippedSeg = 0;
+    decideStoring();
     if (layerTruncated && warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} has more than ${MAX_LAYER_SEGMENTS} moves; only the first were analysed.`);
     layerTruncated = false;
+  }
+
+  /** Once sampling, store the next layer's moves only if the budget could start a window now. */
+  function decideStoring(): void {
+    if (!sampling || windowLeft > 0) {
+      skipStoring = false;
+      return;
+    }
+    const budget = cellBudgetBase + cellBudgetPerSegment * segmentsSeen;
+    skipStoring = budget - spentCells < SAMPLE_WINDOW_LAYERS * lastLayerCells;
   }
 
   function widthOf(areaMm2: number, h: number): number {
@@ -202,54 +291,85 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     return areaMm2 / h + h * (1 - Math.PI / 4);
   }
 
+  /** Median width of this layer's moves (length-weighted). */
+  function layerMedianWidth(h: number): number {
+    const hist = widthScratch;
+    hist.fill(0);
+    for (let i = 0; i < nSeg; i++) {
+      const o = i * 5;
+      const w = widthOf(seg[o + 4], h);
+      const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+      const b = Math.min(hist.length - 1, Math.max(0, Math.round(w / 0.005)));
+      hist[b] += len;
+    }
+    return histMedian(hist, 0.005);
+  }
+
   function analyseLayer(z: number, h: number): void {
     layerCount++;
-    const rec: LayerRecord = {
-      z,
-      h,
-      volumeMm3: layerVolumeMm3,
-      segments: nSeg,
-      walls: null,
-      sparseVolMm3: 0,
-      sparseAreaMm2: 0,
-      sparseBlocks: 0,
-      solidBlocks: 0,
-      loopWidthMm: null,
-      sequence,
-    };
+    const rec = emptyRecord(z, h, layerVolumeMm3, nSeg, sequence);
     if (layers.length < MAX_LAYERS) layers.push(rec);
     if (!(h > 0.01 && h < 2)) {
-      columns.beginLayer();
-      columns.endLayer();
+      columns.abandon();
       return;
     }
 
-    // Chain closure → loops. A loop returns within 2 widths of its start and encloses some area.
-    const isLoop = new Uint8Array(nChains);
-    let medianWidth = 0;
-    {
-      const hist = new Float64Array(400);
-      for (let i = 0; i < nSeg; i++) {
-        const o = i * 5;
-        const w = widthOf(seg[o + 4], h);
-        const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
-        const b = Math.min(399, Math.max(0, Math.round(w / 0.005)));
-        hist[b] += len;
-      }
-      medianWidth = histMedian(hist, 0.005);
-    }
-    if (!(medianWidth > 0.05)) medianWidth = opts.nozzleMm ? opts.nozzleMm * WIDTH_PER_NOZZLE : 0.45;
+    let medianWidth = refWidthMm === 0 ? layerMedianWidth(h) : 0;
     if (refWidthMm === 0 && nSeg < 20) {
       // A prime line or purge before the print: too little to size the grid from.
-      columns.beginLayer();
-      columns.endLayer();
+      columns.abandon();
       return;
     }
     if (refWidthMm === 0) {
+      if (!(medianWidth > 0.05)) medianWidth = opts.nozzleMm ? opts.nozzleMm * WIDTH_PER_NOZZLE : 0.45;
       refWidthMm = opts.nozzleMm ? Math.max(medianWidth, opts.nozzleMm) : medianWidth;
       // Block size: wide enough to see sparse infill as sparse, fixed for the whole file.
       blockMm = Math.min(6, Math.max(2, 4.5 * refWidthMm));
     }
+
+    // Grid: origin on the global block lattice so blocks line up from layer to layer.
+    const minX = bbMinX;
+    const minY = bbMinY;
+    const maxX = bbMaxX;
+    const maxY = bbMaxY;
+    const B = blockMm;
+    const ox = Math.floor(minX / B) * B - B;
+    const oy = Math.floor(minY / B) * B - B;
+    const spanX = Math.ceil((maxX - ox) / B) * B + B;
+    const spanY = Math.ceil((maxY - oy) / B) * B + B;
+    let k = Math.max(1, Math.round(B / (refWidthMm / CELLS_PER_WIDTH)));
+    while (k > 1 && (spanX / B) * k * ((spanY / B) * k) > MAX_GRID_CELLS) k--;
+    const nbx = Math.round(spanX / B);
+    const nby = Math.round(spanY / B);
+    if (nbx * k * nby * k > MAX_GRID_CELLS) {
+      // Bed-sized spread at a 1-cell-per-block grid still too large: skip the raster for this layer.
+      if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} spans ${(maxX - minX).toFixed(0)} × ${(maxY - minY).toFixed(0)} mm, too large to rasterise; skipped.`);
+      columns.abandon();
+      return;
+    }
+    const c = B / k;
+    const cells = nbx * k * nby * k;
+    lastLayerCells = cells;
+    // Work budget: analyse every layer while the budget lasts, then windows of consecutive layers
+    // spread through the file (runs of solid layers need consecutive layers to be counted).
+    const budget = cellBudgetBase + cellBudgetPerSegment * segmentsSeen;
+    if (windowLeft > 0) windowLeft--;
+    else if (spentCells + cells > budget || sampling) {
+      sampling = true;
+      if (budget - spentCells >= SAMPLE_WINDOW_LAYERS * cells) {
+        windowLeft = SAMPLE_WINDOW_LAYERS - 1;
+      } else {
+        skippedLayers++;
+        columns.abandon();
+        return;
+      }
+    }
+    spentCells += cells;
+    analysedLayers++;
+    if (medianWidth === 0) medianWidth = layerMedianWidth(h);
+    if (!(medianWidth > 0.05)) medianWidth = refWidthMm;
+    // Chain closure → loops. A loop returns within 2 widths of its start and encloses some area.
+    const isLoop = new Uint8Array(nChains);
     for (let c = 0; c < nChains; c++) {
       const a = chainStart[c];
       const b = c + 1 < nChains ? chainStart[c + 1] : nSeg;
@@ -270,43 +390,6 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       isLoop[c] = 1;
     }
 
-    // Grid: origin on the global block lattice so blocks line up from layer to layer.
-    let minX = Infinity;
-    let minY = Infinity;
-    let maxX = -Infinity;
-    let maxY = -Infinity;
-    for (let i = 0; i < nSeg; i++) {
-      const o = i * 5;
-      const x0 = seg[o];
-      const y0 = seg[o + 1];
-      const x1 = seg[o + 2];
-      const y1 = seg[o + 3];
-      if (x0 < minX) minX = x0;
-      if (x1 < minX) minX = x1;
-      if (y0 < minY) minY = y0;
-      if (y1 < minY) minY = y1;
-      if (x0 > maxX) maxX = x0;
-      if (x1 > maxX) maxX = x1;
-      if (y0 > maxY) maxY = y0;
-      if (y1 > maxY) maxY = y1;
-    }
-    const B = blockMm;
-    const ox = Math.floor(minX / B) * B - B;
-    const oy = Math.floor(minY / B) * B - B;
-    const spanX = Math.ceil((maxX - ox) / B) * B + B;
-    const spanY = Math.ceil((maxY - oy) / B) * B + B;
-    let k = Math.max(1, Math.round(B / (refWidthMm / 2.5)));
-    while (k > 1 && (spanX / B) * k * ((spanY / B) * k) > MAX_GRID_CELLS) k--;
-    const nbx = Math.round(spanX / B);
-    const nby = Math.round(spanY / B);
-    if (nbx * k * nby * k > MAX_GRID_CELLS) {
-      // Bed-sized spread at a 1-cell-per-block grid still too large: skip the raster for this layer.
-      if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} spans ${(maxX - minX).toFixed(0)} × ${(maxY - minY).toFixed(0)} mm, too large to rasterise; skipped.`);
-      columns.beginLayer();
-      columns.endLayer();
-      return;
-    }
-    const c = B / k;
     grid.reset(ox, oy, c, nbx * k, nby * k);
     const inflate = c * 0.25;
     for (let i = 0; i < nSeg; i++) {
@@ -394,10 +477,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     // Infill region: deeper than the innermost wall's inner edge plus 1.5 widths.
     const wallEdgeMm = (rec.walls || 2) * (loopWidth ?? medianWidth);
     const deepUnits = ((wallEdgeMm + 1.5 * medianWidth) / c) * 3;
-    const nx = grid.nx;
-    const lab = grid.label;
-    const dist = grid.dist;
-    const vol = grid.volume;
+    if (blockBuf.length < nbx * nby * 3) blockBuf = new Float64Array(nbx * nby * 3);
+    grid.blockStats(k, deepUnits, blockBuf);
     columns.beginLayer();
     const bx0 = Math.round(ox / B);
     const by0 = Math.round(oy / B);
@@ -405,36 +486,25 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const blockCells = k * k;
     for (let by = 0; by < nby; by++) {
       for (let bx = 0; bx < nbx; bx++) {
-        let fCells = 0;
-        let dCells = 0;
-        let dVol = 0;
-        for (let yy = 0; yy < k; yy++) {
-          let kk = (by * k + yy) * nx + bx * k;
-          for (let xx = 0; xx < k; xx++, kk++) {
-            const l = lab[kk];
-            if (l === OUTSIDE || l === HOLE) continue;
-            fCells++;
-            if (dist[kk] > deepUnits) {
-              dCells++;
-              dVol += vol[kk];
-            }
-          }
-        }
+        const o = (by * nbx + bx) * 3;
+        const fCells = blockBuf[o];
+        const dCells = blockBuf[o + 1];
+        const dVol = blockBuf[o + 2];
         let state: number;
-        if (fCells < 0.1 * blockCells) state = B_EMPTY;
+        if (fCells < 0.1 * blockCells) state = S_EMPTY;
         else if (dCells >= blockCells) {
           const frac = dVol / (dCells * cellArea * h);
           if (frac >= SOLID_FRACTION) {
-            state = B_SOLID;
+            state = S_SOLID;
             rec.solidBlocks++;
           } else {
-            state = B_SPARSE;
+            state = S_SPARSE;
             rec.sparseBlocks++;
             rec.sparseVolMm3 += dVol;
             rec.sparseAreaMm2 += dCells * cellArea;
           }
-        } else state = B_EDGE;
-        if (state !== B_EMPTY) columns.set(ColumnTracker.key(bx0 + bx, by0 + by), state);
+        } else state = S_EDGE;
+        if (state !== S_EMPTY) columns.set(ColumnTracker.key(bx0 + bx, by0 + by), state);
       }
     }
     columns.endLayer();
@@ -447,10 +517,20 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   }
 
   function result(): MeasuredSettings {
-    return summarise(layers, layerCount, columns, loopWidthHist, warnings);
+    const out = summarise(layers, layerCount, columns, loopWidthHist, warnings);
+    out.analysedLayers = analysedLayers;
+    if (skippedLayers > 0) {
+      const note = ` Large file: ${analysedLayers} of ${analysedLayers + skippedLayers} layers analysed in full (windows of ${SAMPLE_WINDOW_LAYERS}).`;
+      for (const f of [out.walls, out.top_layers, out.bottom_layers, out.infill_percent]) f.detail += note;
+    }
+    return out;
   }
 
   return { segment, end, result };
+}
+
+function emptyRecord(z: number, h: number, volumeMm3: number, segments: number, sequence: number): LayerRecord {
+  return { z, h, volumeMm3, segments, walls: null, sparseVolMm3: 0, sparseAreaMm2: 0, sparseBlocks: 0, solidBlocks: 0, loopWidthMm: null, sequence };
 }
 
 function median(v: number[]): number {
@@ -500,6 +580,7 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
     line_width_mm: unknown('No wall loops.'),
     nozzle_mm: unknown('No wall loops.'),
     layers: layerCount,
+    analysedLayers: 0,
     warnings,
   };
   if (layers.length === 0) return out;

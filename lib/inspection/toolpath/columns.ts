@@ -81,6 +81,12 @@ export class ColumnTracker {
     this.cols.clear();
   }
 
+  /** A layer was not analysed: runs in progress cannot be counted; forget them. */
+  abandon(): void {
+    this.layer++;
+    this.cols.clear();
+  }
+
   private transition(c: Column, prev: number, next: number): void {
     if (next === B_SOLID) {
       if (prev === B_SOLID) c.run++;

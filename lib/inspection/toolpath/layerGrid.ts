@@ -119,43 +119,78 @@ export class LayerGrid {
    * Label empty cells OUTSIDE / HOLE / GAP. A hole must be at least `holeMinThicknessMm` thick
    * (2 × area ÷ border length) and have ≥ 85 % of its border on loop paint: sparse-infill gaps are
    * bounded by infill lines, thin slivers between walls are too narrow.
+   * The grid's outermost ring of cells is taken as outside (callers leave an empty margin), so the
+   * floods below never need bounds checks.
    */
   classify(holeMinThicknessMm: number): { holes: number; gaps: number } {
     const nx = this.nx;
     const ny = this.ny;
-    const n = nx * ny;
     const lab = this.label;
     const q = this.queue;
-    // Flood the outside from the border (4-connected).
-    let qh = 0;
     let qt = 0;
-    const seed = (k: number) => {
-      if (lab[k] === EMPTY) {
-        lab[k] = OUTSIDE;
-        q[qt++] = k;
-      }
-    };
     for (let x = 0; x < nx; x++) {
-      seed(x);
-      seed((ny - 1) * nx + x);
+      lab[x] = OUTSIDE;
+      lab[(ny - 1) * nx + x] = OUTSIDE;
     }
     for (let y = 0; y < ny; y++) {
-      seed(y * nx);
-      seed(y * nx + nx - 1);
+      lab[y * nx] = OUTSIDE;
+      lab[y * nx + nx - 1] = OUTSIDE;
     }
+    // Seed from the second ring, then flood (4-connected).
+    for (let x = 1; x < nx - 1; x++) {
+      const a = nx + x;
+      const b = (ny - 2) * nx + x;
+      if (lab[a] === EMPTY) {
+        lab[a] = OUTSIDE;
+        q[qt++] = a;
+      }
+      if (lab[b] === EMPTY) {
+        lab[b] = OUTSIDE;
+        q[qt++] = b;
+      }
+    }
+    for (let y = 2; y < ny - 2; y++) {
+      const a = y * nx + 1;
+      const b = y * nx + nx - 2;
+      if (lab[a] === EMPTY) {
+        lab[a] = OUTSIDE;
+        q[qt++] = a;
+      }
+      if (lab[b] === EMPTY) {
+        lab[b] = OUTSIDE;
+        q[qt++] = b;
+      }
+    }
+    let qh = 0;
     while (qh < qt) {
       const k = q[qh++];
-      const x = k % nx;
-      if (x > 0) seed(k - 1);
-      if (x < nx - 1) seed(k + 1);
-      if (k >= nx) seed(k - nx);
-      if (k < n - nx) seed(k + nx);
+      let m = k - 1;
+      if (lab[m] === EMPTY) {
+        lab[m] = OUTSIDE;
+        q[qt++] = m;
+      }
+      m = k + 1;
+      if (lab[m] === EMPTY) {
+        lab[m] = OUTSIDE;
+        q[qt++] = m;
+      }
+      m = k - nx;
+      if (lab[m] === EMPTY) {
+        lab[m] = OUTSIDE;
+        q[qt++] = m;
+      }
+      m = k + nx;
+      if (lab[m] === EMPTY) {
+        lab[m] = OUTSIDE;
+        q[qt++] = m;
+      }
     }
-    // Remaining empty components: one BFS each, then relabel.
+    // Remaining empty components: one flood each, then relabel.
     let holes = 0;
     let gaps = 0;
     const TMP = 250;
-    for (let s = 0; s < n; s++) {
+    const end = (ny - 1) * nx;
+    for (let s = nx; s < end; s++) {
       if (lab[s] !== EMPTY) continue;
       qh = 0;
       qt = 0;
@@ -165,14 +200,8 @@ export class LayerGrid {
       let borderOther = 0;
       while (qh < qt) {
         const k = q[qh++];
-        const x = k % nx;
         for (let d = 0; d < 4; d++) {
-          let m: number;
-          if (d === 0) m = x > 0 ? k - 1 : -1;
-          else if (d === 1) m = x < nx - 1 ? k + 1 : -1;
-          else if (d === 2) m = k >= nx ? k - nx : -1;
-          else m = k < n - nx ? k + nx : -1;
-          if (m < 0) continue;
+          const m = d === 0 ? k - 1 : d === 1 ? k + 1 : d === 2 ? k - nx : k + nx;
           const l = lab[m];
           if (l === EMPTY) {
             lab[m] = TMP;
@@ -201,38 +230,73 @@ export class LayerGrid {
     const dist = this.dist;
     const BIG = 65000;
     for (let k = 0, n = nx * ny; k < n; k++) dist[k] = lab[k] === OUTSIDE || lab[k] === HOLE ? 0 : BIG;
-    // Forward pass.
-    for (let y = 0; y < ny; y++) {
-      const row = y * nx;
-      for (let x = 0; x < nx; x++) {
-        const k = row + x;
+    // The outer ring is OUTSIDE (0), so interior cells have all 8 neighbours in range.
+    for (let y = 1; y < ny - 1; y++) {
+      for (let k = y * nx + 1, e = y * nx + nx - 1; k < e; k++) {
         let d = dist[k];
         if (d === 0) continue;
-        if (x > 0 && dist[k - 1] + D_SIDE < d) d = dist[k - 1] + D_SIDE;
-        if (y > 0) {
-          const u = k - nx;
-          if (dist[u] + D_SIDE < d) d = dist[u] + D_SIDE;
-          if (x > 0 && dist[u - 1] + D_DIAG < d) d = dist[u - 1] + D_DIAG;
-          if (x < nx - 1 && dist[u + 1] + D_DIAG < d) d = dist[u + 1] + D_DIAG;
-        }
+        const u = k - nx;
+        let t = dist[k - 1] + D_SIDE;
+        if (t < d) d = t;
+        t = dist[u] + D_SIDE;
+        if (t < d) d = t;
+        t = dist[u - 1] + D_DIAG;
+        if (t < d) d = t;
+        t = dist[u + 1] + D_DIAG;
+        if (t < d) d = t;
         dist[k] = d;
       }
     }
-    // Backward pass.
-    for (let y = ny - 1; y >= 0; y--) {
-      const row = y * nx;
-      for (let x = nx - 1; x >= 0; x--) {
-        const k = row + x;
+    for (let y = ny - 2; y >= 1; y--) {
+      for (let k = y * nx + nx - 2, e = y * nx; k > e; k--) {
         let d = dist[k];
         if (d === 0) continue;
-        if (x < nx - 1 && dist[k + 1] + D_SIDE < d) d = dist[k + 1] + D_SIDE;
-        if (y < ny - 1) {
-          const b = k + nx;
-          if (dist[b] + D_SIDE < d) d = dist[b] + D_SIDE;
-          if (x < nx - 1 && dist[b + 1] + D_DIAG < d) d = dist[b + 1] + D_DIAG;
-          if (x > 0 && dist[b - 1] + D_DIAG < d) d = dist[b - 1] + D_DIAG;
-        }
+        const b = k + nx;
+        let t = dist[k + 1] + D_SIDE;
+        if (t < d) d = t;
+        t = dist[b] + D_SIDE;
+        if (t < d) d = t;
+        t = dist[b + 1] + D_DIAG;
+        if (t < d) d = t;
+        t = dist[b - 1] + D_DIAG;
+        if (t < d) d = t;
         dist[k] = d;
+      }
+    }
+  }
+
+  /**
+   * Per block of k × k cells: cells in F, cells deeper than deepUnits (chamfer units), and the
+   * volume dropped in those deep cells. Writes 3 numbers per block into out (row-major blocks).
+   */
+  blockStats(k: number, deepUnits: number, out: Float64Array): void {
+    const nx = this.nx;
+    const nbx = Math.floor(nx / k);
+    const nby = Math.floor(this.ny / k);
+    const lab = this.label;
+    const dist = this.dist;
+    const vol = this.volume;
+    for (let by = 0; by < nby; by++) {
+      for (let bx = 0; bx < nbx; bx++) {
+        let fCells = 0;
+        let dCells = 0;
+        let dVol = 0;
+        for (let yy = 0; yy < k; yy++) {
+          let kk = (by * k + yy) * nx + bx * k;
+          for (let xx = 0; xx < k; xx++, kk++) {
+            const l = lab[kk];
+            if (l === OUTSIDE || l === HOLE) continue;
+            fCells++;
+            if (dist[kk] > deepUnits) {
+              dCells++;
+              dVol += vol[kk];
+            }
+          }
+        }
+        const o = (by * nbx + bx) * 3;
+        out[o] = fCells;
+        out[o + 1] = dCells;
+        out[o + 2] = dVol;
       }
     }
   }
