@@ -51,6 +51,20 @@ export const AUDIT_ACTIONS = [
   'user.verify',
   'user.password_reset',
   'user.roles_changed',
+  'season.created',
+  'season.updated',
+  'season.test_piece_uploaded',
+  'season.class_created',
+  'season.class_updated',
+  'season.class_deleted',
+  'season.classes_reordered',
+  'season.rules_saved',
+  'season.reinspect_requested',
+  'season.state_changed',
+  'season.judge_appointed',
+  'season.judge_removed',
+  'season.judge_invited',
+  'season.judge_invitation_accepted',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

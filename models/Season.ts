@@ -19,6 +19,12 @@ export class Season extends Model<InferAttributes<Season>, InferCreationAttribut
   /** Verifying reviews an entry needs before it counts. */
   declare verificationsRequired: CreationOptional<number>;
   declare rulesFrozenAt: Date | null;
+  /** What each required photo must show, in the organizer's words (e.g. "bridge window close-up"). */
+  declare photoKinds: CreationOptional<string[]>;
+  /** Set when the season went final: its standings no longer change. */
+  declare standingsFrozenAt: CreationOptional<Date | null>;
+  /** Last time an organizer asked to re-inspect every entry (after a rulebook change). */
+  declare reinspectRequestedAt: CreationOptional<Date | null>;
   declare createdById: ForeignKey<number> | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -41,6 +47,9 @@ export class Season extends Model<InferAttributes<Season>, InferCreationAttribut
         entryLimit: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 3 },
         verificationsRequired: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         rulesFrozenAt: { type: DataTypes.DATE, allowNull: true },
+        photoKinds: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
+        standingsFrozenAt: { type: DataTypes.DATE, allowNull: true },
+        reinspectRequestedAt: { type: DataTypes.DATE, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

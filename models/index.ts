@@ -19,15 +19,19 @@ import { Inspection } from './Inspection';
 import { Review } from './Review';
 import { AuditEvent } from './AuditEvent';
 import { SentMail } from './SentMail';
+import { SeasonSubscription } from './SeasonSubscription';
+import { JudgeInvitation } from './JudgeInvitation';
 
 export {
   User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
+  SeasonSubscription, JudgeInvitation,
 };
 
 const ALL = [
   User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
+  SeasonSubscription, JudgeInvitation,
 ];
 
 function associate() {
@@ -67,6 +71,11 @@ function associate() {
   Review.belongsTo(User, { as: 'judge', foreignKey: 'judgeId' });
 
   AuditEvent.belongsTo(User, { as: 'actor', foreignKey: 'actorId' });
+
+  SeasonSubscription.belongsTo(Season, { foreignKey: 'seasonId' });
+  SeasonSubscription.belongsTo(User, { foreignKey: 'userId' });
+  JudgeInvitation.belongsTo(Season, { foreignKey: 'seasonId' });
+  JudgeInvitation.belongsTo(User, { as: 'invitedBy', foreignKey: 'invitedById' });
 }
 
 export function initModels() {
