@@ -65,6 +65,8 @@ export const AUDIT_ACTIONS = [
   'season.judge_removed',
   'season.judge_invited',
   'season.judge_invitation_accepted',
+  'review.decided',
+  'evidence.viewed',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 
