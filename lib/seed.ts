@@ -30,7 +30,7 @@ const FROSTBITE_RULES: RuleInput[] = [
   { metric: 'walls', comparator: 'eq', value: 2, severity: 'blocking' },
   { metric: 'top_layers', comparator: 'eq', value: 4, severity: 'blocking' },
   { metric: 'bottom_layers', comparator: 'eq', value: 4, severity: 'blocking' },
-  { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, tolerance: 0.001, severity: 'blocking' },
+  { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, severity: 'blocking' },
   { metric: 'objects', comparator: 'eq', value: 1, severity: 'blocking' },
   { metric: 'scale_percent', comparator: 'between', value: 99, valueMax: 101, severity: 'blocking' },
   { metric: 'feed_override_percent_max', comparator: 'lte', value: 100, severity: 'blocking' },
