@@ -67,6 +67,15 @@ export const AUDIT_ACTIONS = [
   'season.judge_invitation_accepted',
   'review.decided',
   'evidence.viewed',
+  'machine.created',
+  'machine.updated',
+  'machine.retired',
+  'machine.extrusion_test_recorded',
+  'entry.created',
+  'entry.files_replaced',
+  'entry.submitted',
+  'entry.withdrawn',
+  'entry.reinspected',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 
