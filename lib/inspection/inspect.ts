@@ -277,7 +277,8 @@ function settingsEvidence(d: DeclaredSettings, t: MeasuredSettings | null, m: Me
   const inner = m.features.find((f) => f.feature === 'inner-wall');
   const wallWidth = outer?.lineWidthMeanMm ?? inner?.lineWidthMeanMm ?? null;
   const none = 'toolpath settings analysis was not run';
-  const fig = (key: keyof Omit<MeasuredSettings, 'layers' | 'warnings'>) =>
+  type FigureKey = 'walls' | 'top_layers' | 'bottom_layers' | 'infill_percent' | 'layer_height_mm' | 'first_layer_height_mm' | 'line_width_mm' | 'nozzle_mm';
+  const fig = (key: FigureKey) =>
     t ? { value: t[key].value, detail: t[key].detail } : { value: null, detail: none };
   const v = d.values;
   const lh = fig('layer_height_mm');

@@ -60,6 +60,9 @@ const GRID_CELL_MM = 1;
 const GRID_N = 2048;
 const GRID_ORIGIN_MM = -1024;
 const MAX_LAYERS = 100000;
+/** Line-width histogram: 0.005 mm bins up to 5 mm. */
+const WIDTH_BIN_MM = 0.005;
+const WIDTH_BINS = 1000;
 /** Z values closer than this (mm) are the same layer. */
 const Z_KEY_PER_MM = 1000;
 
@@ -223,6 +226,11 @@ export class Measurements implements MotionSink, PlannedMoveSink {
   private readonly fVMin = new Float64Array(N_FEATURES).fill(Infinity);
   private readonly fVMax = new Float64Array(N_FEATURES).fill(-Infinity);
   private labelledMoves = 0;
+  /** Length-weighted histogram of line widths (skirt left out), for a robust typical width. */
+  private readonly widthHist = new Float64Array(WIDTH_BINS);
+  private readonly widthHistSum = new Float64Array(WIDTH_BINS);
+  private lastFeature: FeatureKind | null = null;
+  private lastFeatureIndex = N_FEATURES - 1;
 
   // Geometry.
   private readonly boxLabelled = emptyBox(); // labelled, not skirt/support
@@ -231,8 +239,9 @@ export class Measurements implements MotionSink, PlannedMoveSink {
   private readonly boxPre = emptyBox(); // provisional record-0 box
   private readonly boxAll = emptyBox();
   private grid: Uint8Array | null = null;
-  private gMinI = GRID_N;
-  private gMinJ = GRID_N;
+  // Grid extent in cells, set from the boxes when objects are counted.
+  private gMinI = 0;
+  private gMinJ = 0;
   private gMaxI = -1;
   private gMaxJ = -1;
 
@@ -327,7 +336,11 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     }
     const li = this.curLayer;
     if (li >= 0) this.layerVol[li] += vol;
-    const fi = featureIndex(s.feature);
+    if (s.feature !== this.lastFeature) {
+      this.lastFeature = s.feature;
+      this.lastFeatureIndex = featureIndex(s.feature);
+    }
+    const fi = this.lastFeatureIndex;
     if (s.feature !== null) this.labelledMoves++;
     this.fLen[fi] += L;
     this.fVol[fi] += vol;
@@ -344,6 +357,12 @@ export class Measurements implements MotionSink, PlannedMoveSink {
           this.fWidthLen[fi] += L;
           if (w < this.fWMin[fi]) this.fWMin[fi] = w;
           if (w > this.fWMax[fi]) this.fWMax[fi] = w;
+          if (s.feature !== 'skirt') {
+            let b = (w / WIDTH_BIN_MM) | 0;
+            if (b >= WIDTH_BINS) b = WIDTH_BINS - 1;
+            this.widthHist[b] += L;
+            this.widthHistSum[b] += w * L;
+          }
         }
       }
     }
@@ -405,27 +424,38 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     this.curLayer = n;
   }
 
-  /** Marks the 1 mm grid cells an extruding move passes through (sampled every half cell). */
+  /**
+   * Marks the 1 mm grid cells an extruding move passes through, sampled once per cell length: the
+   * cells of consecutive samples touch at least at a corner, so 8-neighbour groups stay connected.
+   */
   private mark(s: Segment, bit: number): void {
     let g = this.grid;
     if (g === null) g = this.grid = new Uint8Array(GRID_N * GRID_N);
-    const steps = Math.ceil(s.lengthMm / (GRID_CELL_MM / 2));
     const inv = 1 / GRID_CELL_MM;
-    const n = steps > 0 ? steps : 1;
-    const dx = (s.x1 - s.x0) / n;
-    const dy = (s.y1 - s.y0) / n;
+    const x0 = (s.x0 - GRID_ORIGIN_MM) * inv;
+    const y0 = (s.y0 - GRID_ORIGIN_MM) * inv;
+    const x1 = (s.x1 - GRID_ORIGIN_MM) * inv;
+    const y1 = (s.y1 - GRID_ORIGIN_MM) * inv;
+    const n = Math.ceil(s.lengthMm * inv) | 0;
+    const dx = n > 0 ? (x1 - x0) / n : 0;
+    const dy = n > 0 ? (y1 - y0) / n : 0;
+    // Both ends inside the grid: no clamping in the loop, and truncation is floor for positives.
+    const inside = x0 >= 0 && y0 >= 0 && x1 >= 0 && y1 >= 0 && x0 < GRID_N && x1 < GRID_N && y0 < GRID_N && y1 < GRID_N;
+    let last = -1;
     for (let k = 0; k <= n; k++) {
-      let i = Math.floor((s.x0 + dx * k - GRID_ORIGIN_MM) * inv);
-      let j = Math.floor((s.y0 + dy * k - GRID_ORIGIN_MM) * inv);
-      if (i < 0) i = 0;
-      else if (i >= GRID_N) i = GRID_N - 1;
-      if (j < 0) j = 0;
-      else if (j >= GRID_N) j = GRID_N - 1;
-      g[j * GRID_N + i] |= bit;
-      if (i < this.gMinI) this.gMinI = i;
-      if (i > this.gMaxI) this.gMaxI = i;
-      if (j < this.gMinJ) this.gMinJ = j;
-      if (j > this.gMaxJ) this.gMaxJ = j;
+      let i: number;
+      let j: number;
+      if (inside) {
+        i = (x0 + dx * k) | 0;
+        j = (y0 + dy * k) | 0;
+      } else {
+        i = Math.min(GRID_N - 1, Math.max(0, Math.floor(x0 + dx * k)));
+        j = Math.min(GRID_N - 1, Math.max(0, Math.floor(y0 + dy * k)));
+      }
+      const c = j * GRID_N + i;
+      if (c === last) continue;
+      last = c;
+      g[c] |= bit;
     }
   }
 
@@ -466,6 +496,18 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       }
     }
     return count;
+  }
+
+  /** Length-weighted median line width (mean width inside the median 0.005 mm bin), or null without planar extrusion. */
+  private medianWidthMm(): number | null {
+    const total = sum(this.widthHist);
+    if (!(total > 0)) return null;
+    let acc = 0;
+    for (let b = 0; b < WIDTH_BINS; b++) {
+      acc += this.widthHist[b];
+      if (acc >= total / 2) return this.widthHistSum[b] / this.widthHist[b];
+    }
+    return null;
   }
 
   result(): MeasureResult {
@@ -568,16 +610,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     let edgeW: number | null = null;
     const ow = features.find((f) => f.feature === 'outer-wall');
     if (ow && ow.lineWidthMeanMm !== null) edgeW = ow.lineWidthMeanMm;
-    else {
-      let sw = 0;
-      let sl = 0;
-      for (let i = 0; i < N_FEATURES; i++) {
-        if (i === featureIndex('skirt')) continue;
-        sw += this.fWidthSum[i];
-        sl += this.fWidthLen[i];
-      }
-      if (sl > 0) edgeW = sw / sl;
-    }
+    else edgeW = this.medianWidthMm();
     let sizeMm: { x: number; y: number; z: number } | null = null;
     if (box) {
       const wAdd = edgeW ?? 0;
@@ -585,7 +618,16 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       sizeDetail += edgeW !== null ? `; X/Y include one ${edgeW.toFixed(3)} mm line width (centre line to edge on both sides)` : '';
     }
     let objects = 0;
-    if (this.grid) {
+    const ext = emptyBox();
+    mergeBox(ext, this.boxPre);
+    mergeBox(ext, this.boxFirst);
+    mergeBox(ext, this.boxLater);
+    if (this.grid && ext[0] <= ext[3]) {
+      const cell = (v: number) => Math.min(GRID_N - 1, Math.max(0, Math.floor((v - GRID_ORIGIN_MM) / GRID_CELL_MM)));
+      this.gMinI = cell(ext[0]);
+      this.gMinJ = cell(ext[1]);
+      this.gMaxI = cell(ext[3]);
+      this.gMaxJ = cell(ext[4]);
       const bits = hasLater ? CELL_LATER : this.preambleDecided ? CELL_FIRST : CELL_PREAMBLE | CELL_FIRST;
       objects = this.countObjects(bits);
     }
@@ -638,6 +680,12 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       time: { estimatedS: this.planner.totalS, commandedS: this.commandedS, dwellS: this.planner.dwellS },
     };
   }
+}
+
+function sum(xs: Float64Array): number {
+  let t = 0;
+  for (let i = 0; i < xs.length; i++) t += xs[i];
+  return t;
 }
 
 function mergeBox(into: Float64Array, from: Float64Array): void {

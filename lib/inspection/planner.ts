@@ -142,6 +142,8 @@ export class MotionPlanner {
   private ay = 0;
   private az = 0;
   private ae = 0;
+  /** False when no per-axis feed or acceleration cap is finite (skips that arithmetic). */
+  private axisCaps = true;
 
   /** Total planned time, s. */
   totalS = 0;
@@ -188,6 +190,16 @@ export class MotionPlanner {
     this.ay = m?.maxAccelYMms2 ?? b.maxAccelYMms2;
     this.az = m?.maxAccelZMms2 ?? b.maxAccelZMms2;
     this.ae = m?.maxAccelEMms2 ?? b.maxAccelEMms2;
+    this.axisCaps =
+      this.vx !== Infinity ||
+      this.vy !== Infinity ||
+      this.vz !== Infinity ||
+      this.ve !== Infinity ||
+      this.vMax !== Infinity ||
+      this.ax !== Infinity ||
+      this.ay !== Infinity ||
+      this.az !== Infinity ||
+      this.ae !== Infinity;
   }
 
   /** Adds one move. flowMm3s and layerIndex are passed through to the sink with its final duration. */
@@ -206,16 +218,18 @@ export class MotionPlanner {
       const auy = uy < 0 ? -uy : uy;
       const auz = uz < 0 ? -uz : uz;
       const aue = ue < 0 ? -ue : ue;
-      if (aux * feed > this.vx) feed = this.vx / aux;
-      if (auy * feed > this.vy) feed = this.vy / auy;
-      if (auz * feed > this.vz) feed = this.vz / auz;
-      if (aue * feed > this.ve) feed = this.ve / aue;
-      if (feed > this.vMax) feed = this.vMax;
       let a = s.eMm > 0 ? this.aPrint : this.aTravel;
-      if (aux * a > this.ax) a = this.ax / aux;
-      if (auy * a > this.ay) a = this.ay / auy;
-      if (auz * a > this.az) a = this.az / auz;
-      if (aue * a > this.ae) a = this.ae / aue;
+      if (this.axisCaps) {
+        if (aux * feed > this.vx) feed = this.vx / aux;
+        if (auy * feed > this.vy) feed = this.vy / auy;
+        if (auz * feed > this.vz) feed = this.vz / auz;
+        if (aue * feed > this.ve) feed = this.ve / aue;
+        if (feed > this.vMax) feed = this.vMax;
+        if (aux * a > this.ax) a = this.ax / aux;
+        if (auy * a > this.ay) a = this.ay / auy;
+        if (auz * a > this.az) a = this.az / auz;
+        if (aue * a > this.ae) a = this.ae / aue;
+      }
       const vn2 = feed * feed;
       let vj2: number;
       if (this.prevKind === 1) vj2 = this.junctionV2(ux, uy, uz, ue, feed, a);
@@ -234,7 +248,8 @@ export class MotionPlanner {
       if (feed > this.ve) feed = this.ve;
       let a = this.aRetract;
       if (a > this.ae) a = this.ae;
-      const j = this.jerkE;
+      // From a standstill an E-only move may start at the E jerk in classic-jerk mode; JD starts at 0.
+      const j = this.jerkX === null ? 0 : this.jerkE;
       const vj = j < feed ? j : feed;
       this.enqueue(eLen, a, feed * feed, this.prevKind === 1 ? 0 : vj * vj, flowMm3s, layerIndex);
       this.prevKind = 2;
