@@ -61,10 +61,10 @@ export interface ToolpathSettingsOptions {
 }
 
 /** Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source). */
-const STANDARD_NOZZLES_MM = [0.15, 0.2, 0.25, 0.3, 0.35, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2];
+const STANDARD_NOZZLES_MM = [0.2, 0.25, 0.3, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2];
 /**
- * Slicer defaults put wall lines at 100 % (CuraEngine) to 112.5 % (PrusaSlicer) of the nozzle; 1.1
- * sits between them (common practice, no source).
+ * Fallback width when a layer gives none: slicer defaults put wall lines at 100 % (CuraEngine) to
+ * 112.5 % (PrusaSlicer) of the nozzle (common practice, no source).
  */
 const WIDTH_PER_NOZZLE = 1.1;
 
@@ -152,6 +152,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   let refWidthMm = 0;
   /** Width histogram of loop segments, 0.005 mm bins, length-weighted. */
   const loopWidthHist = new Float64Array(600);
+  /** Same for the extrusion spacing A ÷ h (the rectangle-equivalent width). */
+  const loopSpacingHist = new Float64Array(600);
 
   function ensureCapacity(): void {
     if (nSeg * 5 + 5 > seg.length) {
@@ -337,7 +339,10 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const oy = Math.floor(minY / B) * B - B;
     const spanX = Math.ceil((maxX - ox) / B) * B + B;
     const spanY = Math.ceil((maxY - oy) / B) * B + B;
-    let k = Math.max(1, Math.round(B / (refWidthMm / CELLS_PER_WIDTH)));
+    // Cell size from this layer's own typical width (the first layer often differs from the rest).
+    if (medianWidth === 0) medianWidth = layerMedianWidth(h);
+    if (!(medianWidth > 0.05)) medianWidth = refWidthMm;
+    let k = Math.max(1, Math.round(B / (Math.max(medianWidth, 0.5 * refWidthMm) / CELLS_PER_WIDTH)));
     while (k > 1 && (spanX / B) * k * ((spanY / B) * k) > MAX_GRID_CELLS) k--;
     const nbx = Math.round(spanX / B);
     const nby = Math.round(spanY / B);
@@ -366,8 +371,6 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     }
     spentCells += cells;
     analysedLayers++;
-    if (medianWidth === 0) medianWidth = layerMedianWidth(h);
-    if (!(medianWidth > 0.05)) medianWidth = refWidthMm;
     // Chain closure → loops. A loop returns within 2 widths of its start and encloses some area.
     const isLoop = new Uint8Array(nChains);
     for (let c = 0; c < nChains; c++) {
@@ -411,6 +414,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     // (outer wall = band 1). Walls on the layer = bands 1…K all present.
     const loopBands: number[] = [];
     const widthHistLayer = new Float64Array(600);
+    const spacingHistLayer = new Float64Array(600);
     let spacingSum = 0;
     let spacingLen = 0;
     const bandsSeen = new Uint8Array(16);
@@ -431,6 +435,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
         spacingLen += len;
         const bw = Math.min(599, Math.max(0, Math.round(widthOf(A, h) / 0.005)));
         widthHistLayer[bw] += len;
+        spacingHistLayer[Math.min(599, Math.max(0, Math.round(A / h / 0.005)))] += len;
       }
       // About 24 probes per loop, at segment midpoints spread along it.
       const every = loopLen / 24;
@@ -471,7 +476,10 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       rec.walls = K;
     }
     if (rec.walls !== null && rec.walls > 0) {
-      for (let b = 0; b < 600; b++) loopWidthHist[b] += widthHistLayer[b];
+      for (let b = 0; b < 600; b++) {
+        loopWidthHist[b] += widthHistLayer[b];
+        loopSpacingHist[b] += spacingHistLayer[b];
+      }
     }
 
     // Infill region: deeper than the innermost wall's inner edge plus 1.5 widths.
@@ -517,7 +525,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   }
 
   function result(): MeasuredSettings {
-    const out = summarise(layers, layerCount, columns, loopWidthHist, warnings);
+    const out = summarise(layers, layerCount, columns, loopWidthHist, loopSpacingHist, warnings);
     out.analysedLayers = analysedLayers;
     if (skippedLayers > 0) {
       const note = ` Large file: ${analysedLayers} of ${analysedLayers + skippedLayers} layers analysed in full (windows of ${SAMPLE_WINDOW_LAYERS}).`;
@@ -568,7 +576,7 @@ function modeOf(m: Map<number, number>): { value: number; count: number; total: 
 
 const pct = (a: number, b: number) => `${Math.round((a / b) * 100)} %`;
 
-function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, warnings: string[]): MeasuredSettings {
+function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, loopSpacingHist: Float64Array, warnings: string[]): MeasuredSettings {
   const unknown = (detail: string): MeasuredFigure => ({ value: null, detail });
   const out: MeasuredSettings = {
     walls: unknown('No layers with closed loops.'),
@@ -645,9 +653,12 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
   const lw = histMedian(loopWidthHist, 0.005);
   if (lw > 0) {
     out.line_width_mm = { value: Math.round(lw * 1000) / 1000, detail: 'Median wall-loop width from the flow model (rectangle with round ends).' };
-    const guess = lw / WIDTH_PER_NOZZLE;
-    const nozzle = STANDARD_NOZZLES_MM.reduce((a, b) => (Math.abs(b - guess) < Math.abs(a - guess) ? b : a));
-    out.nozzle_mm = { value: nozzle, detail: `Estimate: wall width ${lw.toFixed(3)} mm ÷ ${WIDTH_PER_NOZZLE}, snapped to a standard nozzle size.` };
+    // Nozzle: the extrusion spacing A ÷ h sits at 95–110 % of the nozzle for slicer defaults
+    // (PrusaSlicer 0.45 mm lines → 0.41 mm spacing on a 0.4 nozzle; CuraEngine 0.4 → 0.4); snap it
+    // to the nearest standard size by ratio (common practice, no source).
+    const spacing = histMedian(loopSpacingHist, 0.005);
+    const nozzle = STANDARD_NOZZLES_MM.reduce((a, b) => (Math.abs(Math.log(spacing / b)) < Math.abs(Math.log(spacing / a)) ? b : a));
+    out.nozzle_mm = { value: nozzle, detail: `Estimate: wall extrusion spacing ${spacing.toFixed(3)} mm (width ${lw.toFixed(3)} mm) snapped to the nearest standard nozzle size; slicers let line width differ from the nozzle, so treat as a hint.` };
   }
   if (columns.overflowed) warnings.push('Too many XY columns to follow; top/bottom counts use part of the bed.');
   return out;
