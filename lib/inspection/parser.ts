@@ -134,7 +134,13 @@ for (let i = 0; i < POW10.length; i++) POW10[i] = Math.pow(10, i);
 const MAX_COORD_MM = 1e5;
 const MAX_E_MM = 1e8;
 const MAX_FEED_MM_MIN = 1e6;
+/** Slowest usable feed, mm/min; anything slower is treated as a typo (and would overflow times). */
+const MIN_FEED_MM_MIN = 0.01;
 const MAX_LIMIT = 1e7;
+/** Smallest usable acceleration, mm/s². */
+const MIN_ACCEL = 1;
+/** Smallest usable max-feed limit, mm/s. */
+const MIN_FEED_LIMIT_MMS = 0.01;
 /** Most chords one arc may be split into (bounds work on absurd radii). */
 const MAX_ARC_CHORDS = 10000;
 
@@ -381,11 +387,11 @@ export class GcodeParser implements LineSink {
       if (c === CR) {
         // A CR inside a line is a line break (lone-CR files); a trailing CR of CRLF ends nothing new.
         this.execute();
+        this.beginStatement();
         i++;
         if (i < end) {
           this.lineNo++;
           this.stats.lines++;
-          this.beginStatement();
           stmtStart = i;
         }
         continue;
@@ -628,7 +634,7 @@ export class GcodeParser implements LineSink {
       const len = args.get('RETRACT_LENGTH');
       const spd = args.get('RETRACT_SPEED');
       if (len !== undefined && len >= 0 && len < 100) this.fwRetractMm = len;
-      if (spd !== undefined && spd > 0 && spd < 1000) this.fwRetractFeedMms = spd;
+      if (spd !== undefined && spd >= MIN_FEED_LIMIT_MMS && spd < 1000) this.fwRetractFeedMms = spd;
     } else {
       this.countUnknown(name);
     }
@@ -643,13 +649,13 @@ export class GcodeParser implements LineSink {
     const vel = args.get('VELOCITY');
     const a2d = args.get('ACCEL_TO_DECEL');
     const mcr = args.get('MINIMUM_CRUISE_RATIO');
-    if (accel !== undefined && this.sane('ACCEL', accel, 0, MAX_LIMIT)) {
+    if (accel !== undefined && this.sane('ACCEL', accel, MIN_ACCEL, MAX_LIMIT)) {
       m.accelPrintMms2 = accel;
       m.accelTravelMms2 = accel;
     }
     if (scv !== undefined && this.sane('SQUARE_CORNER_VELOCITY', scv, -1, 1e4)) m.squareCornerVelocityMms = scv;
-    if (vel !== undefined && this.sane('VELOCITY', vel, 0, 1e5)) m.maxVelocityMms = vel;
-    if (a2d !== undefined && this.sane('ACCEL_TO_DECEL', a2d, 0, MAX_LIMIT)) m.accelToDecelMms2 = a2d;
+    if (vel !== undefined && this.sane('VELOCITY', vel, MIN_FEED_LIMIT_MMS, 1e5)) m.maxVelocityMms = vel;
+    if (a2d !== undefined && this.sane('ACCEL_TO_DECEL', a2d, MIN_ACCEL, MAX_LIMIT)) m.accelToDecelMms2 = a2d;
     if (mcr !== undefined && this.sane('MINIMUM_CRUISE_RATIO', mcr, -1, 1)) m.minimumCruiseRatio = mcr;
     m.setBy.add('SET_VELOCITY_LIMIT');
     m.version++;
@@ -786,14 +792,14 @@ export class GcodeParser implements LineSink {
       case 207: {
         // Marlin M207: S length (mm), F feed (mm/min), Z lift.
         this.fwRetractMm = this.limit('M207', L_S, -1e-9, 100) ?? this.fwRetractMm;
-        const f = this.limit('M207', L_F, 0, MAX_FEED_MM_MIN);
+        const f = this.limit('M207', L_F, MIN_FEED_MM_MIN, MAX_FEED_MM_MIN);
         if (f !== null) this.fwRetractFeedMms = f / 60;
         return;
       }
       case 208: {
         // Marlin M208: S extra recover length (mm), F recover feed (mm/min).
         this.fwRecoverExtraMm = this.limit('M208', L_S, -100, 100) ?? this.fwRecoverExtraMm;
-        const f = this.limit('M208', L_F, 0, MAX_FEED_MM_MIN);
+        const f = this.limit('M208', L_F, MIN_FEED_MM_MIN, MAX_FEED_MM_MIN);
         if (f !== null) this.fwRecoverFeedMms = f / 60;
         return;
       }
@@ -839,7 +845,7 @@ export class GcodeParser implements LineSink {
   private setSpeedFactor(): void {
     if (this.has(L_S)) {
       const s = this.num(L_S);
-      if (s === s && this.sane('M220 S', s, 0, 10000)) {
+      if (s === s && this.sane('M220 S', s, 0.999, 10000)) {
         this.speedFactor = s / 100;
         recordOverride(this.stats.speedFactor, s, this.lineNo);
       }
@@ -874,14 +880,14 @@ export class GcodeParser implements LineSink {
   private m204(): void {
     const m = this.machine;
     // Marlin M204: P printing, R retract, T travel; S sets printing and travel (legacy). Klipper: S, or min(P,T).
-    const s = this.limit('M204', L_S, 0, MAX_LIMIT);
+    const s = this.limit('M204', L_S, MIN_ACCEL, MAX_LIMIT);
     if (s !== null) {
       m.accelPrintMms2 = s;
       m.accelTravelMms2 = s;
     }
-    m.accelPrintMms2 = this.limit('M204', L_P, 0, MAX_LIMIT) ?? m.accelPrintMms2;
-    m.accelRetractMms2 = this.limit('M204', L_R, 0, MAX_LIMIT) ?? m.accelRetractMms2;
-    m.accelTravelMms2 = this.limit('M204', L_T, 0, MAX_LIMIT) ?? m.accelTravelMms2;
+    m.accelPrintMms2 = this.limit('M204', L_P, MIN_ACCEL, MAX_LIMIT) ?? m.accelPrintMms2;
+    m.accelRetractMms2 = this.limit('M204', L_R, MIN_ACCEL, MAX_LIMIT) ?? m.accelRetractMms2;
+    m.accelTravelMms2 = this.limit('M204', L_T, MIN_ACCEL, MAX_LIMIT) ?? m.accelTravelMms2;
     m.setBy.add('M204');
     m.version++;
   }
@@ -901,10 +907,10 @@ export class GcodeParser implements LineSink {
   private m201(): void {
     const m = this.machine;
     // Marlin M201: per-axis max acceleration, mm/s².
-    m.maxAccelXMms2 = this.limit('M201', L_X, 0, MAX_LIMIT) ?? m.maxAccelXMms2;
-    m.maxAccelYMms2 = this.limit('M201', L_Y, 0, MAX_LIMIT) ?? m.maxAccelYMms2;
-    m.maxAccelZMms2 = this.limit('M201', L_Z, 0, MAX_LIMIT) ?? m.maxAccelZMms2;
-    m.maxAccelEMms2 = this.limit('M201', L_E, 0, MAX_LIMIT) ?? m.maxAccelEMms2;
+    m.maxAccelXMms2 = this.limit('M201', L_X, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelXMms2;
+    m.maxAccelYMms2 = this.limit('M201', L_Y, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelYMms2;
+    m.maxAccelZMms2 = this.limit('M201', L_Z, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelZMms2;
+    m.maxAccelEMms2 = this.limit('M201', L_E, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelEMms2;
     m.setBy.add('M201');
     m.version++;
   }
@@ -912,10 +918,10 @@ export class GcodeParser implements LineSink {
   private m203(): void {
     const m = this.machine;
     // Marlin M203: per-axis max feed, mm/s.
-    m.maxFeedXMms = this.limit('M203', L_X, 0, 1e5) ?? m.maxFeedXMms;
-    m.maxFeedYMms = this.limit('M203', L_Y, 0, 1e5) ?? m.maxFeedYMms;
-    m.maxFeedZMms = this.limit('M203', L_Z, 0, 1e5) ?? m.maxFeedZMms;
-    m.maxFeedEMms = this.limit('M203', L_E, 0, 1e5) ?? m.maxFeedEMms;
+    m.maxFeedXMms = this.limit('M203', L_X, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedXMms;
+    m.maxFeedYMms = this.limit('M203', L_Y, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedYMms;
+    m.maxFeedZMms = this.limit('M203', L_Z, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedZMms;
+    m.maxFeedEMms = this.limit('M203', L_E, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedEMms;
     m.setBy.add('M203');
     m.version++;
   }
@@ -1019,7 +1025,7 @@ export class GcodeParser implements LineSink {
     if (this.has(L_F)) {
       const f = this.vals[L_F];
       if (!(f === f)) this.warn('malformed-number', `Line ${this.lineNo}: F has no valid number; ignored.`);
-      else if (!(f > 0) || !(f * this.unitMm <= MAX_FEED_MM_MIN))
+      else if (!(f * this.unitMm >= MIN_FEED_MM_MIN) || !(f * this.unitMm <= MAX_FEED_MM_MIN))
         this.warn('absurd-value', `Line ${this.lineNo}: feed F${f} is not a usable speed; ignored.`);
       else this.feedMmMin = f * this.unitMm;
     }
