@@ -1,0 +1,12 @@
+import { route } from '@/lib/http';
+import { cachedJson, CACHE_LIVE } from '@/lib/standings/http';
+import { entrantRunsInClass, parseId, parseSlug } from '@/lib/standings/views';
+import { rejectQuery } from '@/lib/standings/apiParams';
+
+/** GET …/classes/{class}/entrants/{entrant}/entries — every verified run of one entrant in the class. */
+export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string; entrant: string }> }) => {
+  rejectQuery(req);
+  const p = await ctx.params;
+  const body = await entrantRunsInClass(parseSlug(p.season, 'season'), parseSlug(p.class, 'class'), parseId(p.entrant, 'entrant'));
+  return cachedJson(req, body, CACHE_LIVE);
+});

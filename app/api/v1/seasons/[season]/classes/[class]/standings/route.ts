@@ -1,0 +1,26 @@
+import { route } from '@/lib/http';
+import { cachedJson, cachedResponse, CACHE_FROZEN, CACHE_LIVE } from '@/lib/standings/http';
+import { parseStandingsQuery } from '@/lib/standings/params';
+import { classStandings, parseSlug } from '@/lib/standings/views';
+import { standingsCsv } from '@/lib/standings/csv';
+
+/**
+ * GET /api/v1/seasons/{season}/classes/{class}/standings — ranked rows with page, per_page, sort,
+ * material, motion, q; format=csv exports the whole filtered, sorted view (or one page when paged).
+ */
+export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string }> }) => {
+  const p = await ctx.params;
+  const season = parseSlug(p.season, 'season');
+  const cls = parseSlug(p.class, 'class');
+  const q = parseStandingsQuery(new URL(req.url).searchParams);
+  const csv = q.format === 'csv';
+  const view = await classStandings(season, cls, q, { all: csv && !q.paged });
+  const policy = view.season.frozen ? CACHE_FROZEN : CACHE_LIVE;
+  if (csv) {
+    return cachedResponse(req, standingsCsv(view.page.rows), 'text/csv; charset=utf-8', policy, {
+      'Content-Disposition': `attachment; filename="${season}-${cls}-standings.csv"`,
+    });
+  }
+  const { rows, ...paging } = view.page;
+  return cachedJson(req, { season: view.season, class: view.class, ...paging, rows }, policy);
+});

@@ -1,0 +1,8 @@
+/** Standings: ranking, filters, sorting, paging, CSV, freezing, and the public read models. */
+export * from './params';
+export * from './query';
+export * from './freeze';
+export * from './csv';
+export * from './views';
+export * from './overview';
+export { inspectionSummary, flowSeries, type FlowSeries } from './summary';

@@ -1,0 +1,82 @@
+/** The inspection in plain words for the public entry page, and the flow series for its chart. */
+import { formatDurationMs } from '@/lib/format';
+
+type Json = Record<string, unknown> | null | undefined;
+const obj = (v: unknown): Json => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null);
+const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+const fmt = (v: number, digits: number) => v.toFixed(digits).replace(/\.?0+$/, '') || '0';
+
+export interface FlowSeries {
+  bucket_s: number;
+  points: { t_s: number; max_mm3s: number; mean_mm3s: number }[];
+}
+
+/** The report's flow time series (lib/inspection/report.ts: flow.time_series) as chart points. */
+export function flowSeries(report: Json): FlowSeries | null {
+  const ts = obj(obj(obj(report)?.flow)?.time_series);
+  const bucket = num(ts?.bucket_s);
+  const max = Array.isArray(ts?.max_mm3s) ? (ts!.max_mm3s as unknown[]) : null;
+  const mean = Array.isArray(ts?.mean_mm3s) ? (ts!.mean_mm3s as unknown[]) : null;
+  if (!bucket || bucket <= 0 || !max || !max.length) return null;
+  // A chart needs a few hundred points at most; merge neighbouring buckets, keeping each group's maximum.
+  const step = Math.max(1, Math.ceil(max.length / 600));
+  const points: FlowSeries['points'] = [];
+  for (let i = 0; i < max.length; i += step) {
+    let m = 0;
+    let sum = 0;
+    let n = 0;
+    for (let j = i; j < Math.min(i + step, max.length); j++) {
+      m = Math.max(m, num(max[j]) ?? 0);
+      sum += num(mean?.[j]) ?? 0;
+      n++;
+    }
+    points.push({ t_s: Math.round(i * bucket * 10) / 10, max_mm3s: m, mean_mm3s: Math.round((sum / n) * 1000) / 1000 });
+  }
+  return { bucket_s: bucket * step, points };
+}
+
+/** Sentences a viewer can read without knowing the report's fields. Missing figures are left out. */
+export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rules: { pass: number; fail: number; unknown: number }; flags: number }): string[] {
+  const r = obj(a.report);
+  const out: string[] = [];
+  const layers = obj(r?.layers);
+  const count = num(layers?.count);
+  const height = num(layers?.height_mm);
+  const first = num(layers?.first_height_mm);
+  if (count && height) out.push(`The G-code prints ${count} layers of ${fmt(height, 3)} mm${first ? ` (first layer ${fmt(first, 3)} mm)` : ''}.`);
+  const flow = obj(r?.flow);
+  const peak = num(flow?.peak_mm3s);
+  const p95 = num(flow?.p95_mm3s);
+  const mean = num(flow?.mean_mm3s);
+  if (peak != null) {
+    out.push(
+      `Its fastest extruding move asks the hotend for ${fmt(peak, 1)} mm³/s` +
+        (p95 != null ? `; 95 % of the extruding time stays at or below ${fmt(p95, 1)} mm³/s` : '') +
+        (mean != null ? `, with ${fmt(mean, 1)} mm³/s on average` : '') +
+        '.',
+    );
+  }
+  const fil = obj(r?.filament);
+  const massG = num(fil?.mass_g);
+  const lengthMm = num(fil?.length_mm);
+  if (lengthMm != null) out.push(`It extrudes ${fmt(lengthMm / 1000, 2)} m of filament${massG != null ? ` (about ${fmt(massG, 1)} g)` : ''}.`);
+  const est = num(obj(r?.time)?.estimated_s);
+  if (est != null) {
+    const claimedS = a.claimedTimeMs / 1000;
+    const ratio = claimedS / est;
+    out.push(
+      `Hotlap estimates the file needs ${formatDurationMs(est * 1000)} with acceleration; the claimed time ${formatDurationMs(a.claimedTimeMs)} is ` +
+        (Math.abs(ratio - 1) < 0.005 ? 'the same.' : `${fmt(Math.abs(ratio - 1) * 100, 1)} % ${ratio < 1 ? 'shorter' : 'longer'}.`),
+    );
+  }
+  const total = a.rules.pass + a.rules.fail + a.rules.unknown;
+  if (total) {
+    out.push(
+      a.rules.fail === 0 && a.rules.unknown === 0
+        ? `All ${total} rules of the rulebook pass.`
+        : `${a.rules.pass} of ${total} rules pass${a.rules.fail ? `, ${a.rules.fail} fail` : ''}${a.rules.unknown ? `, ${a.rules.unknown} could not be measured` : ''}; the judges weighed this before verifying.`,
+    );
+  }
+  out.push(a.flags ? `The inspection raised ${a.flags} flag${a.flags === 1 ? '' : 's'} for the judges (listed below).` : 'The inspection raised no flags.');
+  return out;
+}
