@@ -1,3 +1,4 @@
+import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { publicSeason } from '@/lib/seasonView';
 import { StatePill } from '@/components/StatePill';
@@ -34,10 +35,11 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
       )}
       <section>
         <h2 className="mb-3">Classes</h2>
+        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/overview`}>Season overview charts</Link></p>
         <ul className="grid gap-4 sm:grid-cols-3">
           {classes.map((c) => (
             <li key={c.id} className="card">
-              <h3 className="font-semibold">{c.name}</h3>
+              <h3 className="font-semibold"><Link href={`/seasons/${season.slug}/classes/${c.slug}`}>{c.name}</Link></h3>
               <p className="text-sm text-ink-600">{c.description}</p>
               <p className="mt-2 text-xs text-ink-500">
                 {c.nozzleDiametersMm.length ? `Nozzle ${c.nozzleDiametersMm.join(' / ')} mm` : c.nozzleMinMm ? `Nozzle ${c.nozzleMinMm} mm and up` : 'Any nozzle'}
