@@ -10,6 +10,7 @@ export interface NavItem {
 export const NAV: NavItem[] = [
   { href: '/seasons', label: 'Seasons', role: 'public' },
   { href: '/safety', label: 'Safety', role: 'public' },
+  { href: '/api-docs', label: 'API', role: 'public' },
   { href: '/me', label: 'My entries', role: 'entrant' },
   { href: '/judging', label: 'Review desk', role: 'judge' },
   { href: '/organize', label: 'Organize', role: 'organizer' },
