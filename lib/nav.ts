@@ -12,6 +12,7 @@ export const NAV: NavItem[] = [
   { href: '/safety', label: 'Safety', role: 'public' },
   { href: '/api-docs', label: 'API', role: 'public' },
   { href: '/me', label: 'My entries', role: 'entrant' },
+  { href: '/me/machines', label: 'Machines', role: 'entrant' },
   { href: '/judging', label: 'Review desk', role: 'judge' },
   { href: '/organize', label: 'Organize', role: 'organizer' },
   { href: '/admin/users', label: 'Users', role: 'admin' },
