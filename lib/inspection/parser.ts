@@ -60,10 +60,16 @@ export class MachineState {
   maxAccelYMms2: number | null = null;
   maxAccelZMms2: number | null = null;
   maxAccelEMms2: number | null = null;
-  /** Bumped on every change so the planner can cache derived limits. */
+  /** Bumped on every change except accelerations (read per move) so the planner can cache derived limits. */
   version = 0;
   /** Which command families set limits (for the report). */
   readonly setBy = new Set<string>();
+  private lastMark = '';
+  mark(command: string): void {
+    if (command === this.lastMark) return;
+    this.lastMark = command;
+    this.setBy.add(command);
+  }
 }
 
 /** Where an override was seen. */
@@ -657,7 +663,7 @@ export class GcodeParser implements LineSink {
     if (vel !== undefined && this.sane('VELOCITY', vel, MIN_FEED_LIMIT_MMS, 1e5)) m.maxVelocityMms = vel;
     if (a2d !== undefined && this.sane('ACCEL_TO_DECEL', a2d, MIN_ACCEL, MAX_LIMIT)) m.accelToDecelMms2 = a2d;
     if (mcr !== undefined && this.sane('MINIMUM_CRUISE_RATIO', mcr, -1, 1)) m.minimumCruiseRatio = mcr;
-    m.setBy.add('SET_VELOCITY_LIMIT');
+    m.mark('SET_VELOCITY_LIMIT');
     m.version++;
   }
 
@@ -874,7 +880,10 @@ export class GcodeParser implements LineSink {
   /** A limit word's value if present and within (min, max]; null (with a warning if bad) otherwise. */
   private limit(cmd: string, letter: number, min: number, max: number): number | null {
     const v = this.num(letter);
-    return v === v && this.sane(`${cmd} ${String.fromCharCode(letter + 65)}`, v, min, max) ? v : null;
+    if (v !== v) return null;
+    if (v > min && v <= max) return v;
+    this.sane(`${cmd} ${String.fromCharCode(letter + 65)}`, v, min, max); // warns
+    return null;
   }
 
   private m204(): void {
@@ -888,8 +897,8 @@ export class GcodeParser implements LineSink {
     m.accelPrintMms2 = this.limit('M204', L_P, MIN_ACCEL, MAX_LIMIT) ?? m.accelPrintMms2;
     m.accelRetractMms2 = this.limit('M204', L_R, MIN_ACCEL, MAX_LIMIT) ?? m.accelRetractMms2;
     m.accelTravelMms2 = this.limit('M204', L_T, MIN_ACCEL, MAX_LIMIT) ?? m.accelTravelMms2;
-    m.setBy.add('M204');
-    m.version++;
+    // Accelerations are read by the planner on every move, so no version bump (slicers send M204 per feature).
+    m.mark('M204');
   }
 
   private m205(): void {
@@ -900,7 +909,7 @@ export class GcodeParser implements LineSink {
     m.jerkZMms = this.limit('M205', L_Z, -1e-9, 1e4) ?? m.jerkZMms;
     m.jerkEMms = this.limit('M205', L_E, -1e-9, 1e4) ?? m.jerkEMms;
     m.junctionDeviationMm = this.limit('M205', L_J, -1e-9, 10) ?? m.junctionDeviationMm;
-    m.setBy.add('M205');
+    m.mark('M205');
     m.version++;
   }
 
@@ -911,7 +920,7 @@ export class GcodeParser implements LineSink {
     m.maxAccelYMms2 = this.limit('M201', L_Y, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelYMms2;
     m.maxAccelZMms2 = this.limit('M201', L_Z, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelZMms2;
     m.maxAccelEMms2 = this.limit('M201', L_E, MIN_ACCEL, MAX_LIMIT) ?? m.maxAccelEMms2;
-    m.setBy.add('M201');
+    m.mark('M201');
     m.version++;
   }
 
@@ -922,7 +931,7 @@ export class GcodeParser implements LineSink {
     m.maxFeedYMms = this.limit('M203', L_Y, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedYMms;
     m.maxFeedZMms = this.limit('M203', L_Z, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedZMms;
     m.maxFeedEMms = this.limit('M203', L_E, MIN_FEED_LIMIT_MMS, 1e5) ?? m.maxFeedEMms;
-    m.setBy.add('M203');
+    m.mark('M203');
     m.version++;
   }
 

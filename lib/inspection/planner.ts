@@ -160,9 +160,10 @@ export class MotionPlanner {
     const m = this.machine;
     const b = this.base;
     this.version = m ? m.version : 0;
-    this.aPrint = m?.accelPrintMms2 ?? b.accelPrintMms2;
-    this.aTravel = m?.accelTravelMms2 ?? b.accelTravelMms2;
-    this.aRetract = m?.accelRetractMms2 ?? b.accelRetractMms2;
+    // Base accelerations; the file's M204 values are read per move in push().
+    this.aPrint = b.accelPrintMms2;
+    this.aTravel = b.accelTravelMms2;
+    this.aRetract = b.accelRetractMms2;
     this.jerkX = m?.jerkXMms ?? b.jerkXMms;
     this.jerkY = m?.jerkYMms ?? b.jerkYMms;
     this.jerkZ = m?.jerkZMms ?? b.jerkZMms;
@@ -218,7 +219,8 @@ export class MotionPlanner {
       const auy = uy < 0 ? -uy : uy;
       const auz = uz < 0 ? -uz : uz;
       const aue = ue < 0 ? -ue : ue;
-      let a = s.eMm > 0 ? this.aPrint : this.aTravel;
+      const m = this.machine;
+      let a = s.eMm > 0 ? (m?.accelPrintMms2 ?? this.aPrint) : (m?.accelTravelMms2 ?? this.aTravel);
       if (this.axisCaps) {
         if (aux * feed > this.vx) feed = this.vx / aux;
         if (auy * feed > this.vy) feed = this.vy / auy;
@@ -246,7 +248,7 @@ export class MotionPlanner {
       const eLen = s.eMm < 0 ? -s.eMm : s.eMm;
       if (eLen === 0) return;
       if (feed > this.ve) feed = this.ve;
-      let a = this.aRetract;
+      let a = this.machine?.accelRetractMms2 ?? this.aRetract;
       if (a > this.ae) a = this.ae;
       // From a standstill an E-only move may start at the E jerk in classic-jerk mode; JD starts at 0.
       const j = this.jerkX === null ? 0 : this.jerkE;

@@ -1,0 +1,145 @@
+/**
+ * Benchmark of the inspection engine (a script that prints figures; nothing here is a test).
+ *
+ *   npm run bench:inspect [-- --sizes 100,500] [--keep]
+ *
+ * Builds plain G-code files of the given sizes (MB) in a temp dir by stacking the real slicer
+ * fixtures on top of each other (G28 commented out, a Z lift and a G92 Z shift between copies, so
+ * every copy prints higher up like one tall part), then, each in its own child process:
+ *   - the full inspection (reader, parser, measurements, time planner, declared and toolpath settings);
+ *   - the engine without the toolpath-settings analyzer;
+ *   - the npm package gcode-parser (the most-used general G-code parser on the registry) on the
+ *     first file, through its streaming GCodeLineStream with a no-op per line (parsing only).
+ * Each child reports its wall time and peak RSS (process.resourceUsage().maxRSS).
+ */
+import { spawnSync } from 'node:child_process';
+import { createReadStream, mkdtempSync, openSync, readFileSync, rmSync, statSync, writeSync, closeSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { gunzipSync } from 'node:zlib';
+import { inspectFile } from '../lib/inspection/inspect';
+
+const ROOT = join(__dirname, '..');
+const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'prusa-beacon-nozzle06-030'].map((n) =>
+  join(ROOT, 'tests/fixtures/gcode', `${n}.gcode.gz`),
+);
+
+interface ChildResult {
+  bytes: number;
+  seconds: number;
+  maxRssMb: number;
+  detail: string;
+}
+
+async function child(mode: string, file: string): Promise<void> {
+  const t0 = process.hrtime.bigint();
+  let detail = '';
+  if (mode === 'peer') {
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
+    const { GCodeLineStream } = require('gcode-parser') as { GCodeLineStream: new (o?: object) => NodeJS.ReadWriteStream };
+    let lines = 0;
+    await new Promise<void>((resolve, reject) => {
+      createReadStream(file, { encoding: 'utf8' })
+        .on('error', reject)
+        .pipe(new GCodeLineStream())
+        .on('data', () => {
+          lines++;
+        })
+        .on('end', resolve)
+        .on('error', reject);
+    });
+    detail = `${lines} lines`;
+  } else {
+    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine' });
+    detail = `${r.layers.count} layers, ${(r.filament.lengthMm / 1000).toFixed(1)} m filament, est. ${(r.time.estimatedS / 3600).toFixed(1)} h, walls measured ${r.settings.walls.measured}`;
+  }
+  const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
+  const out: ChildResult = { bytes: statSync(file).size, seconds, maxRssMb: process.resourceUsage().maxRSS / 1024, detail };
+  process.stdout.write(`${JSON.stringify(out)}\n`);
+}
+
+function runChild(mode: string, file: string): ChildResult {
+  const r = spawnSync(process.execPath, [join(ROOT, 'node_modules/tsx/dist/cli.mjs'), __filename, '--child', mode, file], {
+    encoding: 'utf8',
+    maxBuffer: 1 << 20,
+  });
+  if (r.status !== 0) throw new Error(`child ${mode} failed: ${r.stderr}`);
+  return JSON.parse(r.stdout.trim().split('\n').pop() as string) as ChildResult;
+}
+
+/** Writes a ≥ sizeMb file of stacked fixture copies; returns its path. */
+function build(dir: string, sizeMb: number): string {
+  const path = join(dir, `stack-${sizeMb}mb.gcode`);
+  const texts = FIXTURES.map((f) => gunzipSync(readFileSync(f)).toString('latin1'));
+  // Only the very first copy homes; later copies must not (G28 would reset the Z stack).
+  const copy = (text: string, home: boolean) => Buffer.from(`${home ? text : text.replace(/^G28/gm, ';G28')}\nG90\nG1 Z50 F600\nG92 Z-5\n`, 'latin1');
+  const first = copy(texts[0], true);
+  const rest = texts.map((t) => copy(t, false));
+  const fd = openSync(path, 'w');
+  let written = 0;
+  for (let k = 0; written < sizeMb * 1e6; k++) {
+    const c = k === 0 ? first : rest[k % rest.length];
+    writeSync(fd, c);
+    written += c.length;
+  }
+  closeSync(fd);
+  return path;
+}
+
+const mb = (b: number) => b / 1e6;
+
+async function main(): Promise<void> {
+  const args = process.argv.slice(2);
+  if (args[0] === '--child') return child(args[1], args[2]);
+  const si = args.indexOf('--sizes');
+  const sizes = (si >= 0 ? args[si + 1] : '100,500').split(',').map(Number);
+  if (sizes.some((s) => !(s > 0))) throw new Error('--sizes takes sizes in MB, e.g. --sizes 100,500');
+  const keep = args.includes('--keep');
+  const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
+  console.log(`Node ${process.version}, temp dir ${dir}`);
+  try {
+    const rows: { what: string; size: number; r: ChildResult }[] = [];
+    for (const [i, size] of sizes.entries()) {
+      const file = build(dir, size);
+      console.log(`built ${file} (${mb(statSync(file).size).toFixed(1)} MB)`);
+      for (const mode of ['inspect', 'engine']) {
+        const r = runChild(mode, file);
+        rows.push({ what: mode === 'inspect' ? 'full inspection' : 'engine without toolpath settings', size, r });
+        console.log(`  ${rows[rows.length - 1].what}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s, peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+      }
+      if (i === 0) {
+        const r = runChild('peer', file);
+        rows.push({ what: 'gcode-parser (GCodeLineStream, no-op per line)', size, r });
+        console.log(`  gcode-parser: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s, peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+      }
+      if (!keep) rmSync(file);
+    }
+    console.log('\nSummary');
+    console.log('what'.padEnd(50), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
+    for (const { what, size, r } of rows) {
+      console.log(what.padEnd(50), String(size).padStart(8), (mb(r.bytes) / r.seconds).toFixed(1).padStart(8), r.seconds.toFixed(2).padStart(9), r.maxRssMb.toFixed(0).padStart(12));
+    }
+    const first = sizes[0];
+    const peer = rows.find((x) => x.what.startsWith('gcode-parser'))!.r;
+    const speed = (r: ChildResult) => mb(r.bytes) / r.seconds;
+    for (const what of ['full inspection', 'engine without toolpath settings']) {
+      const ours = rows.find((x) => x.what === what && x.size === first)!.r;
+      console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput`);
+    }
+    if (sizes.length > 1) {
+      for (const what of ['full inspection', 'engine without toolpath settings']) {
+        const a = rows.find((x) => x.what === what && x.size === sizes[0])!.r;
+        const b = rows.find((x) => x.what === what && x.size === sizes[sizes.length - 1])!.r;
+        console.log(`${what}: peak RSS ${a.maxRssMb.toFixed(0)} MB at ${sizes[0]} MB → ${b.maxRssMb.toFixed(0)} MB at ${sizes[sizes.length - 1]} MB`);
+      }
+    }
+    console.log('Targets: full inspection ≥ 60 MB/s and ≥ 10× the peer; peak RSS < 200 MB and flat from 100 MB to 500 MB.');
+  } finally {
+    if (!keep) rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+main().catch((err) => {
+  console.error(err instanceof Error ? err.message : err);
+  process.exitCode = 1;
+});
