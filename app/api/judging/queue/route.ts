@@ -1,8 +1,10 @@
-import { route } from '@/lib/http';
+import { route, parseInput } from '@/lib/http';
 import { requireRole } from '@/lib/auth/guard';
-import { judgeQueue } from '@/lib/queries';
+import { reviewQueue, QueueFilterSchema } from '@/lib/reviews/queue';
 
-export const GET = route(async () => {
+/** GET /api/judging/queue?season=&class=&flag= — submitted entries of the judge's seasons, oldest first. */
+export const GET = route(async (req) => {
   const judge = await requireRole('judge');
-  return Response.json(await judgeQueue(judge.id));
+  const filter = parseInput(QueueFilterSchema, Object.fromEntries(new URL(req.url).searchParams));
+  return Response.json(await reviewQueue(judge.id, filter));
 });

@@ -1,0 +1,211 @@
+import Link from 'next/link';
+import { headers } from 'next/headers';
+import { notFound, forbidden } from 'next/navigation';
+import { requirePageRole } from '@/lib/auth/guard';
+import { clientIp } from '@/lib/http';
+import { HttpError } from '@/lib/errors';
+import { entryReview, type EntryReview } from '@/lib/reviews/entry';
+import { EntryParams } from '@/lib/reviews/params';
+import { DECISION_LABELS, reasonLabel } from '@/lib/reviews/reasons';
+import { CHECKLIST_ITEMS, CHECK_ANSWER_LABELS, type CheckAnswer, type ChecklistItem } from '@/lib/reviews/checklist';
+import { DECIDABLE_STATES } from '@/lib/reviews/schemas';
+import { MOTION_SYSTEM_LABELS, type MotionSystem, type ReviewDecision } from '@/lib/domain';
+import { formatDurationMs, formatDateTime } from '@/lib/format';
+import { StatePill } from '@/components/StatePill';
+import { PhotoGallery } from '@/components/judging/PhotoGallery';
+import { LayerPreview } from '@/components/judging/LayerPreview';
+import { FlowChart } from '@/components/charts/FlowChart';
+import { DecisionForm } from '@/components/judging/DecisionForm';
+
+export const metadata = { title: 'Review an entry' };
+
+const fmt = (v: number | null | undefined, digits = 2, unit = '') => (v == null ? '—' : `${v.toFixed(digits)}${unit ? ` ${unit}` : ''}`);
+const STATUS_TONE: Record<string, string> = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' };
+const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
+
+async function load(judgeId: number, id: number): Promise<EntryReview> {
+  try {
+    return await entryReview(judgeId, id, { ip: clientIp(await headers()) });
+  } catch (err) {
+    if (err instanceof HttpError && err.status === 404) notFound();
+    if (err instanceof HttpError && err.status === 403) forbidden();
+    throw err;
+  }
+}
+
+export default async function ReviewPage({ params }: { params: Promise<{ id: string }> }) {
+  const raw = await params;
+  const judge = await requirePageRole(`/judging/entries/${raw.id}`, 'judge');
+  const parsed = EntryParams.safeParse(raw);
+  if (!parsed.success) notFound();
+  const r = await load(judge.id, parsed.data.id);
+  const { entry, inspection: insp } = r;
+  const estS = insp?.headline.estimatedS ?? null;
+  const claimedS = entry.claimedTimeMs / 1000;
+  const matching = r.extrusionTests.find((t) => t.matchesEntryMaterial) ?? null;
+  const decidable = (DECIDABLE_STATES as readonly string[]).includes(entry.state) && !['final', 'archived'].includes(r.season?.state ?? '');
+  return (
+    <div className="space-y-6">
+      <p><Link href="/judging">← Back to the queue</Link></p>
+      <header className="flex flex-wrap items-center gap-3">
+        <h1>Entry #{entry.id}</h1>
+        <StatePill state={entry.state} />
+        <p className="w-full text-ink-600">
+          {r.season?.name} · {r.className} · {r.entrant.name} · submitted {formatDateTime(entry.submittedAt)} · {entry.materialName || entry.materialFamily.toUpperCase()} · {entry.nozzleMm} mm nozzle
+        </p>
+      </header>
+
+      <section className="grid gap-4 md:grid-cols-3">
+        <div className="card">
+          <h2>Claimed time</h2>
+          <p className="num text-2xl" data-testid="claimed-time">{formatDurationMs(entry.claimedTimeMs)}</p>
+          <p className="text-xs text-ink-500">{r.season?.timingConvention}</p>
+        </div>
+        <div className="card">
+          <h2>Estimated minimum</h2>
+          <p className="num text-2xl" data-testid="estimated-time">{estS != null ? formatDurationMs(estS * 1000) : '—'}</p>
+          {estS != null && (
+            <p className={`text-sm ${claimedS < estS ? 'font-semibold text-alarm-700' : 'text-ink-600'}`}>
+              Claimed is {claimedS >= estS ? `${formatDurationMs((claimedS - estS) * 1000)} slower than` : `${formatDurationMs((estS - claimedS) * 1000)} faster than`} the file allows ({(((claimedS - estS) / estS) * 100).toFixed(1)} %).
+            </p>
+          )}
+          {insp?.headline.slicerEstimateS != null && <p className="text-xs text-ink-500">Slicer’s own estimate: {formatDurationMs(insp.headline.slicerEstimateS * 1000)}</p>}
+        </div>
+        <div className="card">
+          <h2>Evidence</h2>
+          {entry.evidenceLink ? <p><a href={entry.evidenceLink} target="_blank" rel="noopener noreferrer" data-testid="evidence-link">Open the run’s video</a></p> : <p className="text-ink-600">No evidence link.</p>}
+          {r.gcode && <p className="mt-2 text-sm"><a href={r.gcode.url}>Download the G-code</a> <span className="num text-ink-500">({(r.gcode.sizeBytes / 1024).toFixed(0)} KB)</span></p>}
+          {entry.notes && <p className="mt-2 whitespace-pre-line text-sm text-ink-700">{entry.notes}</p>}
+        </div>
+      </section>
+
+      <section className="card">
+        <h2 className="mb-3">Photos</h2>
+        <PhotoGallery photos={r.photos} />
+      </section>
+
+      {r.changes && (
+        <section className="card border-ember-300" data-testid="inspection-changes">
+          <h2>What changed since the previous inspection</h2>
+          <p className="text-xs text-ink-500">Inspection #{r.changes.previous.id} (engine {r.changes.previous.engineVersion}, {formatDateTime(r.changes.previous.createdAt)}) → #{r.changes.latest.id} (engine {r.changes.latest.engineVersion}, {formatDateTime(r.changes.latest.createdAt)})</p>
+          {r.changes.unchanged ? <p className="mt-2">Nothing the judges see changed.</p> : (
+            <ul className="mt-2 list-disc space-y-1 pl-5 text-sm">
+              {r.changes.headline.map((h) => <li key={h.key}>{h.label}: <span className="num">{h.before ?? '—'} → {h.after ?? '—'} {h.unit}</span></li>)}
+              {r.changes.rules.map((x) => <li key={x.sentence}>Rule “{x.sentence}”: {x.before ?? 'absent'} → {x.after ?? 'absent'} (measured {String(x.measuredBefore ?? '—')} → {String(x.measuredAfter ?? '—')})</li>)}
+              {r.changes.flagsAdded.map((f) => <li key={`+${f.code}`}>New flag: {f.message || f.code}</li>)}
+              {r.changes.flagsRemoved.map((c) => <li key={`-${c}`}>Flag gone: {c}</li>)}
+            </ul>
+          )}
+        </section>
+      )}
+
+      <section className="card space-y-4">
+        <h2>Inspection</h2>
+        {!insp ? <p>This entry has not been inspected yet.</p> : insp.status !== 'done' ? <p>Inspection {insp.status}{insp.error ? `: ${insp.error}` : ''}.</p> : (
+          <>
+            <p className="num text-sm text-ink-700">
+              Peak flow {fmt(insp.headline.peakFlowMm3s, 1, 'mm³/s')} · 95th percentile {fmt(insp.headline.p95FlowMm3s, 1, 'mm³/s')} · mean {fmt(insp.headline.meanFlowMm3s, 1, 'mm³/s')} · {insp.headline.layers ?? '—'} layers of {fmt(insp.headline.layerHeightMm, 2, 'mm')} · {fmt(insp.headline.massG, 1, 'g')} · {insp.headline.slicer ?? 'unknown slicer'} · engine {insp.engineVersion}
+            </p>
+            <div className="overflow-x-auto">
+              <h3 className="font-semibold">Rule results</h3>
+              <table className="table" data-testid="rule-results">
+                <thead><tr><th>Rule</th><th>Severity</th><th>Measured</th><th>Result</th></tr></thead>
+                <tbody>
+                  {insp.ruleResults.map((x, i) => (
+                    <tr key={i}><td>{x.rule?.sentence || x.message}</td><td>{x.rule?.severity}</td><td className="num">{x.measured === null || x.measured === undefined ? '—' : String(x.measured)}</td><td><span className={`pill ${STATUS_TONE[x.status] ?? ''}`}>{x.status}</span></td></tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+            <div className="overflow-x-auto">
+              <h3 className="font-semibold">Settings: declared in the file vs measured from the toolpaths</h3>
+              <table className="table" data-testid="settings">
+                <thead><tr><th>Setting</th><th>Declared</th><th>Measured</th><th>How measured</th></tr></thead>
+                <tbody>
+                  {insp.settings.map((s) => (
+                    <tr key={s.key} className={s.declared !== null && s.measured !== null && Math.abs(s.declared - s.measured) > 1e-6 ? 'bg-ember-50' : ''}>
+                      <td>{s.key.replace(/_/g, ' ')}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">{s.detail}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+            <div>
+              <h3 className="font-semibold">Flags</h3>
+              {insp.flags.length === 0 ? <p className="text-sm">No flags.</p> : (
+                <ul className="space-y-1 text-sm" data-testid="flags">
+                  {insp.flags.map((f, i) => <li key={i}><span className={`pill ${SEVERITY_TONE[f.severity] ?? ''}`}>{f.severity}</span> {f.message || f.code}</li>)}
+                </ul>
+              )}
+            </div>
+          </>
+        )}
+      </section>
+
+      <section className="card space-y-3">
+        <h2>Machine{r.machine ? `: ${r.machine.name}` : ''}</h2>
+        {r.machine && (
+          <p className="text-sm text-ink-700">
+            {MOTION_SYSTEM_LABELS[r.machine.motionSystem as MotionSystem] ?? r.machine.motionSystem} · build {r.machine.buildMm.x}×{r.machine.buildMm.y}×{r.machine.buildMm.z} mm · {r.machine.nozzleMm} mm nozzle · {r.machine.hotend} · {r.machine.extruder} · {r.machine.firmware}
+            {r.machine.maxAccelMmS2 ? ` · accel ${r.machine.maxAccelMmS2} mm/s²` : ''}{r.machine.isModified ? ` · modified: ${r.machine.modifications}` : ' · stock'}
+          </p>
+        )}
+        <h3 className="font-semibold">Extrusion-limit tests</h3>
+        {r.extrusionTests.length === 0 ? <p className="text-sm text-ink-600">No extrusion-limit test on record for this machine.</p> : r.extrusionTests.map((t) => (
+          <div key={t.id} className="overflow-x-auto" data-testid="extrusion-test">
+            <p className="text-sm">
+              {t.materialName || t.materialFamily.toUpperCase()} ({t.materialFamily}) · {formatDateTime(t.testedAt)} · limit <strong className="num">{t.limitFlowMm3s ?? '—'} mm³/s</strong> at ≥ {t.thresholdPercent} %
+              {t.matchesEntryMaterial ? ' · same material family as the entry' : ''}{t.nonMonotonic ? ' · curve not monotonic' : ''}
+            </p>
+            <table className="table">
+              <thead><tr><th>Rate, mm³/s</th><th>Mass, g</th><th>Efficiency</th><th></th></tr></thead>
+              <tbody>{t.steps.map((s) => <tr key={s.rateMm3s}><td className="num">{s.rateMm3s}</td><td className="num">{s.massG.toFixed(3)}</td><td className="num">{s.efficiencyPercent.toFixed(1)} %</td><td>{s.passes ? 'pass' : 'below threshold'}</td></tr>)}</tbody>
+            </table>
+          </div>
+        ))}
+      </section>
+
+      {insp && insp.status === 'done' && (
+        <section className="card">
+          <FlowChart title="Flow over time" series={insp.flowSeries} limitMm3s={matching?.limitFlowMm3s ?? null} />
+        </section>
+      )}
+
+      {insp?.previewUrl && (
+        <section className="card">
+          <h2 className="mb-3">Toolpath preview</h2>
+          <LayerPreview url={insp.previewUrl} />
+        </section>
+      )}
+
+      <section className="card">
+        <h2 className="mb-3">Decisions so far</h2>
+        {r.reviews.length === 0 ? <p className="text-sm">No decision yet.</p> : (
+          <ol className="space-y-3" data-testid="review-history">
+            {r.reviews.map((v) => (
+              <li key={v.id} className="border-l-4 border-ink-200 pl-3">
+                <p className="text-sm"><strong>{v.judge}</strong> {DECISION_LABELS[v.decision as ReviewDecision]?.past ?? v.decision} · {formatDateTime(v.createdAt)}</p>
+                <p className="text-sm">{v.reasonCodes.map(reasonLabel).join('; ')}</p>
+                <p className="whitespace-pre-line text-sm text-ink-700">{v.note}</p>
+                {Object.keys(v.checklist ?? {}).length > 0 && (
+                  <p className="text-xs text-ink-500">
+                    {Object.entries(v.checklist).map(([k, a]) => `${CHECKLIST_ITEMS[k as ChecklistItem]?.label ?? k}: ${CHECK_ANSWER_LABELS[a as CheckAnswer] ?? a}`).join(' · ')}
+                  </p>
+                )}
+              </li>
+            ))}
+          </ol>
+        )}
+      </section>
+
+      <section className="card">
+        <h2 className="mb-3">{entry.state === 'submitted' ? 'Your decision' : 'Record a new decision'}</h2>
+        {decidable ? (
+          <DecisionForm entryId={entry.id} entryState={entry.state} dimensions={r.dimensions} verifications={r.verifications} />
+        ) : (
+          <p className="text-sm">This entry cannot be decided now ({entry.state}{r.season && ['final', 'archived'].includes(r.season.state) ? `, season ${r.season.state}` : ''}).</p>
+        )}
+      </section>
+    </div>
+  );
+}

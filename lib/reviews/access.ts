@@ -1,0 +1,32 @@
+/**
+ * Who may see and decide what on the review desk. A judge sees entries of the seasons they serve
+ * and nothing else (others answer 404, as if they did not exist); a judge never decides on their
+ * own entry.
+ */
+import { Entry, SeasonJudge } from '@/models';
+import { forbidden, notFound } from '@/lib/errors';
+
+export async function servedSeasonIds(judgeId: number): Promise<number[]> {
+  const rows = await SeasonJudge.findAll({ where: { userId: judgeId }, attributes: ['seasonId'] });
+  return rows.map((r) => r.seasonId);
+}
+
+export async function servesSeason(judgeId: number, seasonId: number): Promise<boolean> {
+  return (await SeasonJudge.count({ where: { userId: judgeId, seasonId } })) > 0;
+}
+
+/** The entry, when this judge serves its season and the entry has left the entrant's drafts; else 404. */
+export async function entryForJudge(judgeId: number, entryId: number): Promise<Entry> {
+  const entry = Number.isSafeInteger(entryId) && entryId > 0 ? await Entry.findByPk(entryId) : null;
+  if (!entry || entry.state === 'draft' || !(await servesSeason(judgeId, entry.seasonId))) {
+    throw notFound('No entry with this number is on your review desk.');
+  }
+  return entry;
+}
+
+/** An entry this judge may review: in a season they serve, and not their own (a judge never reviews their own entry). */
+export async function reviewableEntry(judgeId: number, entryId: number): Promise<Entry> {
+  const entry = await entryForJudge(judgeId, entryId);
+  if (entry.entrantId === judgeId) throw forbidden('This is your own entry: another judge of the season reviews it.');
+  return entry;
+}

@@ -1,0 +1,82 @@
+/**
+ * What changed between two inspections of the same entry (after an engine or rulebook change and a
+ * re-inspection): headline figures, rule results and flags. Inspections are never overwritten, so
+ * the latest two rows are compared.
+ */
+import { asFlags } from './flags';
+
+export interface InspectionSnapshot {
+  id: number;
+  engineVersion: string;
+  createdAt: Date;
+  blockingFailures: number;
+  advisoryFlags: number;
+  peakFlowMm3s: number | null;
+  p95FlowMm3s: number | null;
+  estimatedTimeS: number | null;
+  layerHeightMm: number | null;
+  ruleResults: unknown[];
+  flags: unknown[];
+}
+
+export const HEADLINE_FIELDS = [
+  { key: 'estimatedTimeS', label: 'Estimated minimum time', unit: 's' },
+  { key: 'peakFlowMm3s', label: 'Peak commanded flow', unit: 'mm³/s' },
+  { key: 'p95FlowMm3s', label: '95th percentile flow', unit: 'mm³/s' },
+  { key: 'layerHeightMm', label: 'Layer height', unit: 'mm' },
+  { key: 'blockingFailures', label: 'Blocking failures', unit: '' },
+  { key: 'advisoryFlags', label: 'Advisory flags', unit: '' },
+] as const;
+
+interface RuleRow {
+  metric: string;
+  sentence: string;
+  status: string;
+  measured: unknown;
+}
+
+function ruleRows(v: unknown[]): Map<string, RuleRow> {
+  const out = new Map<string, RuleRow>();
+  for (const r of Array.isArray(v) ? v : []) {
+    const rr = r as { rule?: { metric?: string; comparator?: string; value?: number; valueMax?: number; sentence?: string }; status?: string; measured?: unknown; message?: string };
+    const metric = rr.rule?.metric;
+    if (!metric) continue;
+    // One metric can carry several rules (season and class): key by the whole rule.
+    const key = `${metric}|${rr.rule?.comparator}|${rr.rule?.value}|${rr.rule?.valueMax ?? ''}`;
+    out.set(key, { metric, sentence: rr.rule?.sentence ?? rr.message ?? metric, status: String(rr.status ?? 'unknown'), measured: rr.measured ?? null });
+  }
+  return out;
+}
+
+export function inspectionDiff(previous: InspectionSnapshot, latest: InspectionSnapshot) {
+  const headline = HEADLINE_FIELDS.map((f) => {
+    const before = previous[f.key];
+    const after = latest[f.key];
+    return { ...f, before, after, changed: before !== after && !(before !== null && after !== null && Math.abs(before - after) < 1e-9) };
+  }).filter((h) => h.changed);
+  const a = ruleRows(previous.ruleResults);
+  const b = ruleRows(latest.ruleResults);
+  const rules: { metric: string; sentence: string; before: string | null; after: string | null; measuredBefore: unknown; measuredAfter: unknown }[] = [];
+  for (const key of new Set([...a.keys(), ...b.keys()])) {
+    const x = a.get(key);
+    const y = b.get(key);
+    if (x && y && x.status === y.status && x.measured === y.measured) continue;
+    rules.push({ metric: (y ?? x)!.metric, sentence: (y ?? x)!.sentence, before: x?.status ?? null, after: y?.status ?? null, measuredBefore: x?.measured ?? null, measuredAfter: y?.measured ?? null });
+  }
+  const fa = new Set(asFlags(previous.flags).map((f) => f.code));
+  const fb = asFlags(latest.flags);
+  const fbCodes = new Set(fb.map((f) => f.code));
+  const flagsAdded = fb.filter((f) => !fa.has(f.code));
+  const flagsRemoved = [...fa].filter((c) => !fbCodes.has(c));
+  return {
+    previous: { id: previous.id, engineVersion: previous.engineVersion, createdAt: previous.createdAt.toISOString() },
+    latest: { id: latest.id, engineVersion: latest.engineVersion, createdAt: latest.createdAt.toISOString() },
+    headline,
+    rules,
+    flagsAdded,
+    flagsRemoved,
+    unchanged: headline.length === 0 && rules.length === 0 && flagsAdded.length === 0 && flagsRemoved.length === 0,
+  };
+}
+export type InspectionDiff = ReturnType<typeof inspectionDiff>;
+

@@ -1,0 +1,69 @@
+/**
+ * Private evidence on the review desk: photos at full size, the G-code, the evidence link and the
+ * toolpath preview. Every access goes through the judge's access check and full-size views are
+ * written to the audit log.
+ */
+import fs from 'node:fs';
+import { Readable } from 'node:stream';
+import { StoredFile } from '@/models';
+import { audit } from '@/lib/audit';
+import { HttpError, notFound } from '@/lib/errors';
+import { exists, localPath, openRead, putBuffer } from '@/lib/storage';
+import { buildPreviewFromFile, PREVIEW_VERSION, type ToolpathPreview } from '@/lib/inspection/preview';
+import { InspectionError } from '@/lib/inspection';
+import { reviewableEntry } from './access';
+
+const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode'];
+
+/** A stored file of the entry as a streamed response; full-size photos and G-code are audited. */
+export async function judgeFile(judgeId: number, entryId: number, fileId: number, opts: { thumb?: boolean; ip?: string | null } = {}): Promise<Response> {
+  const entry = await reviewableEntry(judgeId, entryId);
+  const file = Number.isSafeInteger(fileId) ? await StoredFile.findOne({ where: { id: fileId, entryId: entry.id } }) : null;
+  if (!file || !JUDGE_FILE_KINDS.includes(file.kind)) throw notFound('This entry has no such file.');
+  if (!(await exists(file.storageKey))) throw notFound('The file is missing from storage.');
+  if (file.kind !== 'thumbnail' && !opts.thumb) {
+    await audit('evidence.viewed', { type: 'entry', id: entry.id }, { actorId: judgeId, ip: opts.ip ?? null, details: { view: file.kind, fileId: file.id } });
+  }
+  const body = Readable.toWeb(openRead(file.storageKey)) as ReadableStream;
+  const download = file.kind === 'gcode';
+  return new Response(body, {
+    headers: {
+      'content-type': download ? 'application/octet-stream' : file.mime,
+      'content-length': String(file.sizeBytes),
+      'cache-control': 'private, no-store',
+      'x-content-type-options': 'nosniff',
+      'content-disposition': `${download ? 'attachment' : 'inline'}; filename="${file.originalName.replace(/[^\w.-]+/g, '_')}"`,
+    },
+  });
+}
+
+/** Audits the click on the entrant's evidence link and returns where to send the judge. */
+export async function evidenceLink(judgeId: number, entryId: number, ip?: string | null): Promise<string> {
+  const entry = await reviewableEntry(judgeId, entryId);
+  if (!/^https?:\/\//i.test(entry.evidenceUrl)) throw notFound('This entry has no evidence link.');
+  await audit('evidence.viewed', { type: 'entry', id: entry.id }, { actorId: judgeId, ip: ip ?? null, details: { view: 'evidence_link', url: entry.evidenceUrl } });
+  return entry.evidenceUrl;
+}
+
+/** Computed previews are kept in storage next to the uploads, keyed by the G-code's hash and the format version. */
+const previewKey = (sha256: string) => `previews/${sha256.slice(0, 64)}-v${PREVIEW_VERSION}.json`;
+
+/** The toolpath preview JSON of the entry's latest G-code (computed once, then served from storage). */
+export async function entryPreviewJson(judgeId: number, entryId: number): Promise<string> {
+  const entry = await reviewableEntry(judgeId, entryId);
+  const gcode = (await StoredFile.findAll({ where: { entryId: entry.id, kind: 'gcode' }, order: [['id', 'DESC']] })).find((f) => !f.meta?.replacedAt);
+  if (!gcode) throw notFound('This entry has no G-code to preview.');
+  const key = previewKey(/^[0-9a-f]{64}$/.test(gcode.sha256) ? gcode.sha256 : `file-${gcode.id}`);
+  if (await exists(key)) return fs.promises.readFile(localPath(key), 'utf8');
+  let preview: ToolpathPreview;
+  try {
+    const diameter = typeof gcode.meta?.filamentDiameterMm === 'number' ? gcode.meta.filamentDiameterMm : undefined;
+    preview = await buildPreviewFromFile(localPath(gcode.storageKey), { filamentDiameterMm: diameter });
+  } catch (err) {
+    if (err instanceof InspectionError) throw new HttpError(422, `The G-code cannot be previewed: ${err.message}`);
+    throw err;
+  }
+  const json = JSON.stringify(preview);
+  await putBuffer(key, Buffer.from(json));
+  return json;
+}

@@ -1,0 +1,96 @@
+/** The judge's queue: submitted entries of the seasons they serve, oldest first, never their own. */
+import { z } from 'zod';
+import { Op } from 'sequelize';
+import { ContestClass, Entry, Inspection, Review, Season, User } from '@/models';
+import { notFound } from '@/lib/errors';
+import { servedSeasonIds } from './access';
+import { flagKinds, QUEUE_FLAG_FILTER_LIST, type QueueFlagFilter } from './flags';
+import { requiredVerifications, roundVerifiers } from './round';
+
+export const QueueFilterSchema = z.object({
+  season: z.coerce.number().int().positive().optional(),
+  class: z.coerce.number().int().positive().optional(),
+  flag: z.enum(QUEUE_FLAG_FILTER_LIST, { message: `Choose one of: ${QUEUE_FLAG_FILTER_LIST.join(', ')}.` }).optional(),
+});
+export type QueueFilter = z.infer<typeof QueueFilterSchema>;
+
+/** Latest inspection per entry (rows are never overwritten; the newest id wins). */
+export async function latestInspections(entryIds: number[]): Promise<Map<number, Inspection>> {
+  const out = new Map<number, Inspection>();
+  if (!entryIds.length) return out;
+  const rows = await Inspection.findAll({
+    where: { entryId: entryIds },
+    attributes: ['id', 'entryId', 'status', 'ruleResults', 'flags', 'blockingFailures', 'advisoryFlags', 'peakFlowMm3s', 'estimatedTimeS', 'createdAt'],
+    order: [['id', 'DESC']],
+  });
+  for (const r of rows) if (!out.has(r.entryId)) out.set(r.entryId, r);
+  return out;
+}
+
+export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
+  let seasonIds = await servedSeasonIds(judgeId);
+  if (filter.season !== undefined) {
+    if (!seasonIds.includes(filter.season)) throw notFound('No season with this number is on your review desk.');
+    seasonIds = [filter.season];
+  }
+  const empty = { seasons: [], classes: [], flagCounts: Object.fromEntries(QUEUE_FLAG_FILTER_LIST.map((k) => [k, 0])), total: 0, entries: [] };
+  if (!seasonIds.length) return empty;
+  const [seasons, entries] = await Promise.all([
+    Season.findAll({ where: { id: seasonIds }, order: [['name', 'ASC']] }),
+    Entry.findAll({
+      where: { seasonId: seasonIds, state: 'submitted', entrantId: { [Op.ne]: judgeId } },
+      order: [['submittedAt', 'ASC'], ['id', 'ASC']],
+      include: [
+        { model: User, as: 'entrant', attributes: ['id', 'name'] },
+        { model: ContestClass, as: 'class', attributes: ['id', 'name', 'displayOrder'] },
+      ],
+      limit: 1000,
+    }),
+  ]);
+  const ids = entries.map((e) => e.id);
+  const [insp, reviews] = await Promise.all([
+    latestInspections(ids),
+    ids.length ? Review.findAll({ where: { entryId: ids }, attributes: ['entryId', 'judgeId', 'decision', 'createdAt'] }) : Promise.resolve([] as Review[]),
+  ]);
+  const seasonById = new Map(seasons.map((s) => [s.id, s]));
+  const rows = entries.map((e) => {
+    const x = e as unknown as { entrant: User; class: ContestClass };
+    const i = insp.get(e.id) ?? null;
+    const season = seasonById.get(e.seasonId)!;
+    const verifiers = roundVerifiers(reviews.filter((r) => r.entryId === e.id), e.submittedAt);
+    return {
+      id: e.id,
+      seasonId: e.seasonId,
+      season: season.name,
+      classId: x.class.id,
+      class: x.class.name,
+      entrant: x.entrant.name,
+      claimedTimeMs: e.claimedTimeMs,
+      submittedAt: e.submittedAt?.toISOString() ?? null,
+      inspection: i ? { status: i.status, estimatedTimeS: i.estimatedTimeS, peakFlowMm3s: i.peakFlowMm3s } : null,
+      flags: flagKinds(i),
+      verifications: { count: verifiers.length, required: requiredVerifications(season.verificationsRequired), byMe: verifiers.includes(judgeId) },
+    };
+  });
+  const byFlag = (r: (typeof rows)[number]) => !filter.flag || r.flags.includes(filter.flag);
+  const byClass = (r: (typeof rows)[number]) => !filter.class || r.classId === filter.class;
+  // Counts per class respect the flag filter, counts per flag respect the class filter, so each
+  // number says how many rows choosing that option would show.
+  const classCounts = new Map<number, { id: number; name: string; season: string; count: number }>();
+  for (const e of entries) {
+    const c = (e as unknown as { class: ContestClass }).class;
+    if (!classCounts.has(c.id)) classCounts.set(c.id, { id: c.id, name: c.name, season: seasonById.get(e.seasonId)!.name, count: 0 });
+  }
+  for (const r of rows) if (byFlag(r)) classCounts.get(r.classId)!.count++;
+  const flagCounts = Object.fromEntries(QUEUE_FLAG_FILTER_LIST.map((k) => [k, 0])) as Record<QueueFlagFilter, number>;
+  for (const r of rows) if (byClass(r)) for (const k of r.flags) flagCounts[k]++;
+  const shown = rows.filter((r) => byFlag(r) && byClass(r));
+  return {
+    seasons: seasons.map((s) => ({ id: s.id, slug: s.slug, name: s.name, state: s.state, verificationsRequired: requiredVerifications(s.verificationsRequired) })),
+    classes: [...classCounts.values()],
+    flagCounts,
+    total: rows.length,
+    entries: shown,
+  };
+}
+export type ReviewQueue = Awaited<ReturnType<typeof reviewQueue>>;
