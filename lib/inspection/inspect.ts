@@ -152,6 +152,13 @@ function buildReport(p: Pipeline, stats: ReadStats, options: InspectOptions, nam
   if (ps.flowFactor.max && (ps.flowFactor.max.percent !== 100 || (ps.flowFactor.min && ps.flowFactor.min.percent !== 100))) {
     warnings.push({ code: 'flow_override', severity: 'advisory', message: `The file sets a flow factor (M221) between ${ps.flowFactor.min?.percent} % and ${ps.flowFactor.max.percent} % (line ${ps.flowFactor.max.lineNo}); the figures include it.` });
   }
+  if (m.layers.count > m.layers.listed) {
+    warnings.push({
+      code: 'layers_not_listed',
+      severity: 'info',
+      message: `The file has ${m.layers.count} layers; per-layer times are listed for the first ${m.layers.listed} only (the totals include all).`,
+    });
+  }
   if (ps.toolsUsed.size > 1) {
     warnings.push({ code: 'several_tools', severity: 'info', message: `The file uses ${ps.toolsUsed.size} tools; filament is summed over all of them.` });
   }

@@ -60,6 +60,8 @@ const GRID_CELL_MM = 1;
 const GRID_N = 2048;
 const GRID_ORIGIN_MM = -1024;
 const MAX_LAYERS = 100000;
+/** Layer index used for moves on layers beyond MAX_LAYERS (their time and count are kept in totals). */
+const OVERFLOW_LAYER = MAX_LAYERS;
 /** Line-width histogram: 0.005 mm bins up to 5 mm. */
 const WIDTH_BIN_MM = 0.005;
 const WIDTH_BINS = 1000;
@@ -130,7 +132,10 @@ export interface MeasureResult {
     count: number;
     heightMm: number | null;
     firstHeightMm: number | null;
+    /** Per-layer records, at most MAX_LAYERS (count may be larger). */
     list: LayerInfo[];
+    listed: number;
+    overflowTimeS: number;
     beforeFirstLayerS: number;
     preambleExcluded: boolean;
   };
@@ -211,6 +216,9 @@ export class Measurements implements MotionSink, PlannedMoveSink {
   private curLayer = -1;
   private maxLayerZ = 0;
   private beforeFirstS = 0;
+  /** Layers beyond MAX_LAYERS: counted (new highest Z) but not listed; their planned time. */
+  private overflowLayers = 0;
+  private overflowS = 0;
   /** Index of the layer record that is the first of the stack (0, or 1 when record 0 was a prime line above it). */
   private stackStart = 0;
   private preambleDecided = false;
@@ -300,7 +308,8 @@ export class Measurements implements MotionSink, PlannedMoveSink {
 
   /** Called by the planner when a move's duration is final. */
   planned(timeS: number, flowMm3s: number, layerIndex: number): void {
-    if (layerIndex >= 0) this.layerTime[layerIndex] += timeS;
+    if (layerIndex === OVERFLOW_LAYER) this.overflowS += timeS;
+    else if (layerIndex >= 0) this.layerTime[layerIndex] += timeS;
     else this.beforeFirstS += timeS;
     // Time series bucket at the move's start time; double the bucket length when the series is full.
     let b = Math.floor(this.plannedT / this.tsBucketS);
@@ -335,7 +344,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       if (key !== this.curKey) this.enterLayer(key, s.z1);
     }
     const li = this.curLayer;
-    if (li >= 0) this.layerVol[li] += vol;
+    if (li >= 0 && li !== OVERFLOW_LAYER) this.layerVol[li] += vol;
     if (s.feature !== this.lastFeature) {
       this.lastFeature = s.feature;
       this.lastFeatureIndex = featureIndex(s.feature);
@@ -348,7 +357,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     const v = s.feedMms;
     if (v < this.fVMin[fi]) this.fVMin[fi] = v;
     if (v > this.fVMax[fi]) this.fVMax[fi] = v;
-    if (li >= 0 && planar) {
+    if (li >= 0 && li !== OVERFLOW_LAYER && planar) {
       const h = this.layerH[li];
       if (h > 0) {
         const w = lineWidthMm(vol / L, h);
@@ -393,7 +402,15 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       this.curLayer = id;
       return;
     }
-    if (this.layerZ.length >= MAX_LAYERS) return;
+    if (this.layerZ.length >= MAX_LAYERS) {
+      // Past the cap: keep counting layers (each new highest Z) without per-layer records.
+      if (z > this.maxLayerZ) {
+        this.overflowLayers++;
+        this.maxLayerZ = z;
+      }
+      this.curLayer = OVERFLOW_LAYER;
+      return;
+    }
     const n = this.layerZ.length;
     if (n < 2) this.eBeforeRecord[n] = this.netE - this.moveE;
     if (n === 1 && !this.preambleDecided) {
@@ -664,7 +681,9 @@ export class Measurements implements MotionSink, PlannedMoveSink {
         timeSeries: { bucketS: bucket, maxMm3s: tsMax, meanMm3s: tsMean },
       },
       layers: {
-        count: list.length,
+        count: list.length + this.overflowLayers,
+        listed: list.length,
+        overflowTimeS: this.overflowS,
         heightMm,
         firstHeightMm,
         list,

@@ -437,9 +437,9 @@ export class GcodeParser implements LineSink {
           continue;
         }
       }
-      const wordStartAfterSpace = i === start || buf[i - 1] === SPACE || buf[i - 1] === TAB;
+      const wordAt = i;
       i++;
-      const v = this.readNumber(buf, i, end, wordStartAfterSpace);
+      const v = this.readNumber(buf, i, end, wordAt === start || buf[wordAt - 1] === SPACE || buf[wordAt - 1] === TAB);
       const j = this.numEnd;
       if (j < 0) {
         // Letter without a number, e.g. "G28 X Y": present, no value. Bad text right after it is malformed.

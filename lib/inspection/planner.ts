@@ -210,10 +210,11 @@ export class MotionPlanner {
     let feed = s.feedMms;
     if (!(feed > 0)) return;
     if (L > 0) {
-      const ux = (s.x1 - s.x0) / L;
-      const uy = (s.y1 - s.y0) / L;
-      const uz = (s.z1 - s.z0) / L;
-      const ue = s.eMm / L;
+      const inv = 1 / L;
+      const ux = (s.x1 - s.x0) * inv;
+      const uy = (s.y1 - s.y0) * inv;
+      const uz = (s.z1 - s.z0) * inv;
+      const ue = s.eMm * inv;
       // Per-axis feed caps: |u_axis| · v ≤ vmax_axis (Marlin planner "speed_factor").
       const aux = ux < 0 ? -ux : ux;
       const auy = uy < 0 ? -uy : uy;
