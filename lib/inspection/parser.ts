@@ -508,32 +508,23 @@ export class GcodeParser implements LineSink {
       neg = buf[i] === MINUS;
       i++;
     }
-    let intPart = 0;
+    // One pass: all digits into an integer mantissa, counting those after the dot; one division
+    // at the end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits).
+    let mant = 0;
     let digits = 0;
+    let fd = -1;
     while (i < end) {
       const c = buf[i];
-      if (c < D0 || c > D9) break;
-      intPart = intPart * 10 + (c - D0);
-      digits++;
-      i++;
-    }
-    let v = intPart;
-    if (i < end && buf[i] === DOT) {
-      i++;
-      let frac = 0;
-      let fd = 0;
-      while (i < end) {
-        const c = buf[i];
-        if (c < D0 || c > D9) break;
-        if (fd < 22) {
-          frac = frac * 10 + (c - D0);
-          fd++;
-        }
+      if (c >= D0 && c <= D9) {
+        mant = mant * 10 + (c - D0);
         digits++;
-        i++;
-      }
-      if (fd > 0) v = intPart + frac / POW10[fd];
+        if (fd >= 0) fd++;
+      } else if (c === DOT && fd < 0) {
+        fd = 0;
+      } else break;
+      i++;
     }
+    let v = fd > 0 ? (fd < POW10.length ? mant / POW10[fd] : mant / Math.pow(10, fd)) : mant;
     if (digits === 0) {
       this.numEnd = -1;
       return NaN;

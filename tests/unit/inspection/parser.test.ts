@@ -246,6 +246,24 @@ describe('feature labels', () => {
   });
 });
 
+describe('numbers', () => {
+  it('decimals parse to the same double as ECMAScript Number() (correctly rounded, ECMA-262 §7.1.4.1.1)', () => {
+    let seed = 7;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) & 0x7fffffff) / 0x7fffffff);
+    const texts: string[] = [];
+    for (let k = 0; k < 2000; k++) {
+      const digits = 1 + Math.floor(rnd() * 6);
+      texts.push(`${rnd() < 0.3 ? '-' : ''}${Math.floor(rnd() * 400)}.${String(Math.floor(rnd() * 10 ** digits)).padStart(digits, '0')}`);
+    }
+    texts.push('0.1', '0.2', '0.3', '123.456', '.5', '5.', '-0.025', '199.99999');
+    const p = parse(texts.map((t) => `G1 X${t} F600`).join('\n'));
+    const xs = p.segments.map((s) => s.x1);
+    // Consecutive equal values make no move; compare the distinct run.
+    const expected = texts.map(Number).filter((v, i, a) => i === 0 ? v !== 0 : v !== a[i - 1]);
+    expect(xs).toEqual(expected);
+  });
+});
+
 describe('bad words', () => {
   it('malformed numbers warn with the line number and drop only that word', () => {
     const p = parse('G1 X1.2.3 Y5 F600\nG1 X--5 Y6\nG1 Xabc Y7');
