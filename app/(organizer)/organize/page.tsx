@@ -1,35 +1,69 @@
 import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth/guard';
-import { organizerSeasons } from '@/lib/queries';
+import { organizerDashboard } from '@/lib/seasons';
 import { StatePill } from '@/components/StatePill';
-import { formatDate } from '@/lib/format';
+import { formatDate, formatDateTime } from '@/lib/format';
 import { ENTRY_STATES } from '@/lib/domain';
 
 export const metadata = { title: 'Organize' };
 
+function waitedFor(h: number) {
+  return h < 48 ? `${Math.round(h)} h` : `${Math.round(h / 24)} days`;
+}
+
 export default async function OrganizePage() {
   await requirePageRole('/organize', 'organizer');
-  const seasons = await organizerSeasons();
+  const seasons = await organizerDashboard();
   return (
     <div className="space-y-6">
-      <h1>Organize</h1>
-      <section className="card overflow-x-auto">
-        <table className="table">
-          <thead>
-            <tr><th>Season</th><th>State</th><th>Dates</th>{ENTRY_STATES.map((s) => <th key={s} className="capitalize">{s}</th>)}</tr>
-          </thead>
-          <tbody>
-            {seasons.map((s) => (
-              <tr key={s.id}>
-                <td><Link href={`/seasons/${s.slug}`}>{s.name}</Link></td>
-                <td><StatePill state={s.state} /></td>
-                <td>{formatDate(s.opensAt)} – {formatDate(s.closesAt)}</td>
-                {ENTRY_STATES.map((st) => <td key={st} className="num">{s.entries[st]}</td>)}
-              </tr>
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <h1>Organize</h1>
+        <Link href="/organize/seasons/new" className="btn-primary">New season</Link>
+      </div>
+      {seasons.length === 0 && <p className="card">No seasons yet. Create the first one.</p>}
+      {seasons.map((s) => (
+        <section key={s.id} className="card space-y-4" aria-labelledby={`season-${s.id}`} data-testid="dashboard-season">
+          <div className="flex flex-wrap items-center justify-between gap-3">
+            <div className="flex flex-wrap items-center gap-3">
+              <h2 id={`season-${s.id}`}><Link href={`/organize/seasons/${s.id}`}>{s.name}</Link></h2>
+              <StatePill state={s.state} />
+              <span className="text-sm text-ink-600">{formatDate(s.opensAt, s.timeZone)} – {formatDate(s.closesAt, s.timeZone)}</span>
+            </div>
+            <Link href={`/organize/seasons/${s.id}`} className="btn-quiet">Manage<span className="sr-only"> {s.name}</span></Link>
+          </div>
+          <dl className="grid grid-cols-3 gap-3 sm:grid-cols-6">
+            {ENTRY_STATES.map((st) => (
+              <div key={st} className="rounded-lg bg-ink-50 p-2 text-center">
+                <dt className="text-xs capitalize text-ink-500">{st}</dt>
+                <dd className="num text-lg font-semibold" data-testid={`count-${st}`}>{s.entries[st]}</dd>
+              </div>
             ))}
-          </tbody>
-        </table>
-      </section>
+          </dl>
+          <div className="grid gap-4 sm:grid-cols-2">
+            <div>
+              <h3 className="text-sm font-semibold text-ink-700">Oldest entry waiting for review</h3>
+              {s.oldestWaiting ? (
+                <p className="text-sm" data-testid="oldest-waiting">
+                  #{s.oldestWaiting.entryId} by {s.oldestWaiting.entrant}, submitted {formatDateTime(s.oldestWaiting.submittedAt, s.timeZone)} — waiting {waitedFor(s.oldestWaiting.waitingH)}
+                </p>
+              ) : <p className="text-sm text-ink-600">Nothing is waiting.</p>}
+            </div>
+            <div>
+              <h3 className="text-sm font-semibold text-ink-700">Judges’ load</h3>
+              {s.judges.length === 0 ? <p className="text-sm text-ink-600">No judges appointed.</p> : (
+                <table className="table" data-testid="judge-load">
+                  <thead><tr><th>Judge</th><th className="text-right">Waiting for them</th><th className="text-right">Reviews done</th></tr></thead>
+                  <tbody>
+                    {s.judges.map((j) => (
+                      <tr key={j.userId}><td>{j.name}</td><td className="num text-right">{j.waiting}</td><td className="num text-right">{j.reviews}</td></tr>
+                    ))}
+                  </tbody>
+                </table>
+              )}
+            </div>
+          </div>
+        </section>
+      ))}
     </div>
   );
 }

@@ -1,8 +1,15 @@
-import { route } from '@/lib/http';
-import { requireRole } from '@/lib/auth/guard';
-import { organizerSeasons } from '@/lib/queries';
+import { route, readBody } from '@/lib/http';
+import { createSeason, organizerDashboard, requireOrganizer, seasonJson } from '@/lib/seasons';
+import { SeasonInputSchema } from '@/lib/seasons/schemas';
 
-export const GET = route(async () => {
-  await requireRole('organizer');
-  return Response.json({ seasons: await organizerSeasons() });
+export const GET = route(async (req) => {
+  await requireOrganizer(req);
+  return Response.json({ seasons: await organizerDashboard() });
+});
+
+export const POST = route(async (req) => {
+  const actor = await requireOrganizer(req);
+  const input = await readBody(req, SeasonInputSchema);
+  const season = await createSeason(actor, input);
+  return Response.json({ season: seasonJson(season), message: `${season.name} is created as a draft.` }, { status: 201 });
 });

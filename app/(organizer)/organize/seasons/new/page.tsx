@@ -1,0 +1,28 @@
+import Link from 'next/link';
+import { requirePageRole } from '@/lib/auth/guard';
+import { SeasonForm } from '@/components/organizer/SeasonForm';
+import { TIMING_CONVENTIONS } from '@/lib/seasons/schemas';
+import { utcToZonedLocal } from '@/lib/seasons/time';
+
+export const metadata = { title: 'New season' };
+
+export default async function NewSeasonPage() {
+  await requirePageRole('/organize/seasons/new', 'organizer');
+  const day = 24 * 3600_000;
+  const start = new Date(Math.ceil(Date.now() / day) * day + 7 * day + 12 * 3600_000);
+  return (
+    <div className="space-y-6">
+      <p className="text-sm"><Link href="/organize">← Organize</Link></p>
+      <h1>New season</h1>
+      <section className="card">
+        <SeasonForm
+          initial={{
+            name: '', slug: '', hostName: '', description: '',
+            opensAt: utcToZonedLocal(start, 'UTC'), closesAt: utcToZonedLocal(new Date(start.getTime() + 42 * day), 'UTC'), timeZone: 'UTC',
+            timingConvention: TIMING_CONVENTIONS[0], photosRequired: 2, photoKinds: [], videoRequired: true, entryLimit: 3, verificationsRequired: 1,
+          }}
+        />
+      </section>
+    </div>
+  );
+}

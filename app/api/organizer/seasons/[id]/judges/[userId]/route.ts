@@ -1,0 +1,12 @@
+import { route, parseInput } from '@/lib/http';
+import { removeJudge, requireOrganizer } from '@/lib/seasons';
+import { JudgeParams } from '@/lib/seasons/schemas';
+
+type Ctx = { params: Promise<{ id: string; userId: string }> };
+
+export const DELETE = route<Ctx>(async (req, ctx) => {
+  const actor = await requireOrganizer(req);
+  const { id, userId } = parseInput(JudgeParams, await ctx.params);
+  await removeJudge(actor, id, userId);
+  return Response.json({ message: 'Judge removed from this season.' });
+});

@@ -1,0 +1,52 @@
+/**
+ * Re-inspection of a whole season (after a rulebook change, or on the organizer's request): each
+ * entry with a G-code gets a new inspection row in state `queued` for its current file; old rows
+ * stay, so judges can compare what changed. The rows are created inside the caller's transaction;
+ * `startQueued` hands them to the entrant side's inspection queue once that transaction committed.
+ */
+import { Op, type Transaction } from 'sequelize';
+import { Entry, Inspection, Season } from '@/models';
+import { ENGINE_VERSION } from '@/lib/jobs';
+import { currentGcode, queueInspection } from '@/lib/entries/inspection';
+
+export interface Reinspection {
+  /** inspections newly queued */
+  queued: number;
+  /** entries already waiting for a queued or running inspection of their current file */
+  alreadyQueued: number;
+  /** entries without a G-code yet (nothing to re-run) */
+  withoutFile: number;
+  inspectionIds: number[];
+}
+
+export async function reinspectSeason(seasonId: number, opts: { transaction?: Transaction; now?: Date } = {}): Promise<Reinspection> {
+  const { transaction } = opts;
+  const now = opts.now ?? new Date();
+  const entries = await Entry.findAll({ where: { seasonId, state: { [Op.ne]: 'withdrawn' } }, attributes: ['id'], transaction });
+  const out: Reinspection = { queued: 0, alreadyQueued: 0, withoutFile: 0, inspectionIds: [] };
+  for (const entry of entries) {
+    const gcode = await currentGcode(entry.id);
+    if (!gcode) {
+      out.withoutFile += 1;
+      continue;
+    }
+    const pending = await Inspection.findOne({ where: { entryId: entry.id, storedFileId: gcode.id, status: ['queued', 'running'] }, transaction });
+    if (pending) {
+      out.alreadyQueued += 1;
+      continue;
+    }
+    const row = await Inspection.create(
+      { entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+      { transaction },
+    );
+    out.inspectionIds.push(row.id);
+    out.queued += 1;
+  }
+  await Season.update({ reinspectRequestedAt: now }, { where: { id: seasonId }, transaction });
+  return out;
+}
+
+/** Starts the queued inspections (call after the transaction that created them committed). */
+export function startQueued(r: Reinspection | null) {
+  for (const id of r?.inspectionIds ?? []) queueInspection(id);
+}

@@ -1,0 +1,61 @@
+/**
+ * Season dates are entered as a wall-clock time in the season's own time zone (an IANA name) and
+ * stored as UTC instants. Only the platform's Intl time-zone data is used: no library, and the
+ * offsets (including daylight-saving changes) come from the IANA tz database Node ships with.
+ * Client-safe: no Node or database imports.
+ */
+
+export const LOCAL_DATETIME_RE = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})$/;
+
+export function isTimeZone(tz: string): boolean {
+  if (!tz || tz.length > 64) return false;
+  try {
+    new Intl.DateTimeFormat('en-US', { timeZone: tz });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+function wallClockParts(utcMs: number, tz: string) {
+  const parts = new Intl.DateTimeFormat('en-US', {
+    timeZone: tz,
+    hourCycle: 'h23',
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+    second: '2-digit',
+  }).formatToParts(new Date(utcMs));
+  const get = (t: string) => Number(parts.find((p) => p.type === t)?.value);
+  return { y: get('year'), mo: get('month'), d: get('day'), h: get('hour'), mi: get('minute'), s: get('second') };
+}
+
+/** Offset of the zone from UTC at that instant, in ms (east positive: Europe/Berlin in winter = +3 600 000). */
+export function zoneOffsetMs(utcMs: number, tz: string): number {
+  const p = wallClockParts(utcMs, tz);
+  return Date.UTC(p.y, p.mo - 1, p.d, p.h, p.mi, p.s) - Math.floor(utcMs / 1000) * 1000;
+}
+
+/**
+ * "2026-12-01T18:00" in `tz` → the UTC instant. Two passes settle the offset next to a
+ * daylight-saving change; a wall time that does not exist (skipped hour) lands after the gap.
+ */
+export function zonedLocalToUtc(local: string, tz: string): Date {
+  const m = LOCAL_DATETIME_RE.exec(local);
+  if (!m) throw new RangeError(`Not a local date-time: ${JSON.stringify(local)}`);
+  const guess = Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]), Number(m[4]), Number(m[5]));
+  const first = zoneOffsetMs(guess, tz);
+  let t = guess - first;
+  const second = zoneOffsetMs(t, tz);
+  if (second !== first) t = guess - second;
+  return new Date(t);
+}
+
+/** The UTC instant as the wall-clock "YYYY-MM-DDTHH:mm" of `tz` (for datetime-local inputs). */
+export function utcToZonedLocal(date: Date, tz: string): string {
+  const p = wallClockParts(date.getTime(), tz);
+  const two = (n: number) => String(n).padStart(2, '0');
+  return `${p.y}-${two(p.mo)}-${two(p.d)}T${two(p.h)}:${two(p.mi)}`;
+}

@@ -1,0 +1,39 @@
+/** Everything the organizer's season page and its GET route show, in one plain object. */
+import { TestPiece } from '@/models';
+import type { SeasonState } from '@/lib/domain';
+import { managedSeason } from '@/lib/seasons/context';
+import { seasonJson } from '@/lib/seasons/editor';
+import { testPieceJson } from '@/lib/seasons/testPiece';
+import { classJson, seasonClasses } from '@/lib/seasons/classes';
+import { rulebookRules, rulesFreeze } from '@/lib/seasons/rulebook';
+import { NEXT_STATE, transitionBlockers } from '@/lib/seasons/lifecycle';
+import { seasonJudges } from '@/lib/seasons/judges';
+import { subscriberCount } from '@/lib/seasons/subscriptions';
+import { organizerDashboard } from '@/lib/seasons/dashboard';
+
+export async function organizerSeasonView(seasonId: number) {
+  const season = await managedSeason(seasonId);
+  const next = NEXT_STATE[season.state as SeasonState];
+  const [testPiece, classes, rules, freeze, judges, subscribers, [dashboard], blockers] = await Promise.all([
+    TestPiece.findOne({ where: { seasonId } }),
+    seasonClasses(seasonId),
+    rulebookRules(seasonId),
+    rulesFreeze(season),
+    seasonJudges(seasonId),
+    subscriberCount(seasonId),
+    organizerDashboard({ seasonId }),
+    next ? transitionBlockers(season, next) : Promise.resolve([] as string[]),
+  ]);
+  return {
+    season: seasonJson(season),
+    testPiece: testPieceJson(testPiece),
+    classes: classes.map(classJson),
+    rules,
+    freeze,
+    ...judges,
+    subscribers,
+    dashboard,
+    next: next ? { to: next, blockers } : null,
+  };
+}
+export type OrganizerSeasonView = Awaited<ReturnType<typeof organizerSeasonView>>;

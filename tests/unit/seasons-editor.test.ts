@@ -1,0 +1,101 @@
+/** Season editor inputs: dates in the season's time zone, overlapping dates, slugs, safe Markdown. */
+import { describe, expect, it } from 'vitest';
+import { SeasonInputSchema, ClassInputSchema } from '@/lib/seasons/schemas';
+import { fieldErrors } from '@/lib/http';
+import { isTimeZone, utcToZonedLocal, zonedLocalToUtc } from '@/lib/seasons/time';
+import { parseMarkdown, parseInline, plainText } from '@/lib/seasons/markdown';
+
+const valid = {
+  name: 'Thaw Dash', slug: 'thaw-dash', hostName: 'Millbrook Makers', description: '',
+  opensAt: '2027-03-01T18:00', closesAt: '2027-04-30T18:00', timeZone: 'Europe/Berlin',
+  timingConvention: 'First extrusion to last extrusion', photosRequired: 2, photoKinds: ['Top view'], videoRequired: true, entryLimit: 3, verificationsRequired: 1,
+};
+
+describe('SeasonInputSchema', () => {
+  it('accepts a complete season', () => {
+    expect(SeasonInputSchema.safeParse(valid).success).toBe(true);
+  });
+  it('refuses a close before the opening, on the closing field', () => {
+    const f = fieldErrors(SeasonInputSchema.safeParse({ ...valid, closesAt: '2027-02-28T18:00' }).error!);
+    expect(f.closesAt).toMatch(/close after it opens/);
+  });
+  it('refuses equal open and close times', () => {
+    expect(fieldErrors(SeasonInputSchema.safeParse({ ...valid, closesAt: valid.opensAt }).error!).closesAt).toBeDefined();
+  });
+  it('refuses a slug with capitals or spaces and says what to use', () => {
+    expect(fieldErrors(SeasonInputSchema.safeParse({ ...valid, slug: 'Thaw Dash' }).error!).slug).toMatch(/lower-case letters/);
+  });
+  it('refuses an unknown time zone', () => {
+    expect(fieldErrors(SeasonInputSchema.safeParse({ ...valid, timeZone: 'Mars/Olympus' }).error!).timeZone).toMatch(/IANA/);
+  });
+  it('refuses more photo descriptions than photos', () => {
+    expect(fieldErrors(SeasonInputSchema.safeParse({ ...valid, photosRequired: 0 }).error!).photoKinds).toMatch(/at most as many/);
+  });
+});
+
+describe('ClassInputSchema', () => {
+  it('reads a comma-separated nozzle list and names a word that is not a number', () => {
+    expect(ClassInputSchema.parse({ name: 'Open', slug: 'open', nozzleDiametersMm: '0.4, 0.5' }).nozzleDiametersMm).toEqual([0.4, 0.5]);
+    const f = fieldErrors(ClassInputSchema.safeParse({ name: 'Open', slug: 'open', nozzleDiametersMm: '0.4, big' }).error!);
+    expect(f['nozzleDiametersMm.1']).toMatch(/"big" is not a number/);
+  });
+  it('refuses a build-volume band upside down', () => {
+    const f = fieldErrors(ClassInputSchema.safeParse({ name: 'Open', slug: 'open', buildVolumeMinMm: '300', buildVolumeMaxMm: '200' }).error!);
+    expect(f.buildVolumeMaxMm).toMatch(/must not be below/);
+  });
+});
+
+describe('season dates in the season time zone', () => {
+  // IANA tz database: Europe/Berlin is UTC+1 (CET) in winter and UTC+2 (CEST) in summer; EU
+  // summer time starts on the last Sunday of March at 01:00 UTC (Directive 2000/84/EC, art. 2),
+  // i.e. 2027-03-28.
+  it('converts winter and summer wall-clock times', () => {
+    expect(zonedLocalToUtc('2027-01-15T18:00', 'Europe/Berlin').toISOString()).toBe('2027-01-15T17:00:00.000Z');
+    expect(zonedLocalToUtc('2027-07-15T18:00', 'Europe/Berlin').toISOString()).toBe('2027-07-15T16:00:00.000Z');
+  });
+  it('handles the morning of the change', () => {
+    expect(zonedLocalToUtc('2027-03-28T01:30', 'Europe/Berlin').toISOString()).toBe('2027-03-28T00:30:00.000Z');
+    expect(zonedLocalToUtc('2027-03-28T03:30', 'Europe/Berlin').toISOString()).toBe('2027-03-28T01:30:00.000Z');
+  });
+  // US daylight time starts the second Sunday of March (Energy Policy Act of 2005, §110):
+  // 2027-03-14; America/Chicago is UTC−6 before, UTC−5 after.
+  it('converts a US zone across its change', () => {
+    expect(zonedLocalToUtc('2027-03-13T12:00', 'America/Chicago').toISOString()).toBe('2027-03-13T18:00:00.000Z');
+    expect(zonedLocalToUtc('2027-03-15T12:00', 'America/Chicago').toISOString()).toBe('2027-03-15T17:00:00.000Z');
+  });
+  it('round-trips to the wall clock the organizer typed', () => {
+    for (const tz of ['UTC', 'Europe/Berlin', 'America/Chicago', 'Asia/Kolkata', 'Pacific/Auckland']) {
+      expect(utcToZonedLocal(zonedLocalToUtc('2027-02-10T09:45', tz), tz)).toBe('2027-02-10T09:45');
+    }
+    // Asia/Kolkata is UTC+5:30 all year (IANA tz database).
+    expect(zonedLocalToUtc('2027-02-10T09:45', 'Asia/Kolkata').toISOString()).toBe('2027-02-10T04:15:00.000Z');
+  });
+  it('knows real zones from made-up ones', () => {
+    expect(isTimeZone('Europe/Berlin')).toBe(true);
+    expect(isTimeZone('Nowhere/Land')).toBe(false);
+    expect(isTimeZone('')).toBe(false);
+  });
+});
+
+describe('season description Markdown', () => {
+  it('parses headings, lists and emphasis', () => {
+    const blocks = parseMarkdown('# Rules\n\nPrint **fast**, keep it *clean*.\n\n- one\n- two\n\n1. first\n2. second');
+    expect(blocks.map((b) => b.type)).toEqual(['heading', 'paragraph', 'list', 'list']);
+    expect(blocks[2]).toMatchObject({ type: 'list', ordered: false });
+    expect(blocks[3]).toMatchObject({ type: 'list', ordered: true });
+    expect(plainText('Print **fast**, keep it *clean*.')).toBe('Print fast, keep it clean.');
+  });
+  it('keeps raw HTML as text and drops unsafe link targets', () => {
+    expect(parseInline('<script>alert(1)</script>')).toEqual([{ type: 'text', text: '<script>alert(1)</script>' }]);
+    const js = parseInline('[click](javascript:alert(1))');
+    expect(js.some((n) => n.type === 'link')).toBe(false);
+    expect(js.map((n) => (n.type === 'text' ? n.text : '')).join('')).toBe('click)');
+    expect(parseInline('[img](data:text/html;base64,PHNjcmlwdD4=)')).toEqual([{ type: 'text', text: 'img' }]);
+    expect(parseInline('[video](https://video.example.org/run)')).toEqual([{ type: 'link', href: 'https://video.example.org/run', children: [{ type: 'text', text: 'video' }] }]);
+    expect(parseInline('[x](//evil.example.org)')).toEqual([{ type: 'text', text: 'x' }]);
+  });
+  it('stays bounded on hostile input', () => {
+    const blocks = parseMarkdown('*'.repeat(50_000) + '['.repeat(10_000));
+    expect(blocks.length).toBeGreaterThan(0);
+  });
+});
