@@ -4,7 +4,11 @@ import { publicSeason } from '@/lib/seasonView';
 import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { formatDateTime } from '@/lib/format';
-import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
+import { Markdown } from '@/components/organizer/Markdown';
+import { SubscribeForm } from '@/components/organizer/SubscribeForm';
+import { eligibilityText } from '@/lib/seasons/eligibility';
+import { currentUser } from '@/lib/auth/guard';
+import { isSubscribed } from '@/lib/seasons/subscriptions';
 
 export default async function SeasonPage({ params }: { params: Promise<{ slug: string }> }) {
   const { slug } = await params;
@@ -12,6 +16,8 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
   if (!view) notFound();
   const { season, classes, rules, testPiece } = view;
   const seasonRules = rules.filter((r) => r.classId == null);
+  const user = await currentUser();
+  const subscribed = user ? await isSubscribed(season.id, user.id) : false;
   return (
     <div className="space-y-8">
       <header>
@@ -22,8 +28,9 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
         <p className="text-ink-600">
           Hosted by {season.hostName} · {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}
         </p>
-        <p className="mt-3 max-w-3xl whitespace-pre-line text-ink-800">{season.description}</p>
+        <Markdown source={season.description} className="mt-3 max-w-3xl text-ink-800" />
         <p className="mt-2 text-sm text-ink-600">Timing: {season.timingConvention}. Evidence: {season.photosRequired} photos{season.videoRequired ? ' and a video link' : ''}.</p>
+        <div className="mt-3"><SubscribeForm slug={season.slug} back={`/seasons/${season.slug}`} subscribed={subscribed} signedIn={!!user} /></div>
       </header>
       {testPiece && (
         <section className="card">
@@ -41,17 +48,14 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
             <li key={c.id} className="card">
               <h3 className="font-semibold"><Link href={`/seasons/${season.slug}/classes/${c.slug}`}>{c.name}</Link></h3>
               <p className="text-sm text-ink-600">{c.description}</p>
-              <p className="mt-2 text-xs text-ink-500">
-                {c.nozzleDiametersMm.length ? `Nozzle ${c.nozzleDiametersMm.join(' / ')} mm` : c.nozzleMinMm ? `Nozzle ${c.nozzleMinMm} mm and up` : 'Any nozzle'}
-                {c.motionSystems.length ? ` · ${c.motionSystems.map((m) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m).join(', ')}` : ''}
-                {c.buildVolumeMaxMm ? ` · build volume up to ${c.buildVolumeMaxMm} mm` : ''}
-              </p>
+              <p className="mt-2 text-xs text-ink-500">{eligibilityText(c)}</p>
             </li>
           ))}
         </ul>
       </section>
       <section>
         <h2 className="mb-3">Rulebook</h2>
+        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/rulebook`}>Full rulebook with class rules and safety notes</Link></p>
         <ol className="card list-decimal space-y-1 pl-10">
           {seasonRules.map((r) => (
             <li key={r.id}>
