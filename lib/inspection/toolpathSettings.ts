@@ -100,6 +100,13 @@ export interface LayerRecord {
   /** Σ volume and Σ area×h over SPARSE blocks. */
   sparseVolMm3: number;
   sparseAreaMm2: number;
+  /** First layer of its sequence (on the bed: brim, skirt and bottom skin; never used for walls or infill). */
+  firstOfSequence: boolean;
+  /** Closed loops inside the part that are not walls (concentric infill, infill outlines). */
+  innerLoops: number;
+  /** Σ volume and area over every cell of the infill region (deeper than the walls + 1.5 w). */
+  deepVolMm3: number;
+  deepAreaMm2: number;
   sparseBlocks: number;
   solidBlocks: number;
   loopWidthMm: number | null;
@@ -152,8 +159,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   let refWidthMm = 0;
   /** Width histogram of loop segments, 0.005 mm bins, length-weighted. */
   const loopWidthHist = new Float64Array(600);
-  /** Same for the extrusion spacing A ÷ h (the rectangle-equivalent width). */
-  const loopSpacingHist = new Float64Array(600);
+  /** Extrusion spacing A ÷ h (the rectangle-equivalent width) of outer-wall loops (band 1). */
+  const outerSpacingHist = new Float64Array(600);
 
   function ensureCapacity(): void {
     if (nSeg * 5 + 5 > seg.length) {
@@ -244,7 +251,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       layerCount++;
       skippedLayers++;
       columns.abandon();
-      if (layers.length < MAX_LAYERS) layers.push(emptyRecord(z, h, layerVolumeMm3, nSkippedSeg, sequence));
+      if (layers.length < MAX_LAYERS) layers.push(emptyRecord(z, h, layerVolumeMm3, nSkippedSeg, sequence, Number.isNaN(prevLayerZ)));
       prevLayerZ = z;
       nSkippedSeg = 0;
       layerVolumeMm3 = 0;
@@ -260,7 +267,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     }
     const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
     try {
-      analyseLayer(z, h);
+      analyseLayer(z, h, Number.isNaN(prevLayerZ));
     } catch (err) {
       if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} could not be analysed: ${(err as Error).message}`);
     }
@@ -307,9 +314,9 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     return histMedian(hist, 0.005);
   }
 
-  function analyseLayer(z: number, h: number): void {
+  function analyseLayer(z: number, h: number, firstOfSequence: boolean): void {
     layerCount++;
-    const rec = emptyRecord(z, h, layerVolumeMm3, nSeg, sequence);
+    const rec = emptyRecord(z, h, layerVolumeMm3, nSeg, sequence, firstOfSequence);
     if (layers.length < MAX_LAYERS) layers.push(rec);
     if (!(h > 0.01 && h < 2)) {
       columns.abandon();
@@ -414,12 +421,13 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     // (outer wall = band 1). Walls on the layer = bands 1…K all present.
     const loopBands: number[] = [];
     const widthHistLayer = new Float64Array(600);
-    const spacingHistLayer = new Float64Array(600);
+    const outerHistLayer = new Float64Array(600);
     let spacingSum = 0;
     let spacingLen = 0;
     const bandsSeen = new Uint8Array(16);
     const seen = new Int32Array(16);
     const maxWalkMm = 16 * medianWidth;
+    const adjacentMm = 1.2 * medianWidth;
     const bandVotes: number[] = [];
     for (let ch = 0; ch < nChains; ch++) {
       if (!isLoop[ch]) continue;
@@ -435,12 +443,12 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
         spacingLen += len;
         const bw = Math.min(599, Math.max(0, Math.round(widthOf(A, h) / 0.005)));
         widthHistLayer[bw] += len;
-        spacingHistLayer[Math.min(599, Math.max(0, Math.round(A / h / 0.005)))] += len;
       }
       // About 24 probes per loop, at segment midpoints spread along it.
       const every = loopLen / 24;
       let acc = every / 2;
       bandVotes.length = 0;
+      let adjacentVotes = 0;
       for (let i = a; i < b; i++) {
         const o = i * 5;
         const x0 = seg[o];
@@ -455,15 +463,34 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
           const nx = -ey / len;
           const ny = ex / len;
           const n1 = grid.loopsCrossed(px, py, nx, ny, ch, maxWalkMm, seen);
+          const g1 = grid.lastGapMm;
           const n2 = grid.loopsCrossed(px, py, -nx, -ny, ch, maxWalkMm, seen);
-          const n = n1 < 0 ? n2 : n2 < 0 ? n1 : Math.min(n1, n2);
-          if (n >= 0) bandVotes.push(n + 1);
+          const g2 = grid.lastGapMm;
+          // The shorter way out: fewer loops crossed, then the nearer neighbour.
+          const use1 = n2 < 0 || (n1 >= 0 && (n1 < n2 || (n1 === n2 && g1 <= g2)));
+          const n = use1 ? n1 : n2;
+          if (n >= 0) {
+            bandVotes.push(n + 1);
+            // A wall touches the next loop out (or the outside) within about one width; loops
+            // further in (concentric infill, infill outlines under a skin) or only partly along
+            // the wall (an infill zigzag that happens to close) are not walls: ≥ 70 % of probes must touch.
+            if ((use1 ? g1 : g2) <= adjacentMm) adjacentVotes++;
+          }
           acc += every;
         }
         acc -= len;
       }
-      if (bandVotes.length > 0) {
+      if (bandVotes.length > 0 && adjacentVotes < 0.7 * bandVotes.length) {
+        rec.innerLoops++;
+      } else if (bandVotes.length > 0) {
         const band = Math.round(median(bandVotes));
+        if (band === 1) {
+          for (let i = a; i < b; i++) {
+            const o = i * 5;
+            const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+            outerHistLayer[Math.min(599, Math.max(0, Math.round(seg[o + 4] / h / 0.005)))] += len;
+          }
+        }
         loopBands.push(band);
         if (band < bandsSeen.length) bandsSeen[band] = 1;
       }
@@ -478,7 +505,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     if (rec.walls !== null && rec.walls > 0) {
       for (let b = 0; b < 600; b++) {
         loopWidthHist[b] += widthHistLayer[b];
-        loopSpacingHist[b] += spacingHistLayer[b];
+        outerSpacingHist[b] += outerHistLayer[b];
       }
     }
 
@@ -498,6 +525,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
         const fCells = blockBuf[o];
         const dCells = blockBuf[o + 1];
         const dVol = blockBuf[o + 2];
+        rec.deepVolMm3 += dVol;
+        rec.deepAreaMm2 += dCells * cellArea;
         let state: number;
         if (fCells < 0.1 * blockCells) state = S_EMPTY;
         else if (dCells >= blockCells) {
@@ -525,7 +554,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   }
 
   function result(): MeasuredSettings {
-    const out = summarise(layers, layerCount, columns, loopWidthHist, loopSpacingHist, warnings);
+    const out = summarise(layers, layerCount, columns, loopWidthHist, outerSpacingHist, warnings);
     out.analysedLayers = analysedLayers;
     if (skippedLayers > 0) {
       const note = ` Large file: ${analysedLayers} of ${analysedLayers + skippedLayers} layers analysed in full (windows of ${SAMPLE_WINDOW_LAYERS}).`;
@@ -537,8 +566,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   return { segment, end, result };
 }
 
-function emptyRecord(z: number, h: number, volumeMm3: number, segments: number, sequence: number): LayerRecord {
-  return { z, h, volumeMm3, segments, walls: null, sparseVolMm3: 0, sparseAreaMm2: 0, sparseBlocks: 0, solidBlocks: 0, loopWidthMm: null, sequence };
+function emptyRecord(z: number, h: number, volumeMm3: number, segments: number, sequence: number, firstOfSequence: boolean): LayerRecord {
+  return { z, h, volumeMm3, segments, firstOfSequence, walls: null, innerLoops: 0, sparseVolMm3: 0, sparseAreaMm2: 0, deepVolMm3: 0, deepAreaMm2: 0, sparseBlocks: 0, solidBlocks: 0, loopWidthMm: null, sequence };
 }
 
 function median(v: number[]): number {
@@ -576,7 +605,7 @@ function modeOf(m: Map<number, number>): { value: number; count: number; total: 
 
 const pct = (a: number, b: number) => `${Math.round((a / b) * 100)} %`;
 
-function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, loopSpacingHist: Float64Array, warnings: string[]): MeasuredSettings {
+function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, outerSpacingHist: Float64Array, warnings: string[]): MeasuredSettings {
   const unknown = (detail: string): MeasuredFigure => ({ value: null, detail });
   const out: MeasuredSettings = {
     walls: unknown('No layers with closed loops.'),
@@ -610,17 +639,27 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
   const first = main.reduce((a, b) => (b.z < a.z ? b : a), main[0]);
   out.first_layer_height_mm = { value: Math.round(first.z * 1000) / 1000, detail: 'Z of the lowest printed layer (bed at Z 0).' };
 
-  // Walls: mode over mid-height layers (20–80 % of the layer count), preferring layers with sparse infill.
+  // Walls: mode over "clean" sparse layers — sparse infill throughout, no loops inside the walls —
+  // where perimeters are complete (thin features squeeze them out) and no slicer extras sit next to
+  // them (CuraEngine's skin outline and skin-edge support print a loop right inside the inner wall
+  // on skin layers and the layers under a skin). Fallbacks: any layer with sparse infill, then
+  // mid-height layers.
+  const hasWalls = (l: LayerRecord) => l.walls !== null && l.walls > 0 && !l.firstOfSequence;
+  const clean = main.filter((l) => hasWalls(l) && l.sparseBlocks > 0 && l.solidBlocks === 0 && l.innerLoops === 0);
+  const withSparse = main.filter((l) => hasWalls(l) && l.sparseBlocks > 0);
   const lo = Math.floor(main.length * 0.2);
   const hi = Math.max(lo + 1, Math.ceil(main.length * 0.8));
-  const mid = main.slice(lo, hi).filter((l) => l.walls !== null && l.walls > 0);
-  const midSparse = mid.filter((l) => l.sparseBlocks > 0);
-  const wallLayers = midSparse.length >= 3 ? midSparse : mid;
+  const mid = main.slice(lo, hi).filter(hasWalls);
+  const [wallLayers, wallNote] =
+    clean.length >= 1 ? [clean, 'sparse layers without extra loops'] : withSparse.length >= 3 ? [withSparse, 'layers with sparse infill'] : [mid, 'mid-height layers'];
   if (wallLayers.length > 0) {
     const m = new Map<number, number>();
     for (const l of wallLayers) m.set(l.walls!, (m.get(l.walls!) ?? 0) + 1);
     const wm = modeOf(m)!;
-    out.walls = { value: wm.value, detail: `Mode over ${wm.total} mid-height layers (Z ${wallLayers[0].z.toFixed(2)}–${wallLayers[wallLayers.length - 1].z.toFixed(2)} mm); ${pct(wm.count, wm.total)} agree.` };
+    out.walls = {
+      value: wm.value,
+      detail: `Closed loops counted from the outside in; mode over ${wm.total} ${wallNote} (Z ${wallLayers[0].z.toFixed(2)}–${wallLayers[wallLayers.length - 1].z.toFixed(2)} mm); ${pct(wm.count, wm.total)} agree.`,
+    };
   }
 
   // Top and bottom: mode over columns.
@@ -629,36 +668,46 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
   const tm = modeOf(columns.topRuns);
   if (tm) out.top_layers = { value: tm.value, detail: `Solid layers under top surfaces in ${tm.total} columns; ${pct(tm.count, tm.total)} show ${tm.value}.` };
 
-  // Infill: median over layers with a measurable sparse region (≥ 4 blocks). Prefer layers that are
-  // sparse throughout and carry no loops beyond the walls: CuraEngine's skin-edge support adds
-  // infill outlines (extra loops) to the layers under a top skin, and layers at a top/bottom edge mix
-  // solid and sparse blocks.
+  // Infill: extruded volume ÷ (area × h) of the infill region, summed over layers with a sparse
+  // region of at least 16 mm². Summing (not a median) makes "infill every n layers" (one thick
+  // sparse layer per n) come out right. Prefer layers that are sparse throughout and carry no loops
+  // beyond the walls: CuraEngine's skin-edge support adds infill outlines (extra loops) under a top
+  // skin, and layers at a top/bottom edge mix solid and sparse blocks.
   const wallsMode = out.walls.value;
-  const candidates = main.filter((l) => l.sparseBlocks >= 4 && l.sparseAreaMm2 > 0);
+  const candidates = main.filter((l) => !l.firstOfSequence && l.sparseBlocks >= 1 && l.deepAreaMm2 >= 16);
   const tiers = [
-    { layers: candidates.filter((l) => l.solidBlocks === 0 && (wallsMode === null || l.walls === null || l.walls <= wallsMode)), note: 'sparse throughout, no loops beyond the walls' },
+    { layers: candidates.filter((l) => l.solidBlocks === 0 && l.innerLoops === 0 && (wallsMode === null || l.walls === null || l.walls <= wallsMode)), note: 'sparse throughout, no loops inside the walls' },
     { layers: candidates.filter((l) => l.solidBlocks === 0), note: 'sparse throughout' },
-    { layers: candidates, note: 'with some sparse region' },
+    { layers: candidates.filter((l) => l.sparseAreaMm2 > 0), note: 'with some sparse region', sparseOnly: true },
   ];
-  const tier = tiers.find((t) => t.layers.length >= 2) ?? tiers.find((t) => t.layers.length >= 1);
+  const tier = tiers.find((t) => t.layers.length >= 1);
   if (tier) {
-    const fr = tier.layers.map((l) => (l.sparseVolMm3 / (l.sparseAreaMm2 * l.h)) * 100);
-    const med = median(fr);
+    let vol = 0;
+    let areaH = 0;
+    const fr: number[] = [];
+    for (const l of tier.layers) {
+      const v = tier.sparseOnly ? l.sparseVolMm3 : l.deepVolMm3;
+      const ar = tier.sparseOnly ? l.sparseAreaMm2 : l.deepAreaMm2;
+      vol += v;
+      areaH += ar * l.h;
+      fr.push((v / (ar * l.h)) * 100);
+    }
     out.infill_percent = {
-      value: Math.round(med * 10) / 10,
-      detail: `Volume fraction of the infill region, median over ${tier.layers.length} layers ${tier.note} (range ${Math.min(...fr).toFixed(1)}–${Math.max(...fr).toFixed(1)} %).`,
+      value: Math.round((vol / areaH) * 1000) / 10,
+      detail: `Volume fraction of the infill region over ${tier.layers.length} layers ${tier.note} (per layer ${Math.min(...fr).toFixed(1)}–${Math.max(...fr).toFixed(1)} %, median ${median(fr).toFixed(1)} %).`,
     };
   }
 
   const lw = histMedian(loopWidthHist, 0.005);
   if (lw > 0) {
     out.line_width_mm = { value: Math.round(lw * 1000) / 1000, detail: 'Median wall-loop width from the flow model (rectangle with round ends).' };
-    // Nozzle: the extrusion spacing A ÷ h sits at 95–110 % of the nozzle for slicer defaults
-    // (PrusaSlicer 0.45 mm lines → 0.41 mm spacing on a 0.4 nozzle; CuraEngine 0.4 → 0.4); snap it
-    // to the nearest standard size by ratio (common practice, no source).
-    const spacing = histMedian(loopSpacingHist, 0.005);
+    // Nozzle: the outer wall's extrusion spacing A ÷ h sits at 95–115 % of the nozzle for slicer
+    // defaults (PrusaSlicer 0.45 mm lines → 0.41 mm spacing on a 0.4 nozzle; Slic3r 1.3 auto outer
+    // wall 1.1 × nozzle; CuraEngine 0.4 → 0.4), while inner walls may be much wider (Slic3r auto:
+    // 1.4 × nozzle). Snap it to the nearest standard size by ratio (common practice, no source).
+    const spacing = histMedian(outerSpacingHist, 0.005);
     const nozzle = STANDARD_NOZZLES_MM.reduce((a, b) => (Math.abs(Math.log(spacing / b)) < Math.abs(Math.log(spacing / a)) ? b : a));
-    out.nozzle_mm = { value: nozzle, detail: `Estimate: wall extrusion spacing ${spacing.toFixed(3)} mm (width ${lw.toFixed(3)} mm) snapped to the nearest standard nozzle size; slicers let line width differ from the nozzle, so treat as a hint.` };
+    out.nozzle_mm = { value: nozzle, detail: `Estimate: outer-wall extrusion spacing ${spacing.toFixed(3)} mm (all walls: width ${lw.toFixed(3)} mm) snapped to the nearest standard nozzle size; slicers let line width differ from the nozzle, so treat as a hint.` };
   }
   if (columns.overflowed) warnings.push('Too many XY columns to follow; top/bottom counts use part of the bed.');
   return out;

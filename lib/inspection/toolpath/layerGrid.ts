@@ -5,8 +5,7 @@
  * Cell labels after `classify()`:
  *   PAINT_LOOP / PAINT_OTHER — covered by an extrusion that is part of a closed loop / anything else,
  *   OUTSIDE — empty and connected to the grid border,
- *   HOLE — empty, enclosed, wide and bounded almost only by loops (a hole through the part, the gap
- *          inside a skirt),
+ *   HOLE — empty, enclosed, wide and bounded almost only by one loop (a hole through the part),
  *   GAP — empty but enclosed otherwise: the space between sparse-infill lines, inside the part.
  * The part's filled region F is every cell that is neither OUTSIDE nor HOLE.
  */
@@ -38,6 +37,8 @@ export class LayerGrid {
   dist = new Uint16Array(0);
   /** Loop number + 1 of the closed loop painted last over each cell (0: none). */
   loopId = new Int32Array(0);
+  /** Set by loopsCrossed(). */
+  lastGapMm = 0;
   private queue = new Int32Array(0);
 
   reset(originX: number, originY: number, cellMm: number, nx: number, ny: number): void {
@@ -117,8 +118,8 @@ export class LayerGrid {
 
   /**
    * Label empty cells OUTSIDE / HOLE / GAP. A hole must be at least `holeMinThicknessMm` thick
-   * (2 × area ÷ border length) and have ≥ 85 % of its border on loop paint: sparse-infill gaps are
-   * bounded by infill lines, thin slivers between walls are too narrow.
+   * (2 × area ÷ border length), have ≥ 85 % of its border on loop paint and that mostly of one loop:
+   * sparse-infill gaps are bounded by infill lines, thin slivers between walls are too narrow.
    * The grid's outermost ring of cells is taken as outside (callers leave an empty margin), so the
    * floods below never need bounds checks.
    */
@@ -198,6 +199,10 @@ export class LayerGrid {
       q[qt++] = s;
       let borderLoop = 0;
       let borderOther = 0;
+      // Majority vote (Boyer–Moore) over the loop numbers on the border.
+      let voteId = 0;
+      let vote = 0;
+      const loopId = this.loopId;
       while (qh < qt) {
         const k = q[qh++];
         for (let d = 0; d < 4; d++) {
@@ -206,14 +211,25 @@ export class LayerGrid {
           if (l === EMPTY) {
             lab[m] = TMP;
             q[qt++] = m;
-          } else if (l === PAINT_LOOP) borderLoop++;
+          } else if (l === PAINT_LOOP) {
+            borderLoop++;
+            const id = loopId[m];
+            if (vote === 0) {
+              voteId = id;
+              vote = 1;
+            } else if (id === voteId) vote++;
+            else vote--;
+          }
           else if (l === PAINT_OTHER) borderOther++;
         }
       }
       const areaMm2 = qt * this.cellMm * this.cellMm;
       const borderMm = (borderLoop + borderOther) * this.cellMm;
       const thicknessMm = borderMm > 0 ? (2 * areaMm2) / borderMm : 0;
-      const isHole = thicknessMm >= holeMinThicknessMm && borderLoop >= 0.85 * (borderLoop + borderOther);
+      // One loop must own ≥ 90 % of the loop border (vote ≥ 0.8 × border is equivalent): a hole is
+      // ringed by its own innermost wall, while the gaps of concentric infill or the ring inside a
+      // skirt touch two loops.
+      const isHole = thicknessMm >= holeMinThicknessMm && borderLoop >= 0.85 * (borderLoop + borderOther) && vote >= 0.8 * borderLoop;
       const to = isHole ? HOLE : GAP;
       if (isHole) holes++;
       else gaps++;
@@ -312,7 +328,8 @@ export class LayerGrid {
   /**
    * Walk from (x, y) along (dx, dy) (unit vector) until leaving the filled region F and count the
    * distinct loops crossed on the way, other than `selfLoop`. Returns −1 when F is not left within
-   * maxMm (the walk went into the part instead of out of it).
+   * maxMm (the walk went into the part instead of out of it). `lastGapMm` is set to the distance
+   * walked before meeting the first other loop (or leaving F when none was crossed).
    */
   loopsCrossed(x: number, y: number, dx: number, dy: number, selfLoop: number, maxMm: number, seen: Int32Array): number {
     const c = this.cellMm;
@@ -320,15 +337,19 @@ export class LayerGrid {
     const nSteps = Math.ceil(maxMm / step);
     let count = 0;
     let last = selfLoop + 1;
+    this.lastGapMm = maxMm;
     for (let i = 1; i <= nSteps; i++) {
       const gx = Math.floor((x + dx * step * i - this.originX) / c);
       const gy = Math.floor((y + dy * step * i - this.originY) / c);
-      if (gx < 0 || gy < 0 || gx >= this.nx || gy >= this.ny) return count;
-      const k = gy * this.nx + gx;
-      const l = this.label[k];
-      if (l === OUTSIDE || l === HOLE) return count;
-      const id = this.loopId[k];
+      const off = gx < 0 || gy < 0 || gx >= this.nx || gy >= this.ny;
+      const l = off ? OUTSIDE : this.label[gy * this.nx + gx];
+      if (l === OUTSIDE || l === HOLE) {
+        if (count === 0) this.lastGapMm = step * i;
+        return count;
+      }
+      const id = this.loopId[gy * this.nx + gx];
       if (id !== 0 && id !== last && id !== selfLoop + 1) {
+        if (count === 0) this.lastGapMm = step * i;
         let known = false;
         for (let j = 0; j < count; j++) if (seen[j] === id) known = true;
         if (!known && count < seen.length) seen[count++] = id;

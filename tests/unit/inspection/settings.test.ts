@@ -96,7 +96,7 @@ describe('settings measured from toolpaths equal the sliced settings on every fi
     for (const k of ['walls', 'top_layers', 'bottom_layers', 'infill_percent', 'layer_height_mm', 'first_layer_height_mm', 'line_width_mm', 'nozzle_mm'] as const) {
       expect(m[k].detail.length, k).toBeGreaterThan(10);
     }
-    expect(m.walls.detail).toMatch(/mid-height layers.*agree/);
+    expect(m.walls.detail).toMatch(/mode over \d+ sparse layers without extra loops.*agree/);
     expect(m.analysedLayers).toBe(m.layers - 1); // all but the prime line's "layer" at Z 0.3
   });
 
