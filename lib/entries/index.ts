@@ -1,0 +1,380 @@
+/**
+ * Entries from the entrant's side: create a draft with its files (one upload), replace files,
+ * submit, withdraw, and read an entry with its inspection and review history.
+ *
+ * Nothing is lost: an upload is checked (fields, season, class, machine, file types, photos)
+ * before anything is written; entry, files and inspection row are then created in one
+ * transaction, and files moved into storage are removed again if it rolls back.
+ */
+import { Op } from 'sequelize';
+import { ContestClass, Entry, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
+import { getSequelize } from '@/lib/db';
+import { conflict, HttpError, notFound, unprocessable } from '@/lib/errors';
+import { parseInput } from '@/lib/http';
+import { receiveUpload, type UploadResult } from '@/lib/uploads';
+import { audit } from '@/lib/audit';
+import { appUrl, linkMail, sendMail } from '@/lib/mail';
+import type { EntryState } from '@/lib/domain';
+import { MATERIALS, type MaterialFamily } from '@/lib/inspection/materials';
+import { EntryDetailsSchema, parseClaimedTime, type EntryDetails } from './schema';
+import { classEligibility } from './eligibility';
+import { checkGcode, checkPhotos, ENTRY_UPLOAD_SPEC, FileWriter, type CheckedGcode, type CheckedPhoto } from './files';
+import { ENGINE_VERSION } from '@/lib/jobs';
+import { currentGcode, inspectionJson, latestInspection, queueInspection, reinspect, resumeInspection } from './inspection';
+
+export { ENTRY_UPLOAD_SPEC } from './files';
+
+/** States an entry counts against the season's entry limit in. */
+const COUNTED_STATES: EntryState[] = ['draft', 'submitted', 'verified', 'returned', 'rejected'];
+/** States in which the entrant may change files and details. */
+const EDITABLE_STATES: EntryState[] = ['draft', 'returned'];
+const WITHDRAWABLE_STATES: EntryState[] = ['draft', 'submitted', 'returned', 'verified'];
+
+/** The caller's entry or a 404 (others' entries, drafts included, are private). */
+export async function ownEntry(userId: number, id: number): Promise<Entry> {
+  const e = Number.isInteger(id) ? await Entry.findOne({ where: { id, entrantId: userId } }) : null;
+  if (!e) throw notFound('No such entry.');
+  return e;
+}
+
+function requireOpen(season: Season) {
+  if (season.state !== 'open') throw conflict(`${season.name} is not open for entries (it is ${season.state}).`);
+}
+
+/** Season, class and machine for new details, with every check a person can fail. */
+async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: number) {
+  const season = await Season.findByPk(d.seasonId);
+  if (!season || season.state === 'draft') throw notFound('No such season.');
+  requireOpen(season);
+  const cls = await ContestClass.findOne({ where: { id: d.classId, seasonId: season.id } });
+  if (!cls) throw new HttpError(400, 'Choose a class of this season.', { classId: 'Choose a class of this season.' });
+  const machine = await Machine.findOne({ where: { id: d.machineId, ownerId: userId } });
+  if (!machine) throw notFound('No such machine.');
+  if (machine.retiredAt) throw unprocessable(`${machine.name} is retired; choose another machine or un-retire it.`, { machineId: 'This machine is retired.' });
+  const why = classEligibility(cls, machine, d.nozzleMm, d.materialFamily);
+  if (why.length) throw unprocessable(`${machine.name} cannot enter ${cls.name}: ${why[0]}`, { classId: why.join(' ') });
+  const counted = await Entry.count({
+    where: { entrantId: userId, seasonId: season.id, classId: cls.id, state: COUNTED_STATES, ...(excludeEntryId ? { id: { [Op.ne]: excludeEntryId } } : {}) },
+  });
+  if (counted >= season.entryLimit) {
+    throw conflict(`You already have ${counted} entries in ${cls.name}; the season allows ${season.entryLimit} per entrant and class. Withdraw a draft to make room.`, {
+      classId: `Entry limit of ${season.entryLimit} reached in this class.`,
+    });
+  }
+  return { season, cls, machine };
+}
+
+function detailColumns(d: EntryDetails) {
+  return {
+    seasonId: d.seasonId,
+    classId: d.classId,
+    machineId: d.machineId,
+    materialFamily: d.materialFamily,
+    materialName: d.materialName,
+    nozzleMm: d.nozzleMm,
+    claimedTimeMs: parseClaimedTime(d.claimedTime)!,
+    evidenceUrl: d.evidenceUrl,
+    measuredXMm: d.measuredXMm,
+    measuredYMm: d.measuredYMm,
+    measuredZMm: d.measuredZMm,
+    notes: d.notes,
+  };
+}
+
+interface CheckedFiles {
+  gcode: CheckedGcode | null;
+  photos: CheckedPhoto[];
+  project: UploadResult['files'][string][number] | null;
+}
+
+async function checkFiles(up: UploadResult): Promise<CheckedFiles> {
+  const gcode = up.files.gcode?.[0] ? await checkGcode(up.files.gcode[0]) : null;
+  const photos = await checkPhotos(up.files.photos ?? []);
+  return { gcode, photos, project: up.files.project?.[0] ?? null };
+}
+
+const cleanupPhotos = (c: CheckedFiles | null) => Promise.all((c?.photos ?? []).map((p) => p.processed.cleanup()));
+
+/** Marks the current files of a kind as replaced (kept for the judges' history, hidden elsewhere). */
+async function markReplaced(entryId: number, kinds: string[], transaction: import('sequelize').Transaction) {
+  const now = new Date().toISOString();
+  const rows = await StoredFile.findAll({ where: { entryId, kind: kinds }, transaction });
+  for (const f of rows) if (!f.meta?.replacedAt) await f.update({ meta: { ...f.meta, replacedAt: now } }, { transaction });
+}
+
+async function writeFiles(entry: Entry, userId: number, files: CheckedFiles, transaction: import('sequelize').Transaction, writer: FileWriter) {
+  let inspectionId: number | null = null;
+  if (files.gcode) {
+    await markReplaced(entry.id, ['gcode'], transaction);
+    const g = await writer.gcode(files.gcode);
+    await entry.update({ gcodeSha256: g.sha256 }, { transaction });
+    const row = await Inspection.create(
+      { entryId: entry.id, storedFileId: g.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+      { transaction },
+    );
+    inspectionId = row.id;
+  }
+  if (files.photos.length) {
+    await markReplaced(entry.id, ['photo', 'thumbnail'], transaction);
+    for (const [i, p] of files.photos.entries()) await writer.photo(p, i);
+  }
+  if (files.project) {
+    await markReplaced(entry.id, ['project'], transaction);
+    await writer.project(files.project);
+  }
+  return inspectionId;
+}
+
+/**
+ * Runs `fn` in a transaction with a FileWriter; removes moved files if it rolls back, queues the
+ * inspection once it commits, and always deletes the temporary upload and photo files.
+ */
+async function withUpload<T extends { entryId: number; inspectionId: number | null }>(
+  up: UploadResult,
+  ownerId: number,
+  check: () => Promise<CheckedFiles>,
+  fn: (files: CheckedFiles, transaction: import('sequelize').Transaction, writerFor: (entryId: number) => FileWriter) => Promise<T>,
+): Promise<{ id: number; inspectionId: number | null }> {
+  let writer: FileWriter | null = null;
+  let files: CheckedFiles | null = null;
+  try {
+    files = await check();
+    const checked = files;
+    let result: T;
+    try {
+      result = await getSequelize().transaction((transaction) => fn(checked, transaction, (entryId) => (writer = new FileWriter(entryId, ownerId, transaction))));
+    } catch (err) {
+      await (writer as FileWriter | null)?.undo();
+      throw err;
+    }
+    if (result.inspectionId) queueInspection(result.inspectionId);
+    return { id: result.entryId, inspectionId: result.inspectionId };
+  } finally {
+    await cleanupPhotos(files);
+    await up.cleanup();
+  }
+}
+
+/** One multipart request: details + G-code (+ photos, project file) → a draft entry being inspected. */
+export async function createEntryFromUpload(user: User, req: Request) {
+  const up = await receiveUpload(req, ENTRY_UPLOAD_SPEC);
+  let details: EntryDetails;
+  const check = async () => {
+    details = parseInput(EntryDetailsSchema, up.fields);
+    await checkContext(user.id, details);
+    if (!up.files.gcode?.length) throw new HttpError(400, 'Add the G-code of your run (.gcode or .gcode.gz).', { gcode: 'Add the G-code (.gcode or .gcode.gz).' });
+    return checkFiles(up);
+  };
+  return withUpload(up, user.id, check, async (files, transaction, writerFor) => {
+    const entry = await Entry.create({ ...detailColumns(details), entrantId: user.id, state: 'draft', gcodeSha256: null, submittedAt: null, decidedAt: null }, { transaction });
+    const inspectionId = await writeFiles(entry, user.id, files, transaction, writerFor(entry.id));
+    await audit('entry.created', { type: 'entry', id: entry.id }, { actorId: user.id, transaction });
+    return { entryId: entry.id, inspectionId };
+  });
+}
+
+/** New files for a draft or returned entry; a new G-code re-runs the inspection. */
+export async function replaceEntryFiles(user: User, id: number, req: Request) {
+  const entry = await ownEntry(user.id, id);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Files can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  const season = await Season.findByPk(entry.seasonId);
+  requireOpen(season!);
+  const up = await receiveUpload(req, { ...ENTRY_UPLOAD_SPEC, fields: [] });
+  const check = async () => {
+    const files = await checkFiles(up);
+    if (!files.gcode && !files.photos.length && !files.project) throw new HttpError(400, 'Choose at least one file to upload.');
+    return files;
+  };
+  return withUpload(up, user.id, check, async (files, transaction, writerFor) => {
+    const inspectionId = await writeFiles(entry, user.id, files, transaction, writerFor(entry.id));
+    await audit('entry.files_replaced', { type: 'entry', id: entry.id }, { actorId: user.id, transaction, details: { gcode: !!files.gcode, photos: files.photos.length, project: !!files.project } });
+    return { entryId: entry.id, inspectionId };
+  });
+}
+
+/** Changes the details of a draft or returned entry and re-inspects (the claims changed). */
+export async function updateEntryDetails(user: User, id: number, raw: unknown) {
+  const entry = await ownEntry(user.id, id);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Details can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  const details = parseInput(EntryDetailsSchema, raw);
+  if (details.seasonId !== entry.seasonId) throw new HttpError(400, 'An entry cannot move to another season.', { seasonId: 'An entry stays in its season.' });
+  await checkContext(user.id, details, entry.id);
+  await entry.update(detailColumns(details));
+  const row = await reinspect(entry);
+  return { id: entry.id, inspectionId: row?.id ?? null };
+}
+
+async function mailEntrant(entry: Entry, subject: string, intro: string, outro: string) {
+  const [user, season, cls] = await Promise.all([User.findByPk(entry.entrantId), Season.findByPk(entry.seasonId), ContestClass.findByPk(entry.classId)]);
+  if (!user || !season || !cls) return;
+  await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro, 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro));
+}
+
+/** What stands between this entry and submitting, as sentences (empty = may submit). */
+export async function submitBlockers(entry: Entry): Promise<string[]> {
+  const out: string[] = [];
+  const season = (await Season.findByPk(entry.seasonId))!;
+  if (season.state !== 'open') out.push(`${season.name} is not open for entries.`);
+  if (!EDITABLE_STATES.includes(entry.state)) out.push(`The entry is ${entry.state}.`);
+  const gcode = await currentGcode(entry.id);
+  if (!gcode) out.push('Upload the G-code of your run.');
+  const photoCount = (await StoredFile.findAll({ where: { entryId: entry.id, kind: 'photo' }, attributes: ['id', 'meta'] })).filter((f) => !f.meta?.replacedAt).length;
+  if (photoCount < season.photosRequired) out.push(`The season asks for ${season.photosRequired} photos; this entry has ${photoCount}.`);
+  if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link to the details.');
+  const insp = await latestInspection(entry.id);
+  if (gcode) {
+    if (!insp || insp.storedFileId !== gcode.id || insp.status === 'queued' || insp.status === 'running') out.push('The inspection is still running.');
+    else if (insp.status === 'failed') out.push(`The inspection failed: ${insp.error ?? 'unknown reason'}. Upload the file again or inspect again.`);
+    else if (insp.blockingFailures > 0) out.push(`The inspection found ${insp.blockingFailures} blocking problem${insp.blockingFailures > 1 ? 's' : ''}; fix ${insp.blockingFailures > 1 ? 'them' : 'it'} (see the report) and upload the corrected G-code.`);
+  }
+  if (entry.state === 'returned' && entry.decidedAt) {
+    const newer = await StoredFile.count({ where: { entryId: entry.id, createdAt: { [Op.gt]: entry.decidedAt } } });
+    if (newer === 0) out.push('The entry was returned: upload the corrected files before submitting it again.');
+  }
+  return out;
+}
+
+export async function submitEntry(user: User, id: number) {
+  const entry = await ownEntry(user.id, id);
+  const season = (await Season.findByPk(entry.seasonId))!;
+  requireOpen(season);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be submitted; this one is ${entry.state}.`);
+  const blockers = await submitBlockers(entry);
+  if (blockers.length) throw unprocessable(blockers[0], { submit: blockers.join(' ') });
+  const resubmitted = entry.state === 'returned';
+  await entry.update({ state: 'submitted', submittedAt: new Date(), decidedAt: null });
+  await audit('entry.submitted', { type: 'entry', id: entry.id }, { actorId: user.id, details: { resubmitted } });
+  await mailEntrant(
+    entry,
+    resubmitted ? 'Entry resubmitted' : 'Entry received',
+    resubmitted
+      ? `Your corrected entry #${entry.id} is back in the judges' queue.`
+      : `We received your entry #${entry.id}. The inspection passed the blocking rules; a judge will now review your evidence.`,
+    'You will get an e-mail when a judge decides. You can withdraw the entry from its page until then.',
+  );
+  return { id: entry.id, state: entry.state };
+}
+
+export async function withdrawEntry(user: User, id: number) {
+  const entry = await ownEntry(user.id, id);
+  if (!WITHDRAWABLE_STATES.includes(entry.state)) throw conflict(`A ${entry.state} entry cannot be withdrawn.`);
+  const from = entry.state;
+  await entry.update({ state: 'withdrawn' });
+  await audit('entry.withdrawn', { type: 'entry', id: entry.id }, { actorId: user.id, details: { from } });
+  await mailEntrant(entry, 'Entry withdrawn', `You withdrew entry #${entry.id}. It no longer counts in the standings and judges will not review it.`, 'Its files and inspection stay on its page.');
+  return { id: entry.id, state: entry.state };
+}
+
+export async function reinspectEntry(user: User, id: number) {
+  const entry = await ownEntry(user.id, id);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be inspected again; this one is ${entry.state}.`);
+  const row = await reinspect(entry);
+  if (!row) throw new HttpError(400, 'Upload the G-code first.');
+  await audit('entry.reinspected', { type: 'entry', id: entry.id }, { actorId: user.id });
+  return { id: entry.id, inspectionId: row.id };
+}
+
+function fileJson(f: StoredFile) {
+  const m = f.meta ?? {};
+  return {
+    id: f.id,
+    kind: f.kind,
+    name: f.originalName,
+    sizeBytes: f.sizeBytes,
+    sha256: f.sha256,
+    url: `/api/files/${f.id}`,
+    thumbnailUrl: typeof m.thumbnailId === 'number' ? `/api/files/${m.thumbnailId}` : null,
+    capturedAt: (m.capturedAt as string | null | undefined) ?? null,
+    locationRemoved: !!m.locationRemoved,
+    noThumbnailReason: (m.noThumbnailReason as string | undefined) ?? null,
+    uploadedAt: f.createdAt.toISOString(),
+  };
+}
+
+/** The entrant's view of one entry: details, files, the current inspection and the histories. */
+export async function entryView(user: User, id: number) {
+  const entry = await ownEntry(user.id, id);
+  const [season, cls, machine, files, inspections, reviews, piece] = await Promise.all([
+    Season.findByPk(entry.seasonId),
+    ContestClass.findByPk(entry.classId),
+    Machine.findByPk(entry.machineId),
+    StoredFile.findAll({ where: { entryId: entry.id }, order: [['id', 'ASC']] }),
+    Inspection.findAll({ where: { entryId: entry.id }, order: [['id', 'DESC']], attributes: ['id', 'status', 'blockingFailures', 'advisoryFlags', 'createdAt', 'finishedAt', 'storedFileId', 'error'] }),
+    Review.findAll({ where: { entryId: entry.id }, order: [['createdAt', 'ASC']] }),
+    TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
+  ]);
+  const current = await latestInspection(entry.id);
+  await resumeInspection(current);
+  const live = files.filter((f) => !f.meta?.replacedAt);
+  const byId = new Map(files.map((f) => [f.id, f]));
+  const editable = EDITABLE_STATES.includes(entry.state) && season!.state === 'open';
+  return {
+    id: entry.id,
+    state: entry.state,
+    season: { id: season!.id, slug: season!.slug, name: season!.name, state: season!.state, photosRequired: season!.photosRequired, videoRequired: season!.videoRequired, photoKinds: season!.photoKinds ?? [] },
+    class: { id: cls!.id, name: cls!.name },
+    machine: { id: machine!.id, name: machine!.name },
+    materialFamily: entry.materialFamily,
+    materialLabel: MATERIALS[entry.materialFamily as MaterialFamily]?.label ?? entry.materialFamily,
+    materialName: entry.materialName,
+    nozzleMm: entry.nozzleMm,
+    claimedTimeMs: entry.claimedTimeMs,
+    evidenceUrl: entry.evidenceUrl,
+    measuredMm: { x: entry.measuredXMm, y: entry.measuredYMm, z: entry.measuredZMm },
+    testPieceSizeMm: piece ? { x: piece.sizeXMm, y: piece.sizeYMm, z: piece.sizeZMm } : null,
+    notes: entry.notes,
+    submittedAt: entry.submittedAt?.toISOString() ?? null,
+    decidedAt: entry.decidedAt?.toISOString() ?? null,
+    files: {
+      gcode: live.filter((f) => f.kind === 'gcode').map(fileJson)[0] ?? null,
+      photos: live.filter((f) => f.kind === 'photo').map(fileJson),
+      project: live.filter((f) => f.kind === 'project').map(fileJson)[0] ?? null,
+    },
+    inspection: current ? inspectionJson(current) : null,
+    inspections: inspections.map((i) => ({
+      id: i.id, status: i.status, blockingFailures: i.blockingFailures, advisoryFlags: i.advisoryFlags, error: i.error,
+      createdAt: i.createdAt.toISOString(), finishedAt: i.finishedAt?.toISOString() ?? null,
+      fileName: i.storedFileId ? (byId.get(i.storedFileId)?.originalName ?? null) : null,
+    })),
+    // Judges stay anonymous to entrants; the decision, reasons and note are theirs to read.
+    reviews: reviews.map((r) => ({ id: r.id, decision: r.decision, reasonCodes: r.reasonCodes, note: r.note, createdAt: r.createdAt.toISOString() })),
+    canEdit: editable,
+    canSubmit: editable,
+    blockers: editable ? await submitBlockers(entry) : [],
+    canWithdraw: WITHDRAWABLE_STATES.includes(entry.state),
+  };
+}
+export type EntryView = Awaited<ReturnType<typeof entryView>>;
+
+/** Just the inspection (for polling). */
+export async function entryInspection(user: User, id: number) {
+  const entry = await ownEntry(user.id, id);
+  const row = await latestInspection(entry.id);
+  await resumeInspection(row);
+  return { inspection: row ? inspectionJson(row) : null, blockers: EDITABLE_STATES.includes(entry.state) ? await submitBlockers(entry) : [] };
+}
+
+/** What the new-entry form offers: open seasons, their classes, the entrant's machines and which class each may enter. */
+export async function entryFormOptions(userId: number) {
+  const [seasons, machines] = await Promise.all([
+    Season.findAll({ where: { state: 'open' }, order: [['closesAt', 'ASC']], include: [{ model: ContestClass, as: 'classes' }, { model: TestPiece }] }),
+    Machine.findAll({ where: { ownerId: userId, retiredAt: null }, order: [['name', 'ASC']] }),
+  ]);
+  return {
+    seasons: seasons.map((s) => {
+      const classes = ((s as unknown as { classes: ContestClass[] }).classes ?? []).sort((a, b) => a.displayOrder - b.displayOrder);
+      const piece = (s as unknown as { TestPiece: TestPiece | null }).TestPiece;
+      return {
+        id: s.id, slug: s.slug, name: s.name, photosRequired: s.photosRequired, videoRequired: s.videoRequired, photoKinds: s.photoKinds ?? [], entryLimit: s.entryLimit,
+        timingConvention: s.timingConvention,
+        testPieceSizeMm: piece ? { x: piece.sizeXMm, y: piece.sizeYMm, z: piece.sizeZMm } : null,
+        classes: classes.map((c) => ({
+          id: c.id, name: c.name, description: c.description, materialFamilies: c.materialFamilies,
+          // Reasons per machine at the machine's own nozzle; the server checks again with the entry's nozzle and material.
+          ineligible: Object.fromEntries(machines.map((m) => [m.id, classEligibility(c, m, m.nozzleMm, null)])),
+        })),
+      };
+    }),
+    machines: machines.map((m) => ({ id: m.id, name: m.name, nozzleMm: m.nozzleMm, motionSystem: m.motionSystem })),
+  };
+}
