@@ -9,7 +9,8 @@
  */
 import { createReadStream } from 'node:fs';
 import { open, stat } from 'node:fs/promises';
-import type { Readable } from 'node:stream';
+import { Readable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
 import { createGunzip } from 'node:zlib';
 
 /** Longest line kept; the rest of a longer line is dropped with a warning. */
@@ -219,7 +220,9 @@ export async function readFileLines(path: string, sink: LineSink): Promise<ReadS
     const buf = Buffer.allocUnsafe(CHUNK_BYTES);
     let offset = 0;
     for (;;) {
-      const { bytesRead } = await fh.read(buf, 0, CHUNK_BYTES, offset);
+      const { bytesRead } = await fh.read(buf, 0, CHUNK_BYTES, offset).catch((err: NodeJS.ErrnoException) => {
+        throw new InspectionError('unreadable', `Cannot read ${path}: ${err.message}`);
+      });
       if (bytesRead === 0) break;
       offset += bytesRead;
       splitter.push(bytesRead === CHUNK_BYTES ? buf : buf.subarray(0, bytesRead));
@@ -238,75 +241,64 @@ export async function readFileLines(path: string, sink: LineSink): Promise<ReadS
 export async function readStreamLines(input: Readable, sink: LineSink): Promise<ReadStats> {
   const splitter = new LineSplitter(sink);
   let bytesIn = 0;
-  let gzip = false;
-  let decoded: AsyncIterable<Buffer | string> = input;
-  let first: Buffer | null = null;
   const iter = input[Symbol.asyncIterator]();
-  // Peek at the first chunk to choose plain or gzip.
+  const toBuf = (v: unknown): Buffer => (typeof v === 'string' ? Buffer.from(v, 'latin1') : (v as Buffer));
+  // Peek at the first non-empty chunk to choose plain or gzip.
+  let first: Buffer | null;
   try {
-    const r = await iter.next();
-    if (!r.done) first = typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : (r.value as Buffer);
+    first = await collectUntilData(iter);
   } catch (err) {
+    input.destroy();
     throw new InspectionError('unreadable', `Cannot read the input: ${(err as Error).message}`);
   }
-  if (!first || first.length === 0) {
-    // Drain possibly-empty first chunk cases.
-    const rest = await collectUntilData(iter);
-    if (!rest) throw emptyError();
-    first = rest;
+  if (!first) throw emptyError();
+  const head = first;
+  async function* raw(): AsyncGenerator<Buffer> {
+    bytesIn += head.length;
+    yield head;
+    for (;;) {
+      const r = await iter.next();
+      if (r.done) return;
+      const b = toBuf(r.value);
+      bytesIn += b.length;
+      yield b;
+    }
   }
-  const rest: AsyncIterable<Buffer> = {
-    [Symbol.asyncIterator]() {
-      let sentFirst = false;
-      return {
-        next: async (): Promise<IteratorResult<Buffer>> => {
-          if (!sentFirst) {
-            sentFirst = true;
-            return { done: false, value: first as Buffer };
-          }
-          const r = await iter.next();
-          if (r.done) return { done: true, value: undefined };
-          return { done: false, value: typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : (r.value as Buffer) };
-        },
-      };
-    },
-  };
-  if (isGzipStart(first)) {
-    gzip = true;
-    const gunzip = createGunzip();
-    const feed = (async () => {
-      for await (const c of rest) {
-        bytesIn += c.length;
-        if (!gunzip.write(c)) await new Promise<void>((res) => gunzip.once('drain', res));
+  const gzip = isGzipStart(head);
+  const source = Readable.from(raw(), { objectMode: false });
+  try {
+    if (gzip) {
+      const gunzip = createGunzip();
+      // pipeline() carries backpressure and tears both streams down when the consumer stops early.
+      const piped = pipeline(source, gunzip);
+      piped.catch(() => undefined);
+      try {
+        for await (const c of gunzip) splitter.push(c as Buffer);
+        await piped;
+      } catch (err) {
+        gunzip.destroy();
+        if (err instanceof InspectionError) throw err;
+        throw gzipError(err);
       }
-      gunzip.end();
-    })();
-    feed.catch((err) => gunzip.destroy(err as Error));
-    decoded = gunzip;
-    try {
-      for await (const c of decoded) splitter.push(c as Buffer);
-    } catch (err) {
-      if (err instanceof InspectionError) throw err;
-      throw gzipError(err);
-    } finally {
-      await feed.catch(() => undefined);
+    } else {
+      for await (const c of source) splitter.push(c as Buffer);
     }
-  } else {
-    for await (const c of rest) {
-      bytesIn += c.length;
-      splitter.push(c);
-    }
+  } catch (err) {
+    source.destroy();
+    input.destroy();
+    if (err instanceof InspectionError) throw err;
+    throw new InspectionError('unreadable', `Cannot read the input: ${(err as Error).message}`);
   }
   if (splitter.bytes === 0) throw emptyError();
   splitter.end();
   return { bytesIn, bytesText: splitter.bytes, gzip, lines: splitter.lines };
 }
 
-async function collectUntilData(iter: AsyncIterator<Buffer | string>): Promise<Buffer | null> {
+async function collectUntilData(iter: AsyncIterator<unknown>): Promise<Buffer | null> {
   for (;;) {
     const r = await iter.next();
     if (r.done) return null;
-    const b = typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : r.value;
+    const b = typeof r.value === 'string' ? Buffer.from(r.value, 'latin1') : (r.value as Buffer);
     if (b.length > 0) return b;
   }
 }

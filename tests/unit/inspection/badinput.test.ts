@@ -43,6 +43,13 @@ describe('files the engine cannot read', () => {
     await rejectsWith(inspectFile(file('part.bgcode.gz', gzipSync(bgcode))), 'binary-gcode', /turn off binary G-code/);
   });
 
+  it('a large gzipped binary file stops at the first chunk instead of hanging', async () => {
+    const big = Buffer.alloc(8 * 1024 * 1024);
+    big.write('GCDE');
+    for (let i = 4; i < big.length; i += 4096) big[i] = i & 0xff;
+    await rejectsWith(inspectFile(file('big.bgcode.gz', gzipSync(big))), 'binary-gcode', /binary G-code/);
+  });
+
   it('binary junk', async () => {
     const junk = Buffer.alloc(5000);
     for (let i = 0; i < junk.length; i++) junk[i] = (i * 7919) & 0xff;
