@@ -44,6 +44,11 @@ export interface MeasuredSettings {
   layers: number;
   /** Layers rasterised in full (all of them unless the file exceeded the work budget). */
   analysedLayers: number;
+  /**
+   * Cross-check only: share of the extrusion the file's ;TYPE: labels call walls that the toolpath
+   * method found in wall loops (null when the file has no labels).
+   */
+  labelledWallAgreement: number | null;
   warnings: string[];
 }
 
@@ -122,6 +127,10 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   // Current layer buffer: x0 y0 x1 y1 A per segment, chain id per segment.
   let seg = new Float32Array(5 * 4096);
   let chainOf = new Int32Array(4096);
+  let wallLabel = new Uint8Array(4096);
+  /** Cross-check: extrusion the file labels as walls, and how much of it lies in the loops counted as walls. */
+  let labelledWallMm = 0;
+  let labelledWallInLoopsMm = 0;
   let chainStart = new Int32Array(1024);
   let nSeg = 0;
   let nChains = 0;
@@ -170,6 +179,9 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       const c2 = new Int32Array(chainOf.length * 2);
       c2.set(chainOf);
       chainOf = c2;
+      const w2 = new Uint8Array(wallLabel.length * 2);
+      w2.set(wallLabel);
+      wallLabel = w2;
     }
   }
 
@@ -223,6 +235,9 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     seg[o + 3] = s.y1;
     seg[o + 4] = areaMm2;
     chainOf[nSeg] = nChains - 1;
+    // Feature labels are kept only to cross-check the measurement afterwards, never to make it.
+    const f = s.feature;
+    wallLabel[nSeg] = f === 'outer-wall' || f === 'inner-wall' || f === 'overhang-wall' ? 1 : 0;
     nSeg++;
     layerVolumeMm3 += areaMm2 * lenXY;
     if (s.x0 < bbMinX) bbMinX = s.x0;
@@ -420,6 +435,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     // the other loops crossed; the shorter way out (the nearer outside or hole) gives the loop's band
     // (outer wall = band 1). Walls on the layer = bands 1…K all present.
     const loopBands: number[] = [];
+    const wallLoop = new Uint8Array(nChains);
     const widthHistLayer = new Float64Array(600);
     const outerHistLayer = new Float64Array(600);
     let spacingSum = 0;
@@ -492,8 +508,16 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
           }
         }
         loopBands.push(band);
+        wallLoop[ch] = 1;
         if (band < bandsSeen.length) bandsSeen[band] = 1;
       }
+    }
+    for (let i = 0; i < nSeg; i++) {
+      if (!wallLabel[i]) continue;
+      const o = i * 5;
+      const len = Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+      labelledWallMm += len;
+      if (wallLoop[chainOf[i]]) labelledWallInLoopsMm += len;
     }
     const loopWidth = spacingLen > 0 ? histMedian(widthHistLayer, 0.005) : null;
     rec.loopWidthMm = loopWidth;
@@ -556,6 +580,10 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   function result(): MeasuredSettings {
     const out = summarise(layers, layerCount, columns, loopWidthHist, outerSpacingHist, warnings);
     out.analysedLayers = analysedLayers;
+    if (labelledWallMm > 0) {
+      out.walls.detail += ` Cross-check with the file's feature labels: ${Math.round((labelledWallInLoopsMm / labelledWallMm) * 100)} % of wall-labelled extrusion lies in the loops counted as walls.`;
+    }
+    out.labelledWallAgreement = labelledWallMm > 0 ? labelledWallInLoopsMm / labelledWallMm : null;
     if (skippedLayers > 0) {
       const note = ` Large file: ${analysedLayers} of ${analysedLayers + skippedLayers} layers analysed in full (windows of ${SAMPLE_WINDOW_LAYERS}).`;
       for (const f of [out.walls, out.top_layers, out.bottom_layers, out.infill_percent]) f.detail += note;
@@ -618,6 +646,7 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
     nozzle_mm: unknown('No wall loops.'),
     layers: layerCount,
     analysedLayers: 0,
+    labelledWallAgreement: null,
     warnings,
   };
   if (layers.length === 0) return out;

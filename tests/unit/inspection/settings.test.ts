@@ -78,6 +78,11 @@ describe('settings measured from toolpaths equal the sliced settings on every fi
       // h (1 − π/4) ≈ 0.04 mm wider.
       expect(Math.abs(m.line_width_mm.value! - s.line_width_mm)).toBeLessThanOrEqual(f.slicer.startsWith('curaengine') ? 0.06 : 0.01);
 
+      // Cross-check against the slicer's own feature labels (;TYPE: lines, or Slic3r's verbose
+      // "; perimeter" comments): the loops counted as walls hold the wall-labelled extrusion.
+      if (f.variant === 'nocomments' || f.file.startsWith('gcode/slic3r-beacon')) expect(m.labelledWallAgreement).toBeNull();
+      else expect(m.labelledWallAgreement!, m.walls.detail).toBeGreaterThan(0.95);
+
       const flags = settingsMismatchFlags(evidence(m, d));
       if (f.variant === 'lying') {
         // Source of the lie: manifest declared_lie (what the edited block claims).
