@@ -59,7 +59,12 @@ export const TIME_SERIES_POINTS = 600;
 const GRID_CELL_MM = 1;
 const GRID_N = 2048;
 const GRID_ORIGIN_MM = -1024;
-const MAX_LAYERS = 100000;
+/**
+ * Per-layer records kept (z, height, time, volume, and a Z→layer map for revisits). 20 000 layers is
+ * a 4 m tall part at 0.2 mm, far beyond any test piece; past it layers are only counted, so memory
+ * stays flat on absurdly tall (or artificially stacked) files.
+ */
+const MAX_LAYERS = 20000;
 /** Layer index used for moves on layers beyond MAX_LAYERS (their time and count are kept in totals). */
 const OVERFLOW_LAYER = MAX_LAYERS;
 /** Line-width histogram: 0.005 mm bins up to 5 mm. */
