@@ -14,6 +14,7 @@ interface Preview {
   toleranceMm: number;
   originMm: { x: number; y: number };
   sizeUnits: { x: number; y: number };
+  focusUnits: { x0: number; y0: number; x1: number; y1: number };
   flowBucketsMm3s: number[];
   bucketLengthMm: number[];
   layers: PreviewLayer[];
@@ -51,6 +52,7 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
   const [bytes, setBytes] = useState(0);
   const [layer, setLayer] = useState(0);
   const [showBelow, setShowBelow] = useState(true);
+  const [wholePlate, setWholePlate] = useState(false);
   const canvas = useRef<HTMLCanvasElement>(null);
   const cache = useRef(new Map<number, (Path2D | null)[]>());
 
@@ -97,11 +99,18 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
     ctx.fillStyle = '#161b20';
     ctx.fillRect(0, 0, c.width, c.height);
     const margin = 16 * dpr;
-    const span = Math.max(data.sizeUnits.x, data.sizeUnits.y, 1);
+    // Frame the part (skirt, brim and prime line left out) unless the judge asks for everything printed.
+    const f = data.focusUnits;
+    const frame = wholePlate || !(f.x1 > f.x0 && f.y1 > f.y0)
+      ? { x0: 0, y0: 0, x1: data.sizeUnits.x, y1: data.sizeUnits.y }
+      : { x0: f.x0, y0: f.y0, x1: f.x1, y1: f.y1 };
+    const w = frame.x1 - frame.x0;
+    const h = frame.y1 - frame.y0;
+    const span = Math.max(w, h, 1);
     const scale = (c.width - 2 * margin) / span;
     // G-code Y grows away from the viewer; canvas Y grows downwards: flip so the view matches a top view of the bed.
-    const ox = margin + ((span - data.sizeUnits.x) * scale) / 2;
-    const oy = c.height - margin - ((span - data.sizeUnits.y) * scale) / 2;
+    const ox = margin + ((span - w) * scale) / 2 - frame.x0 * scale;
+    const oy = c.height - margin - ((span - h) * scale) / 2 + frame.y0 * scale;
     ctx.setTransform(scale, 0, 0, -scale, ox, oy);
     // Nominal bead width of ~0.45 mm, at least one device pixel.
     ctx.lineWidth = Math.max(0.45 / data.unitMm, 1 / scale);
@@ -118,7 +127,7 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
       ctx.strokeStyle = flowColour(b);
       ctx.stroke(p);
     });
-  }, [data, layer, showBelow, paths]);
+  }, [data, layer, showBelow, wholePlate, paths]);
 
   const current = data?.layers[layer];
   const usedBuckets = useMemo(() => (data ? data.bucketLengthMm.map((len, i) => ({ i, len })).filter((b) => b.len > 0) : []), [data]);
@@ -151,6 +160,9 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
         </p>
         <label className="mt-1 flex items-center gap-2 text-sm text-ink-600">
           <input type="checkbox" checked={showBelow} onChange={(e) => setShowBelow(e.target.checked)} /> Show the layer below
+        </label>
+        <label className="mt-1 flex items-center gap-2 text-sm text-ink-600">
+          <input type="checkbox" checked={wholePlate} onChange={(e) => setWholePlate(e.target.checked)} /> Frame everything printed (skirt, brim, prime line)
         </label>
       </div>
       <div className="min-w-44">

@@ -1,12 +1,12 @@
 /**
  * Our own colour scale for commanded volumetric flow, one colour per preview flow bucket
- * (PREVIEW_FLOW_BUCKETS_MM3S). It runs from the palette's coolant teal (gentle flow) through ink
- * blue-greys and ember oranges to alarm red (flows only high-flow hotends sustain), so the hot end of
- * the scale reads as "check this" at a glance. Lightness falls steadily, so it also reads in grey.
+ * (PREVIEW_FLOW_BUCKETS_MM3S): pale to deep coolant teal up to 12 mm³/s (what a stock 0.4 mm hotend
+ * sustains), a steel blue and an amber through 18 mm³/s, then ember oranges and alarm reds for flows
+ * only high-flow hotends reach — the hot end of the scale reads as "check this" at a glance.
  */
 export const FLOW_COLOURS = [
-  '#9fe3d4', '#6fd0bc', '#3fb9a2', '#159c86', '#0d7f6e', '#3e7c8c',
-  '#5f6f7d', '#a07a4a', '#fd8034', '#f25f0e', '#d74707', '#b2340a',
+  '#b8ece0', '#8fdcca', '#5ec6b0', '#2fae96', '#159c86', '#0d7f6e',
+  '#3e7c8c', '#c9a227', '#fd8034', '#f25f0e', '#d74707', '#b2340a',
   '#d33a3a', '#b52a2a', '#922424', '#5c1414',
 ] as const;
 

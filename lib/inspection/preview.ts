@@ -28,7 +28,7 @@ import type { Readable } from 'node:stream';
 export const PREVIEW_FLOW_BUCKETS_MM3S = [0, 2, 4, 6, 8, 10, 12, 15, 18, 22, 26, 30, 35, 40, 50, 60] as const;
 
 /** Format version of the preview JSON; bump when the encoding changes (cached previews are keyed by it). */
-export const PREVIEW_VERSION = 1;
+export const PREVIEW_VERSION = 2;
 
 export interface PreviewOptions {
   filamentDiameterMm?: number;
@@ -58,6 +58,12 @@ export interface ToolpathPreview {
   originMm: { x: number; y: number };
   /** Extent in grid units (width, height) of all extruding moves. */
   sizeUnits: { x: number; y: number };
+  /**
+   * Box of the part itself in grid units: extrusion from the third layer up, which leaves out the
+   * skirt, brim and prime line that slicers put on the first layer(s) and that would otherwise
+   * shrink the part in a fitted view. All layers when the file has three or fewer.
+   */
+  focusUnits: { x0: number; y0: number; x1: number; y1: number };
   flowBucketsMm3s: readonly number[];
   /** Extruded length per flow bucket over the whole file, mm — what the legend can show beside each colour. */
   bucketLengthMm: number[];
@@ -87,6 +93,7 @@ export function flowBucket(flowMm3s: number): number {
 /** Raw polylines of one layer in mm, before quantization: bucket + flat xy list. */
 interface RawLayer {
   zMm: number;
+  box: [number, number, number, number];
   polys: { bucket: number; xy: number[] }[];
   extrudedMm: number;
   peakFlowMm3s: number;
@@ -133,7 +140,7 @@ export class PreviewCollector implements SegmentSink {
     if (!layer || Math.round(layer.zMm * Z_KEY_PER_MM) !== key) {
       layer = this.layerByKey.get(key) ?? null;
       if (!layer) {
-        layer = { zMm: key / Z_KEY_PER_MM, polys: [], extrudedMm: 0, peakFlowMm3s: 0 };
+        layer = { zMm: key / Z_KEY_PER_MM, box: [Infinity, Infinity, -Infinity, -Infinity], polys: [], extrudedMm: 0, peakFlowMm3s: 0 };
         this.layerByKey.set(key, layer);
         this.layers.push(layer);
       }
@@ -155,6 +162,15 @@ export class PreviewCollector implements SegmentSink {
     if (s.x1 > this.maxX) this.maxX = s.x1;
     if (s.y0 > this.maxY) this.maxY = s.y0;
     if (s.y1 > this.maxY) this.maxY = s.y1;
+    const b = layer.box;
+    if (s.x1 < b[0]) b[0] = s.x1;
+    if (s.y1 < b[1]) b[1] = s.y1;
+    if (s.x1 > b[2]) b[2] = s.x1;
+    if (s.y1 > b[3]) b[3] = s.y1;
+    if (s.x0 < b[0]) b[0] = s.x0;
+    if (s.y0 < b[1]) b[1] = s.y0;
+    if (s.x0 > b[2]) b[2] = s.x0;
+    if (s.y0 > b[3]) b[3] = s.y0;
     if (xyLen === 0) return; // a pure Z extrusion has nothing to show from the top
     if (this.points >= this.maxPoints) {
       this.truncated = true;
@@ -228,12 +244,24 @@ export class PreviewCollector implements SegmentSink {
       }
       return { zMm: l.zMm, paths, extrudedMm: round3(l.extrudedMm), peakFlowMm3s: round3(l.peakFlowMm3s) };
     });
+    const focusLayers = layers.length > 3 ? layers.slice(2) : layers;
+    const fb = [Infinity, Infinity, -Infinity, -Infinity];
+    for (const l of focusLayers) {
+      fb[0] = Math.min(fb[0], l.box[0]);
+      fb[1] = Math.min(fb[1], l.box[1]);
+      fb[2] = Math.max(fb[2], l.box[2]);
+      fb[3] = Math.max(fb[3], l.box[3]);
+    }
+    const focusUnits = fb[2] >= fb[0]
+      ? { x0: q(fb[0], originX), y0: q(fb[1], originY), x1: q(fb[2], originX), y1: q(fb[3], originY) }
+      : { x0: 0, y0: 0, x1: 0, y1: 0 };
     return {
       version: PREVIEW_VERSION,
       unitMm,
       toleranceMm,
       originMm: { x: round3(originX), y: round3(originY) },
       sizeUnits: { x: empty ? 0 : q(this.maxX, originX), y: empty ? 0 : q(this.maxY, originY) },
+      focusUnits,
       flowBucketsMm3s: PREVIEW_FLOW_BUCKETS_MM3S,
       bucketLengthMm: this.bucketLengthMm.map(round3),
       layers: out,

@@ -2,7 +2,7 @@
 import { ContestClass, Entry, ExtrusionTest, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
 import { computeExtrusionLimit } from '@/lib/extrusion';
 import { MATERIAL_FAMILIES, type MaterialFamily } from '@/lib/inspection/materials';
-import { audit } from '@/lib/audit';
+import { auditEvidenceView } from './evidence';
 import { reviewableEntry } from './access';
 import { dimensionalDeviation } from './checklist';
 import { inspectionDiff } from './diff';
@@ -57,7 +57,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
     TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
   ]);
   const tests = machine ? await ExtrusionTest.findAll({ where: { machineId: machine.id }, order: [['testedAt', 'DESC']] }) : [];
-  await audit('evidence.viewed', { type: 'entry', id: entry.id }, { actorId: judgeId, ip: meta.ip ?? null, details: { view: 'review' } });
+  await auditEvidenceView(judgeId, entry.id, 'review', { ip: meta.ip });
 
   const photos = files.filter((f) => f.kind === 'photo');
   const thumbs = files.filter((f) => f.kind === 'thumbnail');

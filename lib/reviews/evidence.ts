@@ -15,6 +15,14 @@ import { reviewableEntry } from './access';
 
 const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode'];
 
+/** What a judge looked at; other file routes that serve private evidence to judges call this too. */
+export type EvidenceView = 'review' | 'photo' | 'gcode' | 'project' | 'evidence_link';
+
+export async function auditEvidenceView(actorId: number, entryId: number, view: EvidenceView, extra: { fileId?: number; url?: string; ip?: string | null } = {}) {
+  const { ip, ...details } = extra;
+  await audit('evidence.viewed', { type: 'entry', id: entryId }, { actorId, ip: ip ?? null, details: { view, ...details } });
+}
+
 /** A stored file of the entry as a streamed response; full-size photos and G-code are audited. */
 export async function judgeFile(judgeId: number, entryId: number, fileId: number, opts: { thumb?: boolean; ip?: string | null } = {}): Promise<Response> {
   const entry = await reviewableEntry(judgeId, entryId);
@@ -22,7 +30,7 @@ export async function judgeFile(judgeId: number, entryId: number, fileId: number
   if (!file || !JUDGE_FILE_KINDS.includes(file.kind)) throw notFound('This entry has no such file.');
   if (!(await exists(file.storageKey))) throw notFound('The file is missing from storage.');
   if (file.kind !== 'thumbnail' && !opts.thumb) {
-    await audit('evidence.viewed', { type: 'entry', id: entry.id }, { actorId: judgeId, ip: opts.ip ?? null, details: { view: file.kind, fileId: file.id } });
+    await auditEvidenceView(judgeId, entry.id, file.kind as EvidenceView, { fileId: file.id, ip: opts.ip });
   }
   const body = Readable.toWeb(openRead(file.storageKey)) as ReadableStream;
   const download = file.kind === 'gcode';
@@ -41,7 +49,7 @@ export async function judgeFile(judgeId: number, entryId: number, fileId: number
 export async function evidenceLink(judgeId: number, entryId: number, ip?: string | null): Promise<string> {
   const entry = await reviewableEntry(judgeId, entryId);
   if (!/^https?:\/\//i.test(entry.evidenceUrl)) throw notFound('This entry has no evidence link.');
-  await audit('evidence.viewed', { type: 'entry', id: entry.id }, { actorId: judgeId, ip: ip ?? null, details: { view: 'evidence_link', url: entry.evidenceUrl } });
+  await auditEvidenceView(judgeId, entry.id, 'evidence_link', { url: entry.evidenceUrl, ip });
   return entry.evidenceUrl;
 }
 

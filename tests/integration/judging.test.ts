@@ -208,7 +208,7 @@ describe('decisions', () => {
 
 describe('review screen and evidence', () => {
   it('shows the inspection, machine tests, photos and dimensions, and audits the view', async () => {
-    const { entryId } = await createReviewableEntry(dbFile, { measuredMm: [20.2, 19.9, 40.0] });
+    const { entryId } = await createReviewableEntry(dbFile, { measuredMm: [36.36, 38.9, 40.0] });
     const before = (await sql(dbFile, "SELECT id FROM audit_events WHERE action = 'evidence.viewed' AND subject_id = ?", [String(entryId)])).length;
     const res = await clients.judge.get(`/api/judging/entries/${entryId}`);
     expect(res.status).toBe(200);
@@ -221,10 +221,17 @@ describe('review screen and evidence', () => {
     // PrusaSlicer's own estimate for this fixture is 1427 s (tests/fixtures/manifest.json, slicer_reports).
     expect(r.inspection.headline.slicerEstimateS).toBe(1427);
     expect(r.inspection.flowSeries.maxMm3s.length).toBeGreaterThan(10);
-    // The Beacon's X is 20 mm (tests/fixtures/stl, our own shape): 20.2 mm is +0.2 mm, +1 %.
-    const x = r.dimensions.find((d: { axis: string }) => d.axis === 'x');
-    expect(x.deltaMm).toBeCloseTo(20.2 - r.testPiece.sizeMm.x, 6);
-    expect(x.percent).toBeCloseTo(((20.2 - r.testPiece.sizeMm.x) / r.testPiece.sizeMm.x) * 100, 6);
+    // The seeded Beacon test piece is 36 × 39 × 40 mm (bounding box of tests/fixtures/stl/beacon.stl, our own shape).
+    // Deviation = measured − reference, % of the reference (caliper practice, no source): 36.36 mm is +0.36 mm = +1 %,
+    // 38.9 mm is −0.1 mm = −0.256 %.
+    const dx = r.dimensions.find((d: { axis: string }) => d.axis === 'x');
+    const dy = r.dimensions.find((d: { axis: string }) => d.axis === 'y');
+    expect(r.testPiece.sizeMm).toEqual({ x: 36, y: 39, z: 40 });
+    expect(dx.deltaMm).toBeCloseTo(0.36, 6);
+    expect(dx.percent).toBeCloseTo(1, 6);
+    expect(dx.withinTolerance).toBe(true);
+    expect(dy.deltaMm).toBeCloseTo(-0.1, 6);
+    expect(dy.percent).toBeCloseTo(-0.2564, 3);
     const after = (await sql(dbFile, "SELECT id FROM audit_events WHERE action = 'evidence.viewed' AND subject_id = ?", [String(entryId)])).length;
     expect(after).toBe(before + 1);
 

@@ -48,7 +48,9 @@ export async function createSubmittedEntry(
   const uId = await userId(dbFile, opts.entrant ?? 'sasha');
   const mId = await idOf(dbFile, 'machines', 'owner_id = ? AND name = ?', [uId, opts.machine ?? 'Tripod Nine']);
   const now = sqlDate();
-  const [x, y, z] = opts.measuredMm ?? [20.1, 19.9, 40.0];
+  // Default: the entrant measured the season's test piece a little off, as calipers do.
+  const [piece] = await sql<{ size_x_mm: number; size_y_mm: number; size_z_mm: number }>(dbFile, 'SELECT size_x_mm, size_y_mm, size_z_mm FROM test_pieces WHERE season_id = ?', [sId]);
+  const [x, y, z] = opts.measuredMm ?? (piece ? [piece.size_x_mm + 0.08, piece.size_y_mm - 0.05, piece.size_z_mm + 0.02] : [null, null, null]);
   return insert(dbFile, 'entries', {
     season_id: sId, class_id: cId, entrant_id: uId, machine_id: mId, material_family: 'pla', material_name: 'Club grey PLA', nozzle_mm: 0.4,
     claimed_time_ms: opts.claimedTimeMs ?? 1_650_000, evidence_url: opts.evidenceUrl ?? 'https://video.example.org/run-test',
@@ -69,7 +71,11 @@ export async function inspectEntryWithFixture(dbFile: string, entryId: number, f
   const key = `entries/${entryId}/gcode-${sha.slice(0, 16)}-${Date.now()}.gcode.gz`;
   fs.mkdirSync(path.join(dataDir, 'uploads', path.dirname(key)), { recursive: true });
   fs.writeFileSync(path.join(dataDir, 'uploads', key), bytes);
-  const [entry] = await sql<{ season_id: number; entrant_id: number; claimed_time_ms: number }>(dbFile, 'SELECT season_id, entrant_id, claimed_time_ms FROM entries WHERE id = ?', [entryId]);
+  const [entry] = await sql<{ season_id: number; entrant_id: number; claimed_time_ms: number; measured_x_mm: number | null; measured_y_mm: number | null; measured_z_mm: number | null }>(
+    dbFile, 'SELECT season_id, entrant_id, claimed_time_ms, measured_x_mm, measured_y_mm, measured_z_mm FROM entries WHERE id = ?', [entryId]);
+  const [piece] = await sql<{ size_x_mm: number; size_y_mm: number; size_z_mm: number }>(dbFile, 'SELECT size_x_mm, size_y_mm, size_z_mm FROM test_pieces WHERE season_id = ?', [entry.season_id]);
+  const testPieceSizeMm = piece ? { x: piece.size_x_mm, y: piece.size_y_mm, z: piece.size_z_mm } : undefined;
+  const measuredDimensionsMm = entry.measured_x_mm !== null && entry.measured_y_mm !== null && entry.measured_z_mm !== null ? { x: entry.measured_x_mm, y: entry.measured_y_mm, z: entry.measured_z_mm } : undefined;
   const now = sqlDate();
   const fileId = await insert(dbFile, 'stored_files', {
     owner_id: entry.entrant_id, entry_id: entryId, kind: 'gcode', original_name: fixture, mime: 'application/gzip', size_bytes: bytes.length,
@@ -78,7 +84,11 @@ export async function inspectEntryWithFixture(dbFile: string, entryId: number, f
   const ruleRows = await sql<{ metric: string; comparator: string; value: number; value_max: number | null; tolerance: number; severity: string }>(
     dbFile, 'SELECT metric, comparator, value, value_max, tolerance, severity FROM rules WHERE season_id = ? AND class_id IS NULL ORDER BY position', [entry.season_id]);
   const rules: Rule[] = ruleRows.map((r) => RuleSchema.parse({ metric: r.metric, comparator: r.comparator, value: r.value, ...(r.value_max !== null ? { valueMax: r.value_max } : {}), tolerance: r.tolerance, severity: r.severity }));
-  const report = await inspectFile(src, { rules, claims: { claimedTimeMs: opts.claimedTimeMs ?? entry.claimed_time_ms, machineFlowLimitMm3s: 30 } });
+  const report = await inspectFile(src, {
+    rules,
+    ruleContext: testPieceSizeMm ? { testPieceSizeMm } : {},
+    claims: { claimedTimeMs: opts.claimedTimeMs ?? entry.claimed_time_ms, machineFlowLimitMm3s: 30, ...(testPieceSizeMm ? { testPieceSizeMm } : {}), ...(measuredDimensionsMm ? { measuredDimensionsMm } : {}) },
+  });
   const json = toJsonReport(report) as { flow: { peak_mm3s: number; p95_mm3s: number }; time: { estimated_s: number }; layers: { height_mm: number }; rules?: { status: string; rule: { severity: string } }[] };
   const ruleResults = json.rules ?? [];
   const flags: Flag[] = [...(report.plausibility ?? []), ...report.warnings];

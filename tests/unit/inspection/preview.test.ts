@@ -19,6 +19,7 @@ const manifest = JSON.parse(fs.readFileSync(path.join(FIX, 'manifest.json'), 'ut
   file: string;
   stl: string;
   variant: string;
+  objects: number;
   settings: { layer_height_mm: number; first_layer_height_mm: number };
 }[];
 
@@ -149,6 +150,15 @@ describe('preview of the real slicer fixtures', () => {
       expect(p.layers.length - onGrid.length).toBeLessThanOrEqual(1);
       // The top layer is at the part's height (the STL), within one layer height.
       expect(Math.abs(p.layers[p.layers.length - 1].zMm - stl.sizeMm.z)).toBeLessThanOrEqual(hMm);
+      // The part's box (third layer up) spans the STL's footprint less about one line width: the
+      // outer wall's centre line runs half a bead inside the surface (manifest line width ≈ 0.45 mm).
+      const fxMm = (p.focusUnits.x1 - p.focusUnits.x0) * p.unitMm;
+      const fyMm = (p.focusUnits.y1 - p.focusUnits.y0) * p.unitMm;
+      // (Single-object plates only: the slicer may arrange the twin's two shells differently.)
+      if (fx.objects === 1) {
+        expect(Math.abs(fxMm - stl.sizeMm.x)).toBeLessThanOrEqual(1.2);
+        expect(Math.abs(fyMm - stl.sizeMm.y)).toBeLessThanOrEqual(1.2);
+      }
       // Simplification never adds points.
       expect(p.stats.pointsOut).toBeLessThanOrEqual(p.stats.pointsIn);
     });

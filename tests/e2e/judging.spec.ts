@@ -1,0 +1,80 @@
+import { test, expect } from '@playwright/test';
+import { signIn, readLatestMail, demoEmail } from './helpers';
+import { createReviewableEntry } from '../support/judging-fixtures';
+import { REASON_CODES } from '../../lib/reviews/reasons';
+
+const db = () => {
+  const f = process.env.HOTLAP_E2E_DB;
+  if (!f) throw new Error('HOTLAP_E2E_DB is not set: run through playwright.config.ts (global setup).');
+  return f;
+};
+
+test('a judge reviews an entry, steps through the preview layers, rejects it with two reasons, then verifies another that enters the standings', async ({ page, browser }) => {
+  test.setTimeout(120_000);
+  const { entryId: rejected } = await createReviewableEntry(db(), { entrant: 'sasha', claimedTimeMs: 1_640_000 });
+  const { entryId: verified } = await createReviewableEntry(db(), { entrant: 'sasha', claimedTimeMs: 1_590_000, fixture: 'slic3r-beacon-020.gcode.gz' });
+
+  await signIn(page, demoEmail('judge'));
+  await page.goto('/judging');
+  await expect(page.getByRole('heading', { name: 'Review desk' })).toBeVisible();
+  await page.getByRole('link', { name: `Review #${rejected}` }).click();
+  await expect(page.getByRole('heading', { name: `Entry #${rejected}` })).toBeVisible();
+  await expect(page.getByTestId('claimed-time')).toHaveText('0:27:20.0');
+  await expect(page.getByTestId('rule-results')).toBeVisible();
+  await expect(page.getByTestId('flow-chart')).toBeVisible();
+
+  // Photos open at full size with their capture time.
+  await page.getByRole('button', { name: /Open beacon-photo/ }).first().click();
+  const dialog = page.getByRole('dialog');
+  await expect(dialog.getByTestId('photo-full')).toBeVisible();
+  await expect(dialog).toContainText('captured 2026-11-25 18:04:31');
+  await dialog.getByRole('button', { name: 'Close' }).click();
+
+  // Step through layers of the toolpath preview.
+  const slider = page.getByTestId('layer-slider');
+  await expect(slider).toBeVisible({ timeout: 20_000 });
+  const readout = page.getByTestId('layer-readout');
+  const layerNo = async () => Number((await readout.innerText()).match(/Layer (\d+) \//)![1]);
+  const start = await layerNo();
+  await slider.focus();
+  for (let i = 0; i < 5; i++) await page.keyboard.press('ArrowRight');
+  await expect.poll(layerNo).toBe(start + 5);
+  await page.getByRole('button', { name: 'Previous layer' }).click();
+  await expect.poll(layerNo).toBe(start + 4);
+  await slider.fill('0');
+  await expect(readout).toContainText('Layer 1 /');
+  await slider.fill('20');
+  await expect(readout).toContainText('Layer 21 /');
+  await expect(page.getByText('Commanded flow, mm³/s')).toBeVisible();
+  await expect(page.getByTestId('flow-legend').locator('li').first()).toBeVisible();
+  await page.getByTestId('layer-preview').screenshot({ path: 'test-results/judging-preview.png' });
+
+  // Reject with two reasons.
+  await page.getByLabel('Reject', { exact: true }).check();
+  await page.getByLabel(REASON_CODES.timing_unconfirmed.label).check();
+  await page.getByLabel(REASON_CODES.cooling_flaws.label).check();
+  await page.getByLabel('Note to the entrant').fill('The video stops before the last layer and the bridge window droops.');
+  await page.getByRole('button', { name: 'Record decision' }).click();
+  await expect(page.getByTestId('decision-result')).toContainText('now rejected');
+  await page.screenshot({ path: 'test-results/judging-review.png', fullPage: true });
+
+  const mail = await readLatestMail(browser, demoEmail('sasha'), `#${rejected} was rejected`);
+  expect(mail).toContain(REASON_CODES.timing_unconfirmed.label);
+  expect(mail).toContain(REASON_CODES.cooling_flaws.label);
+  expect(mail).toContain('bridge window droops');
+
+  // The rejected entry has left the queue; verify the other one.
+  await page.goto('/judging');
+  await expect(page.getByRole('link', { name: `Review #${rejected}` })).toHaveCount(0);
+  await page.getByRole('link', { name: `Review #${verified}` }).click();
+  await page.getByLabel('Verify', { exact: true }).check();
+  await page.getByLabel(REASON_CODES.evidence_consistent.label).check();
+  await page.getByLabel('Note to the entrant').fill('Timing matches the video; clean overhang.');
+  await page.getByRole('button', { name: 'Record decision' }).click();
+  await expect(page.getByTestId('decision-result')).toContainText('now verified');
+
+  // It counts: the class standings show it.
+  await page.goto('/seasons/frostbite-sprint/classes/open-04');
+  await expect(page.locator(`[data-testid="standings-row"][data-entry="${verified}"]`)).toBeVisible();
+  await expect(page.locator(`[data-testid="standings-row"][data-entry="${rejected}"]`)).toHaveCount(0);
+});
