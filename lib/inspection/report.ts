@@ -80,10 +80,13 @@ export interface InspectionReport {
   overrides: {
     feedPercentMax: number | null;
     feedPercentMin: number | null;
+    /** Line of the highest / lowest speed factor. */
     feedLineNo: number | null;
+    feedMinLineNo: number | null;
     flowPercentMax: number | null;
     flowPercentMin: number | null;
     flowLineNo: number | null;
+    flowMinLineNo: number | null;
     commands: number;
   };
   temperatures: { nozzleMaxC: number | null; bedMaxC: number | null; fanMaxPercent: number | null };
@@ -201,10 +204,12 @@ export function toJsonReport(r: InspectionReport): Record<string, unknown> {
     overrides: {
       feed_percent_max: r.overrides.feedPercentMax,
       feed_percent_min: r.overrides.feedPercentMin,
-      feed_line: r.overrides.feedLineNo,
+      feed_max_line: r.overrides.feedLineNo,
+      feed_min_line: r.overrides.feedMinLineNo,
       flow_percent_max: r.overrides.flowPercentMax,
       flow_percent_min: r.overrides.flowPercentMin,
-      flow_line: r.overrides.flowLineNo,
+      flow_max_line: r.overrides.flowLineNo,
+      flow_min_line: r.overrides.flowMinLineNo,
       commands: r.overrides.commands,
     },
     temperatures: {
