@@ -38,12 +38,17 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
       const body = (await res.json()) as { inspection: InspectionJson | null; blockers: string[] };
       setInspection(body.inspection);
       setBlockers(body.blockers);
+      // Finished: refresh the server-rendered parts (history, details) too.
+      if (body.inspection && (body.inspection.status === 'done' || body.inspection.status === 'failed')) {
+        setMessage((m) => (m?.tone === 'ok' ? null : m));
+        router.refresh();
+      }
     }, POLL_MS);
     return () => {
       stop = true;
       clearInterval(t);
     };
-  }, [running, entry.id]);
+  }, [running, entry.id, router]);
 
   async function uploadFiles(e: React.FormEvent<HTMLFormElement>) {
     e.preventDefault();

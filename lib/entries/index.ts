@@ -204,10 +204,11 @@ export async function updateEntryDetails(user: User, id: number, raw: unknown) {
   return { id: entry.id, inspectionId: row?.id ?? null };
 }
 
-async function mailEntrant(entry: Entry, subject: string, intro: string, outro: string) {
+/** `intro` gets "Season (Class)" to name where the entry competes. */
+async function mailEntrant(entry: Entry, subject: string, intro: (where: string) => string, outro: string) {
   const [user, season, cls] = await Promise.all([User.findByPk(entry.entrantId), Season.findByPk(entry.seasonId), ContestClass.findByPk(entry.classId)]);
   if (!user || !season || !cls) return;
-  await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro, 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro));
+  await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro(`${season.name} (${cls.name})`), 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro));
 }
 
 /** What stands between this entry and submitting, as sentences (empty = may submit). */
@@ -247,9 +248,10 @@ export async function submitEntry(user: User, id: number) {
   await mailEntrant(
     entry,
     resubmitted ? 'Entry resubmitted' : 'Entry received',
-    resubmitted
-      ? `Your corrected entry #${entry.id} is back in the judges' queue.`
-      : `We received your entry #${entry.id}. The inspection passed the blocking rules; a judge will now review your evidence.`,
+    (where) =>
+      resubmitted
+        ? `Your corrected entry #${entry.id} in ${where} is back in the judges' queue.`
+        : `We received your entry #${entry.id} in ${where}. The inspection passed the blocking rules; a judge will now review your evidence.`,
     'You will get an e-mail when a judge decides. You can withdraw the entry from its page until then.',
   );
   return { id: entry.id, state: entry.state };
@@ -261,7 +263,7 @@ export async function withdrawEntry(user: User, id: number) {
   const from = entry.state;
   await entry.update({ state: 'withdrawn' });
   await audit('entry.withdrawn', { type: 'entry', id: entry.id }, { actorId: user.id, details: { from } });
-  await mailEntrant(entry, 'Entry withdrawn', `You withdrew entry #${entry.id}. It no longer counts in the standings and judges will not review it.`, 'Its files and inspection stay on its page.');
+  await mailEntrant(entry, 'Entry withdrawn', (where) => `You withdrew entry #${entry.id} in ${where}. It no longer counts in the standings and judges will not review it.`, 'Its files and inspection stay on its page.');
   return { id: entry.id, state: entry.state };
 }
 
