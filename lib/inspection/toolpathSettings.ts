@@ -146,6 +146,9 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   let broken = true;
 
   let prevLayerZ = Number.NaN;
+  let prevMajorZ = Number.NaN;
+  const zSteps = new Map<number, number>();
+  const sequenceFirsts: { z: number; volumeMm3: number; moves: number }[] = [];
   let sequence = 0;
   const layers: LayerRecord[] = [];
   let layerCount = 0;
@@ -266,7 +269,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       layerCount++;
       skippedLayers++;
       columns.abandon();
-      if (layers.length < MAX_LAYERS) layers.push(emptyRecord(z, h, layerVolumeMm3, nSkippedSeg, sequence, Number.isNaN(prevLayerZ)));
+      noteHeights(z, nSkippedSeg, layerVolumeMm3, Number.isNaN(prevLayerZ));
       prevLayerZ = z;
       nSkippedSeg = 0;
       layerVolumeMm3 = 0;
@@ -281,6 +284,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       prevLayerZ = Number.NaN;
     }
     const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
+    noteHeights(z, nSeg, layerVolumeMm3, Number.isNaN(prevLayerZ));
     try {
       analyseLayer(z, h, Number.isNaN(prevLayerZ));
     } catch (err) {
@@ -298,6 +302,24 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     decideStoring();
     if (layerTruncated && warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} has more than ${MAX_LAYER_SEGMENTS} moves; only the first were analysed.`);
     layerTruncated = false;
+  }
+
+  /**
+   * Heights, for every layer whether rasterised or not: Z steps between consecutive layers of one
+   * sequence that both have ≥ 20 moves (a prime line or a lone wipe is not a layer), and the first
+   * layer of each sequence.
+   */
+  function noteHeights(z: number, moves: number, volumeMm3: number, firstOfSequence: boolean): void {
+    const major = moves >= 20;
+    if (firstOfSequence) {
+      prevMajorZ = Number.NaN;
+      if (sequenceFirsts.length < 1000) sequenceFirsts.push({ z, volumeMm3, moves });
+    }
+    if (major && !Number.isNaN(prevMajorZ)) {
+      const d = Math.round((z - prevMajorZ) * 1000) / 1000;
+      if (d > 0 && zSteps.size < 10_000) zSteps.set(d, (zSteps.get(d) ?? 0) + 1);
+    }
+    prevMajorZ = major ? z : Number.NaN;
   }
 
   /** Once sampling, store the next layer's moves only if the budget could start a window now. */
@@ -578,7 +600,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   }
 
   function result(): MeasuredSettings {
-    const out = summarise(layers, layerCount, columns, loopWidthHist, outerSpacingHist, warnings);
+    const out = summarise(layers, layerCount, zSteps, sequenceFirsts, columns, loopWidthHist, outerSpacingHist, warnings);
     out.analysedLayers = analysedLayers;
     if (labelledWallMm > 0) {
       out.walls.detail += ` Cross-check with the file's feature labels: ${Math.round((labelledWallInLoopsMm / labelledWallMm) * 100)} % of wall-labelled extrusion lies in the loops counted as walls.`;
@@ -633,7 +655,12 @@ function modeOf(m: Map<number, number>): { value: number; count: number; total: 
 
 const pct = (a: number, b: number) => `${Math.round((a / b) * 100)} %`;
 
-function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTracker, loopWidthHist: Float64Array, outerSpacingHist: Float64Array, warnings: string[]): MeasuredSettings {
+function summarise(
+  layers: LayerRecord[],
+  layerCount: number,
+  steps: Map<number, number>,
+  sequenceFirsts: { z: number; volumeMm3: number; moves: number }[],
+  columns: ColumnTracker, loopWidthHist: Float64Array, outerSpacingHist: Float64Array, warnings: string[]): MeasuredSettings {
   const unknown = (detail: string): MeasuredFigure => ({ value: null, detail });
   const out: MeasuredSettings = {
     walls: unknown('No layers with closed loops.'),
@@ -649,24 +676,22 @@ function summarise(layers: LayerRecord[], layerCount: number, columns: ColumnTra
     labelledWallAgreement: null,
     warnings,
   };
-  if (layers.length === 0) return out;
+  if (layers.length === 0 && steps.size === 0) return out;
 
   // Substantive layers: at least 10 % of the median layer volume (drops prime lines and wipes).
   const vols = layers.map((l) => l.volumeMm3);
-  const medVol = median(vols);
+  const medVol = vols.length > 0 ? median(vols) : 0;
   const main = layers.filter((l) => l.volumeMm3 >= 0.1 * medVol);
 
-  // Layer height: mode of Z steps between consecutive substantive layers of one sequence.
-  const steps = new Map<number, number>();
-  for (let i = 1; i < main.length; i++) {
-    if (main[i].sequence !== main[i - 1].sequence) continue;
-    const d = Math.round((main[i].z - main[i - 1].z) * 1000) / 1000;
-    if (d > 0) steps.set(d, (steps.get(d) ?? 0) + 1);
-  }
+  // Layer height: mode of the Z steps (noteHeights). First layer: the lowest sequence start that is
+  // a real layer (≥ 20 moves and ≥ 10 % of the median layer's volume).
   const stepMode = modeOf(steps);
   if (stepMode) out.layer_height_mm = { value: stepMode.value, detail: `Mode of ${stepMode.total} Z steps; ${pct(stepMode.count, stepMode.total)} are ${stepMode.value.toFixed(3)} mm.` };
-  const first = main.reduce((a, b) => (b.z < a.z ? b : a), main[0]);
-  out.first_layer_height_mm = { value: Math.round(first.z * 1000) / 1000, detail: 'Z of the lowest printed layer (bed at Z 0).' };
+  const starts = sequenceFirsts.filter((f) => f.moves >= 20 && f.volumeMm3 >= 0.1 * medVol);
+  if (starts.length > 0) {
+    const z = Math.min(...starts.map((f) => f.z));
+    out.first_layer_height_mm = { value: Math.round(z * 1000) / 1000, detail: 'Z of the lowest printed layer (bed at Z 0).' };
+  }
 
   // Walls: mode over "clean" sparse layers — sparse infill throughout, no loops inside the walls —
   // where perimeters are complete (thin features squeeze them out) and no slicer extras sit next to

@@ -240,14 +240,20 @@ describe('settings analysis on bad or odd input', () => {
     expect(r.walls.value).toBeNull();
   });
 
-  it('a single thin line layer and zero-length moves do not crash', () => {
+  it('thin single-line layers and zero-length moves do not crash', () => {
     const a = createToolpathSettingsAnalyzer({ filamentDiameterMm: 1.75 });
     a.segment(seg({ x1: 0, lengthMm: 0 }));
-    a.segment(seg({}));
-    a.segment(seg({ z0: 0.4, z1: 0.4 }));
+    for (const z of [0.2, 0.4, 0.6]) for (let i = 0; i < 25; i++) a.segment(seg({ x0: i, x1: i + 1, z0: z, z1: z, lengthMm: 1, eMm: 0.03 }));
     a.end?.();
     const r = a.result();
-    expect(r.layers).toBe(2);
+    expect(r.layers).toBe(3);
     expect(r.layer_height_mm.value).toBeCloseTo(0.2, 6);
+    expect(r.first_layer_height_mm.value).toBeCloseTo(0.2, 6);
+    expect(r.walls.value).toBeNull();
+    // A lone short move (a prime blob) is not a layer for the height figures.
+    const b = createToolpathSettingsAnalyzer({ filamentDiameterMm: 1.75 });
+    b.segment(seg({}));
+    b.end?.();
+    expect(b.result().layer_height_mm.value).toBeNull();
   });
 });
