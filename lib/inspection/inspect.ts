@@ -152,6 +152,13 @@ function buildReport(p: Pipeline, stats: ReadStats, options: InspectOptions, nam
   if (ps.flowFactor.max && (ps.flowFactor.max.percent !== 100 || (ps.flowFactor.min && ps.flowFactor.min.percent !== 100))) {
     warnings.push({ code: 'flow_override', severity: 'advisory', message: `The file sets a flow factor (M221) between ${ps.flowFactor.min?.percent} % and ${ps.flowFactor.max.percent} % (line ${ps.flowFactor.max.lineNo}); the figures include it.` });
   }
+  if (m.extrudingLengthMm > 0 && m.nonPlanarExtrudingLengthMm > 0.2 * m.extrudingLengthMm) {
+    warnings.push({
+      code: 'non_planar_extrusion',
+      severity: 'advisory',
+      message: `${((m.nonPlanarExtrudingLengthMm / m.extrudingLengthMm) * 100).toFixed(0)} % of the extrusion climbs in Z (spiral or vase mode?): layers are counted only where the nozzle prints at a constant height.`,
+    });
+  }
   if (m.layers.count > m.layers.listed) {
     warnings.push({
       code: 'layers_not_listed',

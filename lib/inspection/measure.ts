@@ -123,6 +123,8 @@ export interface MeasureResult {
   extrudingMoves: number;
   travelMoves: number;
   extrudingLengthMm: number;
+  /** Part of extrudingLengthMm on moves that change Z (not assigned to layers). */
+  nonPlanarExtrudingLengthMm: number;
   travelLengthMm: number;
   flow: {
     peakMm3s: number | null;
@@ -239,6 +241,8 @@ export class Measurements implements MotionSink, PlannedMoveSink {
   private readonly fVMin = new Float64Array(N_FEATURES).fill(Infinity);
   private readonly fVMax = new Float64Array(N_FEATURES).fill(-Infinity);
   private labelledMoves = 0;
+  /** Extruding length of moves that change Z (spiral / vase mode, non-planar paths). */
+  private nonPlanarLen = 0;
   /** Length-weighted histogram of line widths (skirt left out), for a robust typical width. */
   private readonly widthHist = new Float64Array(WIDTH_BINS);
   private readonly widthHistSum = new Float64Array(WIDTH_BINS);
@@ -344,6 +348,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
   private extrusion(s: Segment, vol: number, dt: number, L: number): void {
     // Layer bookkeeping from planar extruding moves (works without any layer comments).
     const planar = s.z0 === s.z1;
+    if (!planar) this.nonPlanarLen += L;
     if (planar) {
       const key = Math.round(s.z1 * Z_KEY_PER_MM);
       if (key !== this.curKey) this.enterLayer(key, s.z1);
@@ -676,6 +681,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       extrudingMoves: this.extrudingMoves,
       travelMoves: this.travelMoves,
       extrudingLengthMm: this.extrLen,
+      nonPlanarExtrudingLengthMm: this.nonPlanarLen,
       travelLengthMm: this.travelLen,
       flow: {
         peakMm3s: this.peakFlow >= 0 ? this.peakFlow : null,

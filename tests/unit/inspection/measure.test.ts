@@ -141,6 +141,17 @@ describe('layers, size and objects without any comments', () => {
   });
 });
 
+describe('spiral extrusion', () => {
+  it('a spiral (vase mode) gets no layers of its own and an advisory', async () => {
+    const lines = ['M83', 'G1 Z0.2 F600', 'G1 X10 E0.5', 'G1 F1200'];
+    for (let i = 1; i <= 100; i++) lines.push(`G1 X${i % 2 ? 0 : 10} Z${(0.2 + i * 0.02).toFixed(2)} E0.4`);
+    const r = await inspectBytes(lines.join('\n'));
+    expect(r.layers.count).toBe(1);
+    expect(r.warnings.find((w) => w.code === 'non_planar_extrusion')?.severity).toBe('advisory');
+    expect(r.sizeMm?.z).toBeCloseTo(2.2, 9);
+  });
+});
+
 describe('bounded layer records', () => {
   it('past 20 000 layers the count goes on but per-layer records stop, with a note', async () => {
     const lines = ['M83', 'G1 F6000'];
