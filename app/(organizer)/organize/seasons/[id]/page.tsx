@@ -66,7 +66,7 @@ export default async function SeasonAdminPage({ params }: { params: Promise<{ id
 
       <section className={section} aria-labelledby="h-rules">
         <h2 id="h-rules">Rulebook</h2>
-        <RulebookEditor key={view.rules.map((r) => r.id).join(',')} seasonId={season.id} classes={view.classes.map((c) => ({ id: c.id, name: c.name }))} rules={view.rules} freeze={view.freeze} />
+        <RulebookEditor seasonId={season.id} classes={view.classes.map((c) => ({ id: c.id, name: c.name }))} rules={view.rules} freeze={view.freeze} />
       </section>
 
       <section className={section} aria-labelledby="h-judges">

@@ -80,7 +80,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
                 {own.map((r) => (
                   <li key={r.id}>
                     {r.sentence} <Severity severity={r.severity} />
-                    {seasonMetrics.has(r.metric) && <span className="ml-2 text-xs text-ink-500">(replaces the season rule on {label(r.metric).toLowerCase()} for this class)</span>}
+                    {seasonMetrics.has(r.metric) && <span className="ml-2 text-xs text-ink-500">{`(replaces the season rule on ${label(r.metric).toLowerCase()} for this class)`}</span>}
                   </li>
                 ))}
               </ol>
