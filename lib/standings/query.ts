@@ -7,6 +7,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { getSequelize } from '@/lib/db';
 import type { StandingsQuery, SortKey } from './params';
+import { STANDINGS_TRIGGERS } from '@/migrations/20261201-0402-standings-version';
 
 /** One ranked row, snake_case as the API and CSV publish it. */
 export interface StandingsRow {
@@ -73,46 +74,6 @@ const SNAPSHOT_SOURCE_SQL = `
     SELECT ${SOURCE_COLUMNS} FROM standings_snapshots WHERE season_id = :seasonId AND class_id = :classId
   )`;
 
-const SORT_SQL: Record<SortKey, string> = {
-  rank: 'rank',
-  time: 'claimed_time_ms',
-  peak_flow: 'peak_flow_mm3s',
-  p95_flow: 'p95_flow_mm3s',
-  layer_height: 'layer_height_mm',
-  date: 'submitted_at',
-  entrant: 'entrant_name COLLATE NOCASE',
-  machine: 'machine_name COLLATE NOCASE',
-  nozzle: 'nozzle_mm',
-};
-
-/** LIKE pattern for a literal substring (%, _ and \ escaped). */
-export function likePattern(text: string): string {
-  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
-}
-
-function filterSql(q: Pick<StandingsQuery, 'material' | 'motion' | 'q'>, repl: Record<string, unknown>): string {
-  const where: string[] = [];
-  if (q.material) {
-    where.push('material_family = :material');
-    repl.material = q.material;
-  }
-  if (q.motion) {
-    where.push('motion_system = :motion');
-    repl.motion = q.motion;
-  }
-  if (q.q) {
-    where.push("machine_name LIKE :q ESCAPE '\\'");
-    repl.q = likePattern(q.q);
-  }
-  return where.length ? `WHERE ${where.join(' AND ')}` : '';
-}
-
-function orderSql(q: Pick<StandingsQuery, 'sort' | 'desc'>): string {
-  const col = SORT_SQL[q.sort];
-  // Rows without a figure go last in either direction; equal values keep the standings order.
-  return `ORDER BY (${col.split(' ')[0]} IS NULL), ${col} ${q.desc ? 'DESC' : 'ASC'}, rank ASC`;
-}
-
 interface RawRow {
   rank: number;
   entry_id: number;
@@ -176,48 +137,119 @@ export function sourceSql(frozen: boolean): string {
   return `WITH ${frozen ? SNAPSHOT_SOURCE_SQL : LIVE_SOURCE_SQL}`;
 }
 
-/** One page of a class's standings with the filters and sort of `q`. */
-export async function standingsPage(ref: ClassRef, q: StandingsQuery, opts: { all?: boolean; transaction?: Transaction } = {}): Promise<StandingsPage> {
-  const repl: Record<string, unknown> = { seasonId: ref.seasonId, classId: ref.classId };
-  const where = filterSql(q, repl);
-  const all = opts.all ?? false;
-  let limit = '';
-  if (!all) {
-    limit = 'LIMIT :limit OFFSET :offset';
-    repl.limit = q.perPage;
-    repl.offset = (q.page - 1) * q.perPage;
-  }
+/** Every ranked row of one class, computed in SQL (the ranking is defined there once). */
+async function computeRanked(ref: ClassRef, transaction?: Transaction): Promise<StandingsRow[]> {
+  const raw = await getSequelize().query<RawRow>(`${sourceSql(ref.frozen)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, {
+    replacements: { seasonId: ref.seasonId, classId: ref.classId },
+    type: QueryTypes.SELECT,
+    transaction,
+  });
+  return raw.map(toRow);
+}
+
+/**
+ * The ranked rows of a class, from the in-process cache while `standings_version` (bumped by
+ * triggers on every relevant write, migrations/20261201-0402) is unchanged. Frozen snapshots never
+ * change, so they stay cached. Concurrent readers of a stale class share one recomputation.
+ */
+const CACHE_CLASSES = 32;
+const cache = new Map<string, { version: number; rows: Promise<StandingsRow[]> }>();
+let triggersChecked: boolean | null = null;
+
+async function changeVersion(): Promise<number | null> {
   const seq = getSequelize();
-  const sql = `${sourceSql(ref.frozen)}
-    SELECT ${SOURCE_COLUMNS}, COUNT(*) OVER () AS total FROM src ${where} ${orderSql(q)} ${limit}`;
-  const raw = await seq.query<RawRow>(sql, { replacements: repl, type: QueryTypes.SELECT, transaction: opts.transaction });
-  let total = raw.length ? Number(raw[0].total) : 0;
-  if (!raw.length && !all && q.page > 1) {
-    // Past the last page: still say how many rows the view has.
-    const [c] = await seq.query<{ n: number }>(`${sourceSql(ref.frozen)} SELECT COUNT(*) AS n FROM src ${where}`, { replacements: repl, type: QueryTypes.SELECT, transaction: opts.transaction });
-    total = Number(c.n);
+  if (triggersChecked === null) {
+    const [t] = await seq.query<{ n: number }>("SELECT COUNT(*) AS n FROM sqlite_master WHERE type = 'trigger' AND name LIKE 'standings_bump_%'", { type: QueryTypes.SELECT });
+    triggersChecked = Number(t.n) >= STANDINGS_TRIGGERS.length;
+    if (!triggersChecked) console.warn('standings: change triggers are missing (a table was rebuilt?); ranking every request without the cache.');
   }
-  const perPage = all ? Math.max(total, 1) : q.perPage;
-  return { rows: raw.map(toRow), total, page: all ? 1 : q.page, per_page: perPage, pages: Math.max(1, Math.ceil(total / perPage)), frozen: ref.frozen };
+  if (!triggersChecked) return null;
+  const [v] = await seq.query<{ version: number }>('SELECT version FROM standings_version WHERE id = 1', { type: QueryTypes.SELECT });
+  return v ? Number(v.version) : null;
+}
+
+export async function rankedRows(ref: ClassRef, opts: { transaction?: Transaction } = {}): Promise<StandingsRow[]> {
+  // Inside a caller's transaction the rows must be what that transaction sees: no cache.
+  if (opts.transaction) return computeRanked(ref, opts.transaction);
+  const version = ref.frozen ? -1 : await changeVersion();
+  if (version === null) return computeRanked(ref);
+  const key = `${ref.frozen ? 'f' : 'l'}:${ref.seasonId}:${ref.classId}`;
+  const hit = cache.get(key);
+  if (hit && hit.version === version) {
+    cache.delete(key);
+    cache.set(key, hit); // most recently used last
+    return hit.rows;
+  }
+  const rows = computeRanked(ref);
+  cache.set(key, { version, rows });
+  rows.catch(() => cache.delete(key));
+  while (cache.size > CACHE_CLASSES) cache.delete(cache.keys().next().value as string);
+  return rows;
+}
+
+/** Forget cached rankings (tests and tools that rewrite the database wholesale). */
+export function clearStandingsCache() {
+  cache.clear();
+  triggersChecked = null;
+}
+
+type SortValue = (r: StandingsRow) => number | string | null;
+const SORT_VALUE: Record<SortKey, SortValue> = {
+  rank: (r) => r.rank,
+  time: (r) => r.time_ms,
+  peak_flow: (r) => r.peak_flow_mm3s,
+  p95_flow: (r) => r.p95_flow_mm3s,
+  layer_height: (r) => r.layer_height_mm,
+  date: (r) => r.date,
+  entrant: (r) => r.entrant.toLowerCase(),
+  machine: (r) => r.machine.toLowerCase(),
+  nozzle: (r) => r.nozzle_mm,
+};
+
+/** Filters of the query, applied to ranked rows (ranks stay the class ranks). */
+export function filterRows(rows: StandingsRow[], q: Pick<StandingsQuery, 'material' | 'motion' | 'q'>): StandingsRow[] {
+  const needle = q.q?.toLowerCase();
+  if (!q.material && !q.motion && !needle) return rows;
+  return rows.filter((r) => (!q.material || r.material === q.material) && (!q.motion || r.motion === q.motion) && (!needle || r.machine.toLowerCase().includes(needle)));
+}
+
+/** Sorted copy: rows without the figure go last in either direction; equal values keep the standings order. */
+export function sortRows(rows: StandingsRow[], q: Pick<StandingsQuery, 'sort' | 'desc'>): StandingsRow[] {
+  if (q.sort === 'rank' && !q.desc) return rows;
+  const value = SORT_VALUE[q.sort];
+  const dir = q.desc ? -1 : 1;
+  return [...rows].sort((a, b) => {
+    const va = value(a);
+    const vb = value(b);
+    if (va === null || vb === null) return va === vb ? a.rank - b.rank : va === null ? 1 : -1;
+    if (va !== vb) return (va < vb ? -1 : 1) * dir;
+    return a.rank - b.rank;
+  });
+}
+
+/** One page of a class's standings with the filters and sort of `q` (or the whole view with `all`). */
+export async function standingsPage(ref: ClassRef, q: StandingsQuery, opts: { all?: boolean } = {}): Promise<StandingsPage> {
+  const view = sortRows(filterRows(await rankedRows(ref), q), q);
+  const total = view.length;
+  if (opts.all) return { rows: view, total, page: 1, per_page: Math.max(total, 1), pages: 1, frozen: ref.frozen };
+  const start = (q.page - 1) * q.perPage;
+  return { rows: view.slice(start, start + q.perPage), total, page: q.page, per_page: q.perPage, pages: Math.max(1, Math.ceil(total / q.perPage)), frozen: ref.frozen };
 }
 
 /** The standings rank of the given entries (only entries that are their entrant's ranked row get one). */
 export async function ranksOf(ref: ClassRef, entryIds: number[]): Promise<Map<number, number>> {
+  const want = new Set(entryIds);
   const out = new Map<number, number>();
-  if (!entryIds.length) return out;
-  const rows = await getSequelize().query<{ rank: number; entry_id: number }>(
-    `${sourceSql(ref.frozen)} SELECT rank, entry_id FROM src WHERE entry_id IN (:ids)`,
-    { replacements: { seasonId: ref.seasonId, classId: ref.classId, ids: entryIds }, type: QueryTypes.SELECT },
-  );
-  for (const r of rows) out.set(r.entry_id, Number(r.rank));
+  if (!want.size) return out;
+  for (const r of await rankedRows(ref)) if (want.has(r.entry_id)) out.set(r.entry_id, r.rank);
   return out;
 }
 
 /** The query plan of the live ranking, for checking that it searches the standings index. */
 export async function explainLiveRanking(seasonId: number, classId: number): Promise<string[]> {
-  const rows = await getSequelize().query<{ detail: string }>(
-    `EXPLAIN QUERY PLAN ${sourceSql(false)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank LIMIT 25`,
-    { replacements: { seasonId, classId }, type: QueryTypes.SELECT },
-  );
+  const rows = await getSequelize().query<{ detail: string }>(`EXPLAIN QUERY PLAN ${sourceSql(false)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, {
+    replacements: { seasonId, classId },
+    type: QueryTypes.SELECT,
+  });
   return rows.map((r) => r.detail);
 }
