@@ -1,0 +1,36 @@
+import Link from 'next/link';
+import { seasonOverview } from '@/lib/standings/overview';
+import { parseSlug } from '@/lib/standings/views';
+import { loadOr404 } from '@/components/standings/load';
+import { EntriesTimeline, FlowScatter, TimesHistogram } from '@/components/standings/charts';
+
+export const metadata = { title: 'Season overview' };
+
+export default async function SeasonOverviewPage({ params }: { params: Promise<{ slug: string }> }) {
+  const { slug } = await params;
+  const o = await loadOr404((async () => seasonOverview(parseSlug(slug, 'season')))());
+  return (
+    <div className="space-y-6">
+      <nav aria-label="Breadcrumb" className="text-sm text-ink-600">
+        <Link href="/seasons">Seasons</Link> › <Link href={`/seasons/${o.season.slug}`}>{o.season.name}</Link> › Overview
+      </nav>
+      <h1>{o.season.name}: overview</h1>
+      <p className="max-w-3xl text-ink-700">
+        Ranked runs only (each entrant’s best verified entry per class).{' '}
+        {o.classes.map((c, i) => (
+          <span key={c.slug}>
+            {i ? ' · ' : ''}
+            <Link href={`/seasons/${o.season.slug}/classes/${c.slug}`}>{c.name}</Link> ({c.ranked} ranked)
+          </span>
+        ))}
+      </p>
+      <div className="grid gap-6 lg:grid-cols-2">
+        <TimesHistogram bins={o.histogram} classes={o.classes} />
+        <FlowScatter series={o.scatter} />
+        <div className="lg:col-span-2">
+          <EntriesTimeline days={o.timeline} />
+        </div>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,289 @@
+'use client';
+/**
+ * The standings table: @tanstack/react-table in manual mode — sorting, filtering and paging run on
+ * the server through /api/v1/…/standings, and the URL holds the table state so a link reproduces
+ * the view. A row with several verified runs expands to show the entrant's other runs.
+ */
+import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import Link from 'next/link';
+import { usePathname, useRouter, useSearchParams } from 'next/navigation';
+import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
+import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
+import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
+import type { StandingsPage, StandingsRow } from '@/lib/standings/query';
+import { formatDate, formatDurationMs } from '@/lib/format';
+
+const fixed = (v: number | null, d: number) => (v == null ? '—' : v.toFixed(d));
+const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
+const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
+
+const col = createColumnHelper<StandingsRow>();
+
+/** Column id → API sort key; columns not listed are not sortable. Flow sorts highest first. */
+const SORTABLE: Record<string, { key: SortKey; descFirst?: boolean }> = {
+  rank: { key: 'rank' },
+  entrant: { key: 'entrant' },
+  machine: { key: 'machine' },
+  nozzle_mm: { key: 'nozzle', descFirst: true },
+  time_ms: { key: 'time' },
+  peak_flow_mm3s: { key: 'peak_flow', descFirst: true },
+  p95_flow_mm3s: { key: 'p95_flow', descFirst: true },
+  layer_height_mm: { key: 'layer_height', descFirst: true },
+  date: { key: 'date' },
+};
+const COLUMN_OF_SORT = Object.fromEntries(Object.entries(SORTABLE).map(([id, s]) => [s.key, id])) as Record<SortKey, string>;
+
+interface OlderRun {
+  entry_id: number;
+  rank: number | null;
+  machine: string;
+  material: string;
+  time_ms: number;
+  peak_flow_mm3s: number | null;
+  date: string | null;
+}
+
+export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
+  const router = useRouter();
+  const pathname = usePathname();
+  const searchParams = useSearchParams();
+  const search = searchParams.toString();
+  const query: StandingsQuery = useMemo(() => {
+    try {
+      return parseStandingsQuery(new URLSearchParams(search));
+    } catch {
+      return DEFAULT_QUERY;
+    }
+  }, [search]);
+  const api = `/api/v1/seasons/${seasonSlug}/classes/${classSlug}/standings`;
+  const [data, setData] = useState<StandingsPage>(initial);
+  const [loadedKey, setLoadedKey] = useState(initialKey);
+  const [error, setError] = useState<string | null>(null);
+  const [qText, setQText] = useState(query.q ?? '');
+  const [older, setOlder] = useState<Record<number, OlderRun[] | 'loading' | string>>({});
+  const [copied, setCopied] = useState(false);
+  const key = standingsSearchParams(query).toString();
+
+  useEffect(() => {
+    if (key === loadedKey) return;
+    const ctrl = new AbortController();
+    fetch(`${api}?${key}`, { signal: ctrl.signal })
+      .then(async (res) => {
+        const body = await res.json();
+        if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
+        setData(body);
+        setLoadedKey(key);
+        setError(null);
+      })
+      .catch((err) => {
+        if (!ctrl.signal.aborted) setError(err instanceof Error ? err.message : String(err));
+      });
+    return () => ctrl.abort();
+  }, [api, key, loadedKey, query]);
+
+  const navigate = useCallback(
+    (patch: Partial<StandingsQuery>) => {
+      const next = { ...query, ...patch };
+      const qs = standingsSearchParams(next).toString();
+      router.push(qs ? `${pathname}?${qs}` : pathname, { scroll: false });
+    },
+    [query, pathname, router],
+  );
+
+  // Search as you type, a moment after the last key.
+  const typing = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const onSearch = (text: string) => {
+    setQText(text);
+    if (typing.current) clearTimeout(typing.current);
+    typing.current = setTimeout(() => navigate({ q: text.trim() || undefined, page: 1 }), 350);
+  };
+  useEffect(() => setQText(query.q ?? ''), [query.q]);
+
+  const toggleOlder = async (row: StandingsRow) => {
+    if (older[row.entry_id]) {
+      setOlder(({ [row.entry_id]: _, ...rest }) => rest);
+      return;
+    }
+    setOlder((o) => ({ ...o, [row.entry_id]: 'loading' }));
+    try {
+      const res = await fetch(`/api/v1/seasons/${seasonSlug}/classes/${classSlug}/entrants/${row.entrant_id}/entries`);
+      const body = await res.json();
+      if (!res.ok) throw new Error(body.error);
+      setOlder((o) => ({ ...o, [row.entry_id]: (body.entries as OlderRun[]).filter((e) => e.entry_id !== row.entry_id) }));
+    } catch (err) {
+      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other runs.' }));
+    }
+  };
+
+  const columns = useMemo(
+    () => [
+      col.accessor('rank', { header: 'Rank', cell: (c) => <span className="num font-semibold">{c.getValue()}</span> }),
+      col.accessor('entrant', {
+        header: 'Entrant',
+        cell: (c) => (
+          <div>
+            <Link href={`/entrants/${c.row.original.entrant_id}`}>{c.getValue()}</Link>
+            {c.row.original.verified_entries > 1 && (
+              <button type="button" className="ml-2 text-xs text-ink-600 underline" aria-expanded={!!older[c.row.original.entry_id]} onClick={() => toggleOlder(c.row.original)}>
+                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more run${c.row.original.verified_entries > 2 ? 's' : ''}`}
+              </button>
+            )}
+          </div>
+        ),
+      }),
+      col.accessor('machine', { header: 'Machine', cell: (c) => <Link href={`/machines/${c.row.original.machine_id}`}>{c.getValue()}</Link> }),
+      col.accessor('motion', { header: 'Motion', enableSorting: false, cell: (c) => motionLabel(c.getValue()) }),
+      col.accessor('material', { header: 'Material', enableSorting: false, cell: (c) => materialLabel(c.getValue()) }),
+      col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: (c) => <span className="num">{fixed(c.getValue(), 2)}</span> }),
+      col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
+      col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: (c) => <span className="num">{fixed(c.getValue(), 1)}</span> }),
+      col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: (c) => <span className="num">{fixed(c.getValue(), 1)}</span> }),
+      col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: (c) => <span className="num">{fixed(c.getValue(), 2)}</span> }),
+      col.accessor('date', { header: 'Submitted', cell: (c) => formatDate(c.getValue()) }),
+    ],
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+    [older],
+  );
+
+  const sorting: SortingState = query.sort === 'rank' && !query.desc ? [] : [{ id: COLUMN_OF_SORT[query.sort], desc: query.desc }];
+  const table = useReactTable({
+    data: data.rows,
+    columns,
+    getCoreRowModel: getCoreRowModel(),
+    getRowId: (r) => String(r.entry_id),
+    manualSorting: true,
+    manualPagination: true,
+    manualFiltering: true,
+    enableMultiSort: false,
+    pageCount: data.pages,
+    rowCount: data.total,
+    state: { sorting, pagination: { pageIndex: query.page - 1, pageSize: query.perPage } },
+    onSortingChange: (updater) => {
+      const next = typeof updater === 'function' ? updater(sorting) : updater;
+      const s = next[0];
+      navigate({ sort: s ? SORTABLE[s.id].key : 'rank', desc: s ? s.desc : false, page: 1 });
+    },
+    onPaginationChange: (updater) => {
+      const next = typeof updater === 'function' ? updater({ pageIndex: query.page - 1, pageSize: query.perPage }) : updater;
+      navigate({ page: next.pageIndex + 1, perPage: next.pageSize });
+    },
+  });
+  const sortableIds = new Set(Object.keys(SORTABLE));
+
+  const csvHref = `${api}?${standingsSearchParams(query, { format: 'csv', withPaging: false }).toString()}`;
+  const loading = key !== loadedKey && !error;
+
+  return (
+    <section aria-label="Standings" className="space-y-4">
+      <form className="card flex flex-wrap items-end gap-4" role="search" onSubmit={(e) => { e.preventDefault(); navigate({ q: qText.trim() || undefined, page: 1 }); }}>
+        <div>
+          <label className="label" htmlFor="f-material">Material</label>
+          <select id="f-material" className="input" value={query.material ?? ''} onChange={(e) => navigate({ material: (e.target.value || undefined) as StandingsQuery['material'], page: 1 })}>
+            <option value="">All materials</option>
+            {MATERIAL_FAMILIES.map((m) => <option key={m} value={m}>{materialLabel(m)}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="f-motion">Motion system</label>
+          <select id="f-motion" className="input" value={query.motion ?? ''} onChange={(e) => navigate({ motion: (e.target.value || undefined) as StandingsQuery['motion'], page: 1 })}>
+            <option value="">All motion systems</option>
+            {MOTION_SYSTEMS.map((m) => <option key={m} value={m}>{motionLabel(m)}</option>)}
+          </select>
+        </div>
+        <div className="min-w-48 flex-1">
+          <label className="label" htmlFor="f-q">Machine name</label>
+          <input id="f-q" className="input" type="search" maxLength={Q_MAX_LENGTH} placeholder="Search machines" value={qText} onChange={(e) => onSearch(e.target.value)} />
+        </div>
+        <div className="flex gap-2">
+          <a className="btn-quiet" href={csvHref} download data-testid="csv-link">Download CSV</a>
+          <button type="button" className="btn-quiet" onClick={() => navigator.clipboard?.writeText(window.location.href).then(() => setCopied(true), () => setCopied(false))}>
+            {copied ? 'Link copied' : 'Copy link to this view'}
+          </button>
+        </div>
+      </form>
+
+      {error && <p role="alert" className="field-error">{error}</p>}
+      <div className="card overflow-x-auto p-0" aria-busy={loading}>
+        <table className="table" data-testid="standings-table">
+          <thead>
+            {table.getHeaderGroups().map((hg) => (
+              <tr key={hg.id}>
+                {hg.headers.map((h) => {
+                  const sortable = sortableIds.has(h.column.id) && h.column.getCanSort();
+                  const dir = h.column.getIsSorted() || (h.column.id === 'rank' && !sorting.length ? 'asc' : false);
+                  return (
+                    <th key={h.id} scope="col" aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
+                      {sortable ? (
+                        <button
+                          type="button"
+                          className="inline-flex items-center gap-1 font-semibold text-ink-700 hover:text-ember-700"
+                          onClick={() => {
+                            const spec = SORTABLE[h.column.id];
+                            const cur = h.column.getIsSorted();
+                            const desc = cur ? cur === 'asc' : !!spec.descFirst;
+                            table.setSorting(h.column.id === 'rank' && !desc ? [] : [{ id: h.column.id, desc }]);
+                          }}
+                        >
+                          {flexRender(h.column.columnDef.header, h.getContext())}
+                          <span aria-hidden="true" className="text-xs">{dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : '↕'}</span>
+                        </button>
+                      ) : (
+                        flexRender(h.column.columnDef.header, h.getContext())
+                      )}
+                    </th>
+                  );
+                })}
+              </tr>
+            ))}
+          </thead>
+          <tbody className={loading ? 'opacity-50' : ''}>
+            {table.getRowModel().rows.map((row) => {
+              const runs = older[row.original.entry_id];
+              return (
+                <Fragment key={row.id}>
+                  <tr data-testid="standings-row" data-entry={row.original.entry_id}>
+                    {row.getVisibleCells().map((cell) => <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                  </tr>
+                  {runs && (
+                    <tr className="bg-ink-50">
+                      <td />
+                      <td colSpan={columns.length - 1}>
+                        {runs === 'loading' ? 'Loading other runs…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
+                          <ul className="space-y-1 text-sm" aria-label={`Other runs of ${row.original.entrant}`}>
+                            {runs.map((r) => (
+                              <li key={r.entry_id}>
+                                <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {fixed(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
+                              </li>
+                            ))}
+                          </ul>
+                        )}
+                      </td>
+                    </tr>
+                  )}
+                </Fragment>
+              );
+            })}
+            {!data.rows.length && (
+              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">No verified entry matches this view.</td></tr>
+            )}
+          </tbody>
+        </table>
+      </div>
+
+      <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
+        <button type="button" className="btn-quiet" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>Previous page</button>
+        <span data-testid="page-status" className="text-sm text-ink-700">
+          Page {query.page} of {data.pages} · {data.total} ranked
+        </span>
+        <button type="button" className="btn-quiet" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>Next page</button>
+        <label className="ml-auto flex items-center gap-2 text-sm text-ink-700">
+          Rows per page
+          <select className="input w-auto" value={query.perPage} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>
+            {PER_PAGE_CHOICES.map((n) => <option key={n} value={n}>{n}</option>)}
+          </select>
+        </label>
+      </nav>
+    </section>
+  );
+}
