@@ -4,6 +4,13 @@
  * the latest two rows are compared.
  */
 import { asFlags } from './flags';
+import { RuleSchema, ruleSentence } from '@/lib/inspection/rules';
+
+/** The rule's own sentence ("Walls must be 2."), without the pass/fail wording of the result. */
+function sentenceOf(rule: unknown, fallback: string): string {
+  const parsed = RuleSchema.safeParse(rule);
+  return parsed.success ? ruleSentence(parsed.data) : fallback;
+}
 
 export interface InspectionSnapshot {
   id: number;
@@ -37,13 +44,15 @@ interface RuleRow {
 
 function ruleRows(v: unknown[]): Map<string, RuleRow> {
   const out = new Map<string, RuleRow>();
+  const seen = new Map<string, number>();
   for (const r of Array.isArray(v) ? v : []) {
-    const rr = r as { rule?: { metric?: string; comparator?: string; value?: number; valueMax?: number; sentence?: string }; status?: string; measured?: unknown; message?: string };
+    const rr = r as { rule?: { metric?: string; sentence?: string }; status?: string; measured?: unknown; message?: string };
     const metric = rr.rule?.metric;
     if (!metric) continue;
-    // One metric can carry several rules (season and class): key by the whole rule.
-    const key = `${metric}|${rr.rule?.comparator}|${rr.rule?.value}|${rr.rule?.valueMax ?? ''}`;
-    out.set(key, { metric, sentence: rr.rule?.sentence ?? rr.message ?? metric, status: String(rr.status ?? 'unknown'), measured: rr.measured ?? null });
+    // Key by metric and its n-th rule, so a rule whose threshold changed is compared with its old self.
+    const n = seen.get(metric) ?? 0;
+    seen.set(metric, n + 1);
+    out.set(`${metric}#${n}`, { metric, sentence: sentenceOf(rr.rule, rr.message || metric), status: String(rr.status ?? 'unknown'), measured: rr.measured ?? null });
   }
   return out;
 }
@@ -56,12 +65,12 @@ export function inspectionDiff(previous: InspectionSnapshot, latest: InspectionS
   }).filter((h) => h.changed);
   const a = ruleRows(previous.ruleResults);
   const b = ruleRows(latest.ruleResults);
-  const rules: { metric: string; sentence: string; before: string | null; after: string | null; measuredBefore: unknown; measuredAfter: unknown }[] = [];
+  const rules: { metric: string; sentence: string; sentenceBefore: string | null; before: string | null; after: string | null; measuredBefore: unknown; measuredAfter: unknown }[] = [];
   for (const key of new Set([...a.keys(), ...b.keys()])) {
     const x = a.get(key);
     const y = b.get(key);
-    if (x && y && x.status === y.status && x.measured === y.measured) continue;
-    rules.push({ metric: (y ?? x)!.metric, sentence: (y ?? x)!.sentence, before: x?.status ?? null, after: y?.status ?? null, measuredBefore: x?.measured ?? null, measuredAfter: y?.measured ?? null });
+    if (x && y && x.status === y.status && x.measured === y.measured && x.sentence === y.sentence) continue;
+    rules.push({ metric: (y ?? x)!.metric, sentence: (y ?? x)!.sentence, sentenceBefore: x && x.sentence !== y?.sentence ? x.sentence : null, before: x?.status ?? null, after: y?.status ?? null, measuredBefore: x?.measured ?? null, measuredAfter: y?.measured ?? null });
   }
   const fa = new Set(asFlags(previous.flags).map((f) => f.code));
   const fb = asFlags(latest.flags);

@@ -52,7 +52,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
     User.findByPk(entry.entrantId, { attributes: ['id', 'name'] }),
     Machine.findByPk(entry.machineId),
     StoredFile.findAll({ where: { entryId: entry.id }, order: [['id', 'ASC']] }),
-    Inspection.findAll({ where: { entryId: entry.id }, order: [['id', 'DESC']], limit: 2 }),
+    Inspection.findAll({ where: { entryId: entry.id }, order: [['id', 'DESC']], limit: 20 }),
     Review.findAll({ where: { entryId: entry.id }, order: [['id', 'ASC']], include: [{ model: User, as: 'judge', attributes: ['id', 'name'] }] }),
     TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
   ]);
@@ -63,8 +63,13 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
   const thumbs = files.filter((f) => f.kind === 'thumbnail');
   // The current G-code: the newest one not replaced by a later upload.
   const gcode = [...files].reverse().find((f) => f.kind === 'gcode' && !f.meta?.replacedAt) ?? null;
-  const latest = inspections[0] ?? null;
-  const previous = inspections[1] ?? null;
+  // Judges work from the newest finished inspection; a newer one still queued or running (a
+  // re-inspection) or failed is shown as a note, and "what changed" compares the two newest finished ones.
+  const done = inspections.filter((i) => i.status === 'done');
+  const newest = inspections[0] ?? null;
+  const latest = done[0] ?? newest;
+  const previous = done[1] ?? null;
+  const pending = newest && newest !== latest ? { id: newest.id, status: newest.status, error: newest.error, createdAt: newest.createdAt.toISOString() } : null;
   const verifiers = roundVerifiers(reviews, entry.submittedAt);
   const reference = testPiece ? { x: testPiece.sizeXMm, y: testPiece.sizeYMm, z: testPiece.sizeZMm } : null;
   const report = latest?.report ?? null;
@@ -156,7 +161,8 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       flowSeries: flowSeries(report),
       previewUrl: gcode ? `/api/judging/entries/${entry.id}/preview` : null,
     },
-    changes: latest && previous ? inspectionDiff(snapshot(previous), snapshot(latest)) : null,
+    pendingInspection: pending,
+    changes: latest && previous && latest.status === 'done' ? inspectionDiff(snapshot(previous), snapshot(latest)) : null,
     reviews: reviews.map((r) => ({
       id: r.id,
       judge: (r as unknown as { judge: User | null }).judge?.name ?? '',

@@ -14,16 +14,23 @@ export const QueueFilterSchema = z.object({
 });
 export type QueueFilter = z.infer<typeof QueueFilterSchema>;
 
-/** Latest inspection per entry (rows are never overwritten; the newest id wins). */
-export async function latestInspections(entryIds: number[]): Promise<Map<number, Inspection>> {
-  const out = new Map<number, Inspection>();
+/**
+ * Per entry: the newest inspection row (which may be a re-inspection still queued or running) and
+ * the newest finished one, whose findings the judges work from. Rows are never overwritten.
+ */
+export async function latestInspections(entryIds: number[]): Promise<Map<number, { newest: Inspection; done: Inspection | null }>> {
+  const out = new Map<number, { newest: Inspection; done: Inspection | null }>();
   if (!entryIds.length) return out;
   const rows = await Inspection.findAll({
     where: { entryId: entryIds },
     attributes: ['id', 'entryId', 'status', 'ruleResults', 'flags', 'blockingFailures', 'advisoryFlags', 'peakFlowMm3s', 'estimatedTimeS', 'createdAt'],
     order: [['id', 'DESC']],
   });
-  for (const r of rows) if (!out.has(r.entryId)) out.set(r.entryId, r);
+  for (const r of rows) {
+    const cur = out.get(r.entryId);
+    if (!cur) out.set(r.entryId, { newest: r, done: r.status === 'done' ? r : null });
+    else if (!cur.done && r.status === 'done') cur.done = r;
+  }
   return out;
 }
 
@@ -55,7 +62,8 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
   const seasonById = new Map(seasons.map((s) => [s.id, s]));
   const rows = entries.map((e) => {
     const x = e as unknown as { entrant: User; class: ContestClass };
-    const i = insp.get(e.id) ?? null;
+    const found = insp.get(e.id);
+    const i = found?.done ?? null;
     const season = seasonById.get(e.seasonId)!;
     const verifiers = roundVerifiers(reviews.filter((r) => r.entryId === e.id), e.submittedAt);
     return {
@@ -67,7 +75,7 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
       entrant: x.entrant.name,
       claimedTimeMs: e.claimedTimeMs,
       submittedAt: e.submittedAt?.toISOString() ?? null,
-      inspection: i ? { status: i.status, estimatedTimeS: i.estimatedTimeS, peakFlowMm3s: i.peakFlowMm3s } : null,
+      inspection: found ? { status: found.newest.status, estimatedTimeS: i?.estimatedTimeS ?? null, peakFlowMm3s: i?.peakFlowMm3s ?? null } : null,
       flags: flagKinds(i),
       verifications: { count: verifiers.length, required: requiredVerifications(season.verificationsRequired), byMe: verifiers.includes(judgeId) },
     };

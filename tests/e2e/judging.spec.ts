@@ -17,6 +17,7 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await signIn(page, demoEmail('judge'));
   await page.goto('/judging');
   await expect(page.getByRole('heading', { name: 'Review desk' })).toBeVisible();
+  await page.screenshot({ path: 'test-results/judging-queue.png', fullPage: true });
   await page.getByRole('link', { name: `Review #${rejected}` }).click();
   await expect(page.getByRole('heading', { name: `Entry #${rejected}` })).toBeVisible();
   await expect(page.getByTestId('claimed-time')).toHaveText('0:27:20.0');

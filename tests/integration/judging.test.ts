@@ -284,3 +284,35 @@ describe('review screen and evidence', () => {
     expect((await sql(dbFile, 'SELECT id FROM inspections WHERE entry_id = ?', [entryId])).length).toBe(2);
   });
 });
+
+describe('re-inspection by the organizer', () => {
+  it('after a rulebook change re-inspects the season, judges see the rule results that changed', async () => {
+    const { entryId } = await createReviewableEntry(dbFile);
+    type RuleOut = { metric: string; comparator: string; value: number; valueMax?: number | null; tolerance?: number; severity: string; classId: number | null };
+    const get = await clients.organizer.get(`/api/organizer/seasons/${frostId}/rules`);
+    expect(get.status).toBe(200);
+    const original = ((await get.json()).rules as RuleOut[]).map(({ metric, comparator, value, valueMax, tolerance, severity, classId }) => ({
+      metric, comparator, value, ...(valueMax != null ? { valueMax } : {}), ...(tolerance != null ? { tolerance } : {}), severity, classId,
+    }));
+    // Three walls instead of two: the fixture (sliced with 2 walls, tests/fixtures/manifest.json) now fails.
+    const changed = original.map((r) => (r.metric === 'walls' ? { ...r, value: 3 } : r));
+    const put = await clients.organizer.put(`/api/organizer/seasons/${frostId}/rules`, { rules: changed, reinspect: true });
+    expect(put.status, await put.clone().text()).toBe(200);
+    try {
+      let r: { pendingInspection: unknown; changes: { rules: { metric: string; before: string; after: string }[] } | null } | null = null;
+      for (let i = 0; i < 240; i++) {
+        r = await (await clients.judge.get(`/api/judging/entries/${entryId}`)).json();
+        if (!r!.pendingInspection && r!.changes) break;
+        await new Promise((ok) => setTimeout(ok, 500));
+      }
+      expect(r!.pendingInspection).toBeNull();
+      const walls = r!.changes!.rules.find((x) => x.metric === 'walls');
+      expect(walls).toMatchObject({ before: 'pass', after: 'fail' });
+      // The queue now marks the entry as failing a blocking rule.
+      const q = await (await clients.judge.get('/api/judging/queue?flag=blocking_overridden')).json();
+      expect(q.entries.map((e: { id: number }) => e.id)).toContain(entryId);
+    } finally {
+      await clients.organizer.put(`/api/organizer/seasons/${frostId}/rules`, { rules: original, reinspect: true });
+    }
+  });
+});

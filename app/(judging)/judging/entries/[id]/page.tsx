@@ -84,6 +84,11 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
         <PhotoGallery photos={r.photos} />
       </section>
 
+      {r.pendingInspection && (
+        <p className="rounded-lg bg-ember-50 p-3 text-sm text-ember-800" role="status" data-testid="pending-inspection">
+          A new inspection (#{r.pendingInspection.id}) is {r.pendingInspection.status}{r.pendingInspection.error ? `: ${r.pendingInspection.error}` : ''}. The figures below are from the previous finished inspection; reload when it is done to see what changed.
+        </p>
+      )}
       {r.changes && (
         <section className="card border-ember-300" data-testid="inspection-changes">
           <h2>What changed since the previous inspection</h2>
@@ -91,7 +96,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
           {r.changes.unchanged ? <p className="mt-2">Nothing the judges see changed.</p> : (
             <ul className="mt-2 list-disc space-y-1 pl-5 text-sm">
               {r.changes.headline.map((h) => <li key={h.key}>{h.label}: <span className="num">{h.before ?? '—'} → {h.after ?? '—'} {h.unit}</span></li>)}
-              {r.changes.rules.map((x) => <li key={x.sentence}>Rule “{x.sentence}”: {x.before ?? 'absent'} → {x.after ?? 'absent'} (measured {String(x.measuredBefore ?? '—')} → {String(x.measuredAfter ?? '—')})</li>)}
+              {r.changes.rules.map((x, i) => <li key={i}>Rule “{x.sentence}”{x.sentenceBefore ? ` (was “${x.sentenceBefore}”)` : ''}: {x.before ?? 'absent'} → {x.after ?? 'absent'} (measured {String(x.measuredBefore ?? '—')} → {String(x.measuredAfter ?? '—')})</li>)}
               {r.changes.flagsAdded.map((f) => <li key={`+${f.code}`}>New flag: {f.message || f.code}</li>)}
               {r.changes.flagsRemoved.map((c) => <li key={`-${c}`}>Flag gone: {c}</li>)}
             </ul>
