@@ -299,12 +299,15 @@ export class Measurements implements MotionSink, PlannedMoveSink {
       let bin = (flow / FLOW_BIN_MM3S) | 0;
       if (bin > FLOW_BINS || bin < 0) bin = FLOW_BINS;
       this.hist[bin] += dt;
-      this.extrusion(s, vol, dt, L);
+      this.moveVolMm3 = vol;
+      this.moveDtS = dt;
+      this.extrusion(s);
     } else if (L > 0) {
       this.travelMoves++;
       this.travelLen += L;
     }
-    this.planner.push(s, flow, this.curLayer);
+    this.planner.nextFlowMm3s = flow;
+    this.planner.push(s, this.curLayer);
   }
 
   dwell(timeS: number): void {
@@ -345,7 +348,14 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     this.tsN = Math.ceil(this.tsN / 2);
   }
 
-  private extrusion(s: Segment, vol: number, dt: number, L: number): void {
+  /** Per-move figures for extrusion(), as fields so no double is boxed per call (see planner.nextFlowMm3s). */
+  private moveVolMm3 = 0;
+  private moveDtS = 0;
+
+  private extrusion(s: Segment): void {
+    const vol = this.moveVolMm3;
+    const dt = this.moveDtS;
+    const L = s.lengthMm;
     // Layer bookkeeping from planar extruding moves (works without any layer comments).
     const planar = s.z0 === s.z1;
     if (!planar) this.nonPlanarLen += L;

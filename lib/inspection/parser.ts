@@ -337,7 +337,8 @@ export class GcodeParser implements LineSink {
   private cutNext = false;
 
   // Number scanner output.
-  private numEnd = 0;
+  /** Value of the number readNumber() just scanned (a field, so no boxed double is returned). */
+  private numVal = 0;
 
   constructor(sink: MotionSink, options: ParserOptions = {}, machine: MachineState = new MachineState()) {
     this.sink = sink;
@@ -439,8 +440,8 @@ export class GcodeParser implements LineSink {
       }
       const wordAt = i;
       i++;
-      const v = this.readNumber(buf, i, end, wordAt === start || buf[wordAt - 1] === SPACE || buf[wordAt - 1] === TAB);
-      const j = this.numEnd;
+      const j = this.readNumber(buf, i, end, wordAt === start || buf[wordAt - 1] === SPACE || buf[wordAt - 1] === TAB);
+      const v = this.numVal;
       if (j < 0) {
         // Letter without a number, e.g. "G28 X Y": present, no value. Bad text right after it is malformed.
         const nc = i < end ? buf[i] : SPACE;
@@ -497,7 +498,7 @@ export class GcodeParser implements LineSink {
   }
 
   /**
-   * Parses [+-]digits[.digits] by hand from char codes; numEnd = index after it, or −1 when no
+   * Parses [+-]digits[.digits] by hand from char codes into numVal; returns the index after it, or −1 when no
    * digits. An exponent ("1e308") is read only for a space-separated word whose exponent is followed
    * by a separator; otherwise 'E' starts the next word, as in Marlin's parser, which strips 'E' so
    * "X10E5" is X10 E5 (Marlin GCodeParser::value_float).
@@ -526,8 +527,8 @@ export class GcodeParser implements LineSink {
     }
     let v = fd > 0 ? (fd < POW10.length ? mant / POW10[fd] : mant / Math.pow(10, fd)) : mant;
     if (digits === 0) {
-      this.numEnd = -1;
-      return NaN;
+      this.numVal = NaN;
+      return -1;
     }
     if (spaced && i + 1 < end && (buf[i] | 0x20) === 101) {
       // Possible exponent.
@@ -549,8 +550,8 @@ export class GcodeParser implements LineSink {
         i = k;
       }
     }
-    this.numEnd = i;
-    return neg ? -v : v;
+    this.numVal = neg ? -v : v;
+    return i;
   }
 
   private checksum(buf: Buffer, stmtStart: number, star: number, end: number): number {
@@ -937,14 +938,11 @@ export class GcodeParser implements LineSink {
       this.eLogical = 0;
       return;
     }
-    let v = this.coord(L_X);
-    if (v === v) this.ox = this.px - v * u;
-    v = this.coord(L_Y);
-    if (v === v) this.oy = this.py - v * u;
-    v = this.coord(L_Z);
-    if (v === v) this.oz = this.pz - v * u;
-    v = this.coord(L_E, MAX_E_MM);
-    if (v === v) this.eLogical = v * u;
+    const vals = this.vals;
+    if (this.coordOk(L_X)) this.ox = this.px - vals[L_X] * u;
+    if (this.coordOk(L_Y)) this.oy = this.py - vals[L_Y] * u;
+    if (this.coordOk(L_Z)) this.oz = this.pz - vals[L_Z] * u;
+    if (this.coordOk(L_E, MAX_E_MM)) this.eLogical = vals[L_E] * u;
   }
 
   /** G28: homed axes go to 0 and lose their G92 offset (Marlin G28). No axis words = all. */
@@ -1005,19 +1003,22 @@ export class GcodeParser implements LineSink {
     this.sink.segment(s);
   }
 
-  /** Axis word value (not yet unit-scaled) if present, finite and within ±maxAbs; NaN otherwise (with a warning). */
-  private coord(letter: number, maxAbs = MAX_COORD_MM): number {
-    if ((this.mask & (1 << letter)) === 0) return NaN;
+  /**
+   * True when the axis word is present with a finite value within ±maxAbs (read it from vals);
+   * a present but bad word gives a warning. Returns a boolean, not the double, to avoid boxing.
+   */
+  private coordOk(letter: number, maxAbs = MAX_COORD_MM): boolean {
+    if ((this.mask & (1 << letter)) === 0) return false;
     const v = this.vals[letter];
     if (v !== v) {
       this.warn('malformed-number', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)} has no valid number; ignored.`);
-      return NaN;
+      return false;
     }
     if (!(Math.abs(v) <= maxAbs)) {
       this.warn('absurd-value', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)}${v} is out of range; ignored.`);
-      return NaN;
+      return false;
     }
-    return v;
+    return true;
   }
 
   private motion(mode: number): void {
@@ -1034,16 +1035,13 @@ export class GcodeParser implements LineSink {
     let tx = this.px;
     let ty = this.py;
     let tz = this.pz;
-    let v = this.coord(L_X);
-    if (v === v) tx = rel ? this.px + v * u : v * u + this.ox;
-    v = this.coord(L_Y);
-    if (v === v) ty = rel ? this.py + v * u : v * u + this.oy;
-    v = this.coord(L_Z);
-    if (v === v) tz = rel ? this.pz + v * u : v * u + this.oz;
+    const vals = this.vals;
+    if (this.coordOk(L_X)) tx = rel ? this.px + vals[L_X] * u : vals[L_X] * u + this.ox;
+    if (this.coordOk(L_Y)) ty = rel ? this.py + vals[L_Y] * u : vals[L_Y] * u + this.oy;
+    if (this.coordOk(L_Z)) tz = rel ? this.pz + vals[L_Z] * u : vals[L_Z] * u + this.oz;
     let de = 0;
-    v = this.coord(L_E, MAX_E_MM);
-    if (v === v) {
-      const ve = v * u;
+    if (this.coordOk(L_E, MAX_E_MM)) {
+      const ve = vals[L_E] * u;
       if (rel || this.eModeRelative) {
         de = ve;
         this.eLogical += ve;

@@ -203,12 +203,22 @@ export class MotionPlanner {
       this.ae !== Infinity;
   }
 
-  /** Adds one move. flowMm3s and layerIndex are passed through to the sink with its final duration. */
-  push(s: Segment, flowMm3s: number, layerIndex: number): void {
+  /**
+   * Flow of the next move (mm³/s), passed through to the sink with its final duration. A field
+   * rather than an argument: V8 boxes a double passed to a call it does not inline, once per move.
+   */
+  nextFlowMm3s = 0;
+
+  /** Adds one move (set nextFlowMm3s first); layerIndex is passed through to the sink. */
+  push(s: Segment, layerIndex: number): void {
     if (this.machine && this.machine.version !== this.version) this.refresh();
     const L = s.lengthMm;
     let feed = s.feedMms;
     if (!(feed > 0)) return;
+    if (this.count === RING) this.dequeue();
+    const idx = (this.head + this.count) & MASK;
+    this.flow[idx] = this.nextFlowMm3s;
+    this.layer[idx] = layerIndex;
     if (L > 0) {
       const inv = 1 / L;
       const ux = (s.x1 - s.x0) * inv;
@@ -233,11 +243,11 @@ export class MotionPlanner {
         if (auz * a > this.az) a = this.az / auz;
         if (aue * a > this.ae) a = this.ae / aue;
       }
-      const vn2 = feed * feed;
-      let vj2: number;
-      if (this.prevKind === 1) vj2 = this.junctionV2(ux, uy, uz, ue, feed, a);
-      else vj2 = this.safeV2(aux, auy, auz, aue, feed);
-      this.enqueue(L, a, vn2, vj2, flowMm3s, layerIndex);
+      this.lenMm[idx] = L;
+      this.accel[idx] = a;
+      this.nomV2[idx] = feed * feed;
+      this.maxEntryV2[idx] = this.prevKind === 1 ? this.junctionV2(ux, uy, uz, ue, feed, a) : this.safeV2(aux, auy, auz, aue, feed);
+      this.enqueue(idx);
       this.pux = ux;
       this.puy = uy;
       this.puz = uz;
@@ -254,7 +264,11 @@ export class MotionPlanner {
       // From a standstill an E-only move may start at the E jerk in classic-jerk mode; JD starts at 0.
       const j = this.jerkX === null ? 0 : this.jerkE;
       const vj = j < feed ? j : feed;
-      this.enqueue(eLen, a, feed * feed, this.prevKind === 1 ? 0 : vj * vj, flowMm3s, layerIndex);
+      this.lenMm[idx] = eLen;
+      this.accel[idx] = a;
+      this.nomV2[idx] = feed * feed;
+      this.maxEntryV2[idx] = this.prevKind === 1 ? 0 : vj * vj;
+      this.enqueue(idx);
       this.prevKind = 2;
       this.pv = feed;
     }
@@ -304,17 +318,12 @@ export class MotionPlanner {
     return vj2 < c2 ? vj2 : c2;
   }
 
-  private enqueue(L: number, a: number, vn2: number, vj2: number, flow: number, layer: number): void {
-    if (this.count === RING) this.dequeue();
-    const idx = (this.head + this.count) & MASK;
-    if (vj2 > vn2) vj2 = vn2;
-    this.lenMm[idx] = L;
-    this.accel[idx] = a;
-    this.nomV2[idx] = vn2;
-    this.maxEntryV2[idx] = vj2;
-    this.flow[idx] = flow;
-    this.layer[idx] = layer;
-    const stop = 2 * a * L; // entry speed² from which it can stop within this move
+  /** Completes the move written at ring slot idx (the tail) and runs the backward pass. */
+  private enqueue(idx: number): void {
+    let vj2 = this.maxEntryV2[idx];
+    const vn2 = this.nomV2[idx];
+    if (vj2 > vn2) this.maxEntryV2[idx] = vj2 = vn2;
+    const stop = 2 * this.accel[idx] * this.lenMm[idx]; // entry speed² from which it can stop within this move
     this.backV2[idx] = vj2 < stop ? vj2 : stop;
     if (this.count === 0) this.entryV2[idx] = vj2;
     this.count++;
