@@ -42,6 +42,8 @@ export interface MeasuredSettings {
   nozzle_mm: MeasuredFigure;
   /** Layers with extrusion (minor ones such as a prime line included). */
   layers: number;
+  /** 1, or n when the slicer prints the sparse infill of n layers as one thick layer. */
+  infill_every_layers: number;
   /** Layers rasterised in full (all of them unless the file exceeded the work budget). */
   analysedLayers: number;
   /**
@@ -107,6 +109,10 @@ export interface LayerRecord {
   sparseAreaMm2: number;
   /** First layer of its sequence (on the bed: brim, skirt and bottom skin; never used for walls or infill). */
   firstOfSequence: boolean;
+  /** Median cross-section of the infill-region lines ÷ that of the walls (null: no infill lines). */
+  infillToWallSection: number | null;
+  /** n when this layer's infill stands for n layers (combined infill), else 1. */
+  combinedLayers: number;
   /** Closed loops inside the part that are not walls (concentric infill, infill outlines). */
   innerLoops: number;
   /** Σ volume and area over every cell of the infill region (deeper than the walls + 1.5 w). */
@@ -560,6 +566,38 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const deepUnits = ((wallEdgeMm + 1.5 * medianWidth) / c) * 3;
     if (blockBuf.length < nbx * nby * 3) blockBuf = new Float64Array(nbx * nby * 3);
     grid.blockStats(k, deepUnits, blockBuf);
+    // Cross-section of the infill lines against the walls' (both as A ÷ h): about n when the slicer
+    // combines the infill of n layers into one thick layer (the layers between get none).
+    if (spacingLen > 0) {
+      const hist = widthScratch;
+      hist.fill(0);
+      let any = false;
+      for (let i = 0; i < nSeg; i++) {
+        if (isLoop[chainOf[i]]) continue;
+        const o = i * 5;
+        const mx = (seg[o] + seg[o + 2]) / 2;
+        const my = (seg[o + 1] + seg[o + 3]) / 2;
+        if ((grid.depthAtMm(mx, my) / c) * 3 <= deepUnits) continue;
+        hist[Math.min(hist.length - 1, Math.round(seg[o + 4] / h / 0.005))] += Math.hypot(seg[o + 2] - seg[o], seg[o + 3] - seg[o + 1]);
+        any = true;
+      }
+      if (any) rec.infillToWallSection = histMedian(hist, 0.005) / (spacingSum / spacingLen);
+    }
+    // Combined infill: the n − 1 layers below have no sparse region (the slicer left them empty)
+    // and this layer's infill lines carry at least ~n × the walls' cross-section. Both must hold:
+    // merely wide infill lines have sparse layers below them.
+    const ratio = rec.infillToWallSection;
+    if (ratio !== null && ratio >= 1.4) {
+      let emptyBelow = 0;
+      for (let j = layers.length - 2; j >= 0 && emptyBelow < 9; j--) {
+        const b = layers[j];
+        if (b.sequence !== rec.sequence || b.sparseBlocks > 0 || b.solidBlocks > 0 || b.firstOfSequence) break;
+        emptyBelow++;
+      }
+      const n = emptyBelow + 1;
+      if (n >= 2 && ratio >= 0.7 * n) rec.combinedLayers = n;
+    }
+    const hEff = h * rec.combinedLayers;
     columns.beginLayer();
     const bx0 = Math.round(ox / B);
     const by0 = Math.round(oy / B);
@@ -576,7 +614,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
         let state: number;
         if (fCells < 0.1 * blockCells) state = S_EMPTY;
         else if (dCells >= blockCells) {
-          const frac = dVol / (dCells * cellArea * h);
+          const frac = dVol / (dCells * cellArea * hEff);
           if (frac >= SOLID_FRACTION) {
             state = S_SOLID;
             rec.solidBlocks++;
@@ -617,7 +655,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
 }
 
 function emptyRecord(z: number, h: number, volumeMm3: number, segments: number, sequence: number, firstOfSequence: boolean): LayerRecord {
-  return { z, h, volumeMm3, segments, firstOfSequence, walls: null, innerLoops: 0, sparseVolMm3: 0, sparseAreaMm2: 0, deepVolMm3: 0, deepAreaMm2: 0, sparseBlocks: 0, solidBlocks: 0, loopWidthMm: null, sequence };
+  return { z, h, volumeMm3, segments, firstOfSequence, walls: null, infillToWallSection: null, combinedLayers: 1, innerLoops: 0, sparseVolMm3: 0, sparseAreaMm2: 0, deepVolMm3: 0, deepAreaMm2: 0, sparseBlocks: 0, solidBlocks: 0, loopWidthMm: null, sequence };
 }
 
 function median(v: number[]): number {
@@ -672,6 +710,7 @@ function summarise(
     line_width_mm: unknown('No wall loops.'),
     nozzle_mm: unknown('No wall loops.'),
     layers: layerCount,
+    infill_every_layers: 1,
     analysedLayers: 0,
     labelledWallAgreement: null,
     warnings,
@@ -742,14 +781,19 @@ function summarise(
     for (const l of tier.layers) {
       const v = tier.sparseOnly ? l.sparseVolMm3 : l.deepVolMm3;
       const ar = tier.sparseOnly ? l.sparseAreaMm2 : l.deepAreaMm2;
+      const hEff = l.h * l.combinedLayers;
       vol += v;
-      areaH += ar * l.h;
-      fr.push((v / (ar * l.h)) * 100);
+      areaH += ar * hEff;
+      fr.push((v / (ar * hEff)) * 100);
     }
+    const n = Math.max(...tier.layers.map((l) => l.combinedLayers));
     out.infill_percent = {
       value: Math.round((vol / areaH) * 1000) / 10,
-      detail: `Volume fraction of the infill region over ${tier.layers.length} layers ${tier.note} (per layer ${Math.min(...fr).toFixed(1)}–${Math.max(...fr).toFixed(1)} %, median ${median(fr).toFixed(1)} %).`,
+      detail:
+        `Volume fraction of the infill region over ${tier.layers.length} layers ${tier.note} (per layer ${Math.min(...fr).toFixed(1)}–${Math.max(...fr).toFixed(1)} %, median ${median(fr).toFixed(1)} %).` +
+        (n > 1 ? ` Infill is combined: one thick infill layer every ${n} layers, counted over its full height.` : ''),
     };
+    out.infill_every_layers = n;
   }
 
   const lw = histMedian(loopWidthHist, 0.005);

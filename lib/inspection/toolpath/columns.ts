@@ -7,6 +7,9 @@
  *  - A run of SOLID that starts over EMPTY (bed, air) and ends at SPARSE is a bottom-layer count.
  *  - A run of SOLID that starts over SPARSE and ends at EMPTY (nothing above) is a top-layer count.
  *  - Runs touching EDGE, or solid all the way through (a thin plate), prove nothing and are dropped.
+ * Combined infill ("infill every n layers") leaves the interior empty on n − 1 layers of n. Real
+ * geometry never puts air directly on sparse infill (a top surface gets solid layers first), so a
+ * short EMPTY gap (≤ MAX_INFILL_GAP layers) between SPARSE and SOLID is read as that sparse infill.
  */
 
 export const B_EMPTY = 0;
@@ -18,11 +21,17 @@ const FROM_AIR = 1;
 const FROM_SPARSE = 2;
 const FROM_OTHER = 3;
 
+/** Longest run of empty layers read as combined infill (a slicer combines at most ~10 layers). */
+const MAX_INFILL_GAP = 9;
+
 interface Column {
+  /** State on layer lastLayer (the last layer the block was not EMPTY). */
   state: number;
   lastLayer: number;
   run: number;
   from: number;
+  /** A bottom run (from the bed or air) that ended at an empty gap, waiting to see sparse infill. */
+  pendingBottom: number;
 }
 
 /** Cap on tracked columns (a 400 × 400 mm bed at 2 mm blocks is 40 000). */
@@ -52,31 +61,30 @@ export class ColumnTracker {
         this.overflowed = true;
         return;
       }
-      c = { state: B_EMPTY, lastLayer: this.layer - 1, run: 0, from: FROM_OTHER };
+      c = { state: B_EMPTY, lastLayer: this.layer - 1, run: 0, from: FROM_OTHER, pendingBottom: 0 };
       this.cols.set(key, c);
     }
-    const prev = c.lastLayer === this.layer - 1 ? c.state : B_EMPTY;
-    this.transition(c, prev, state);
+    const gap = this.layer - c.lastLayer - 1;
+    if (state === B_EMPTY) return;
+    if (gap === 0) this.step(c, c.state, state);
+    else this.afterGap(c, gap, state);
     c.state = state;
     c.lastLayer = this.layer;
   }
 
-  /** Close the layer: columns that had material last layer and none now went EMPTY. */
+  /** Close the layer: columns with material last layer and none now went EMPTY. */
   endLayer(): void {
     for (const [k, c] of this.cols) {
       if (c.lastLayer === this.layer) continue;
-      if (c.lastLayer === this.layer - 1) {
-        this.transition(c, c.state, B_EMPTY);
-        c.state = B_EMPTY;
-        c.lastLayer = this.layer;
-      } else this.cols.delete(k);
+      if (c.lastLayer === this.layer - 1) this.toEmpty(c);
+      else if (this.layer - c.lastLayer > MAX_INFILL_GAP + 1) this.cols.delete(k);
     }
   }
 
   /** End of a sequence of layers (end of file, or Z went back down): everything above is air. */
   finish(): void {
     for (const c of this.cols.values()) {
-      if (c.lastLayer === this.layer) this.transition(c, c.state, B_EMPTY);
+      if (c.lastLayer === this.layer) this.toEmpty(c);
     }
     this.cols.clear();
   }
@@ -87,20 +95,41 @@ export class ColumnTracker {
     this.cols.clear();
   }
 
-  private transition(c: Column, prev: number, next: number): void {
+  /** Consecutive layers prev → next (prev EMPTY only for a column seen for the first time). */
+  private step(c: Column, prev: number, next: number): void {
     if (next === B_SOLID) {
       if (prev === B_SOLID) c.run++;
       else {
         c.run = 1;
-        c.from = prev === B_EMPTY ? FROM_AIR : prev === B_SPARSE ? FROM_SPARSE : FROM_OTHER;
+        c.from = prev === B_SPARSE ? FROM_SPARSE : prev === B_EMPTY ? FROM_AIR : FROM_OTHER;
       }
       return;
     }
-    if (prev === B_SOLID) {
-      if (next === B_SPARSE && c.from === FROM_AIR) add(this.bottomRuns, c.run);
-      else if (next === B_EMPTY && c.from === FROM_SPARSE) add(this.topRuns, c.run);
-    }
+    if (prev === B_SOLID && next === B_SPARSE && c.from === FROM_AIR) add(this.bottomRuns, c.run);
     c.run = 0;
+  }
+
+  /** The layer after lastLayer is EMPTY: close a solid run. */
+  private toEmpty(c: Column): void {
+    if (c.state === B_SOLID) {
+      if (c.from === FROM_SPARSE) add(this.topRuns, c.run);
+      c.pendingBottom = c.from === FROM_AIR ? c.run : 0;
+    } else c.pendingBottom = 0;
+    c.run = 0;
+  }
+
+  /** Material again after `gap` EMPTY layers (the block's last state was c.state). */
+  private afterGap(c: Column, gap: number, next: number): void {
+    const short = gap <= MAX_INFILL_GAP;
+    if (next === B_SPARSE) {
+      // Bottom solid layers, a combined-infill gap, then the thick infill layer.
+      if (short && c.pendingBottom > 0) add(this.bottomRuns, c.pendingBottom);
+      c.run = 0;
+    } else if (next === B_SOLID) {
+      c.run = 1;
+      c.from = short && c.state === B_SPARSE ? FROM_SPARSE : FROM_AIR;
+    } else c.run = 0;
+    c.pendingBottom = 0;
   }
 }
 
