@@ -245,6 +245,25 @@ const KNOWN_NO_EFFECT_M = new Set([
   701, 702, 851, 862, 900, 907, 928, 1001, 1002,
 ]);
 
+/**
+ * Klipper extended commands that change neither geometry, filament nor the motion limits we model
+ * (Klipper G-code reference). User macros such as PRINT_START stay "unknown": they can do anything.
+ */
+const KNOWN_NO_EFFECT_TEXT = new Set([
+  'EXCLUDE_OBJECT_DEFINE',
+  'EXCLUDE_OBJECT_START',
+  'EXCLUDE_OBJECT_END',
+  'SET_PRESSURE_ADVANCE',
+  'SET_FAN_SPEED',
+  'SET_HEATER_TEMPERATURE',
+  'TEMPERATURE_WAIT',
+  'TURN_OFF_HEATERS',
+  'SET_PRINT_STATS_INFO',
+  'SET_IDLE_TIMEOUT',
+  'BED_MESH_PROFILE',
+  'BED_MESH_CALIBRATE',
+]);
+
 export class GcodeParser implements LineSink {
   readonly stats: ParserStats = {
     lines: 0,
@@ -633,7 +652,7 @@ export class GcodeParser implements LineSink {
       const spd = args.get('RETRACT_SPEED');
       if (len !== undefined && len >= 0 && len < 100) this.fwRetractMm = len;
       if (spd !== undefined && spd >= MIN_FEED_LIMIT_MMS && spd < 1000) this.fwRetractFeedMms = spd;
-    } else {
+    } else if (!KNOWN_NO_EFFECT_TEXT.has(name)) {
       this.countUnknown(name);
     }
     return k;

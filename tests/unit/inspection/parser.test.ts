@@ -289,7 +289,7 @@ describe('bad words', () => {
   });
 
   it('unknown commands are counted, not fatal', () => {
-    const p = parse('M999\nG123\nPRINT_START BED=60\nM999\nG1 X1 F600');
+    const p = parse('M999\nG123\nPRINT_START BED=60\nM999\nEXCLUDE_OBJECT_START NAME=part_1\nG1 X1 F600');
     expect(p.segments).toHaveLength(1);
     expect(p.parser.stats.unknownCommands.get('M999')).toBe(2);
     expect(p.parser.stats.unknownCommands.get('G123')).toBe(1);
