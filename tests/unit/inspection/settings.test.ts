@@ -7,6 +7,7 @@ import { createToolpathSettingsAnalyzer, type MeasuredSettings, type ToolpathSet
 import { createDeclaredSettingsReader, type DeclaredSettings } from '@/lib/inspection/declared';
 import { settingsMismatchFlags } from '@/lib/inspection/rules';
 import type { Segment, SegmentSink, SettingsEvidence } from '@/lib/inspection/types';
+import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from '@/lib/inspection/toolpath/columns';
 
 const FIXTURES = path.resolve(__dirname, '../../fixtures');
 
@@ -130,6 +131,8 @@ interface BoxSpec {
   infillPercent: number;
   widthMm: number;
   holeMm?: number;
+  /** Print the sparse infill of n layers as one layer n times as thick (on every n-th layer). */
+  infillEvery?: number;
 }
 const FILAMENT_AREA = Math.PI * 0.875 ** 2;
 
@@ -141,9 +144,10 @@ function boxSegments(spec: BoxSpec, emit: (s: Segment) => void): void {
   let x = 0;
   let y = 0;
   let z = 0;
+  let sectionScale = 1;
   const move = (nx: number, ny: number, nz: number, extrude: boolean) => {
     const len = Math.hypot(nx - x, ny - y, nz - z);
-    Object.assign(seg, { x0: x, y0: y, z0: z, x1: nx, y1: ny, z1: nz, lengthMm: len, eMm: extrude ? (areaMm2 * len) / FILAMENT_AREA : 0, extruding: extrude && len > 0 });
+    Object.assign(seg, { x0: x, y0: y, z0: z, x1: nx, y1: ny, z1: nz, lengthMm: len, eMm: extrude ? (sectionScale * areaMm2 * len) / FILAMENT_AREA : 0, extruding: extrude && len > 0 });
     seg.lineNo++;
     emit(seg);
     x = nx;
@@ -159,6 +163,7 @@ function boxSegments(spec: BoxSpec, emit: (s: Segment) => void): void {
   };
   for (let layer = 0; layer < spec.layers; layer++) {
     const zz = (layer + 1) * h;
+    sectionScale = 1;
     for (let k = 0; k < spec.walls; k++) {
       const inset = w / 2 + k * spacing;
       square(inset, inset, L - inset, L - inset, zz);
@@ -169,7 +174,12 @@ function boxSegments(spec: BoxSpec, emit: (s: Segment) => void): void {
       }
     }
     const solid = layer < spec.bottom || layer >= spec.layers - spec.top;
+    const every = spec.infillEvery ?? 1;
+    // Combined infill: nothing on n − 1 layers, then one layer carrying n layers' worth.
+    if (!solid && every > 1 && (layer - spec.bottom + 1) % every !== 0) continue;
+    const thick = solid ? 1 : every;
     const lineSpacing = solid ? spacing : spacing / (spec.infillPercent / 100);
+    sectionScale = thick;
     const edge = w / 2 + (spec.walls - 1) * spacing + w / 2 + spacing / 2;
     const holeLo = spec.holeMm ? (L - spec.holeMm) / 2 - edge : Infinity;
     const holeHi = spec.holeMm ? (L + spec.holeMm) / 2 + edge : -Infinity;
@@ -202,10 +212,13 @@ describe('settings measured on hand-built toolpaths', () => {
     { sizeMm: 30, layers: 30, layerMm: 0.3, walls: 3, top: 5, bottom: 3, infillPercent: 25, widthMm: 0.5 },
     { sizeMm: 24, layers: 50, layerMm: 0.12, walls: 4, top: 7, bottom: 6, infillPercent: 40, widthMm: 0.42 },
     { sizeMm: 40, layers: 30, layerMm: 0.2, walls: 2, top: 4, bottom: 4, infillPercent: 20, widthMm: 0.45, holeMm: 12 },
+    { sizeMm: 20, layers: 60, layerMm: 0.1, walls: 2, top: 6, bottom: 6, infillPercent: 20, widthMm: 0.45, infillEvery: 2 },
+    { sizeMm: 20, layers: 60, layerMm: 0.1, walls: 3, top: 7, bottom: 5, infillPercent: 15, widthMm: 0.45, infillEvery: 3 },
   ];
   for (const spec of cases) {
-    it(`${spec.sizeMm} mm box${spec.holeMm ? ' with a hole' : ''}: ${spec.walls} walls, ${spec.top}/${spec.bottom}, ${spec.infillPercent} %, ${spec.layerMm} mm`, () => {
+    it(`${spec.sizeMm} mm box${spec.holeMm ? ' with a hole' : ''}: ${spec.walls} walls, ${spec.top}/${spec.bottom}, ${spec.infillPercent} %${spec.infillEvery ? ` every ${spec.infillEvery} layers` : ''}, ${spec.layerMm} mm`, () => {
       const m = measureBox(spec);
+      expect(m.infill_every_layers).toBe(spec.infillEvery ?? 1);
       expect(m.walls.value, m.walls.detail).toBe(spec.walls);
       expect(m.top_layers.value, m.top_layers.detail).toBe(spec.top);
       expect(m.bottom_layers.value, m.bottom_layers.detail).toBe(spec.bottom);
@@ -214,6 +227,35 @@ describe('settings measured on hand-built toolpaths', () => {
       expect(m.line_width_mm.value).toBeCloseTo(spec.widthMm, 2);
     });
   }
+});
+
+describe('ColumnTracker: solid runs over bottom surfaces and under top surfaces', () => {
+  /** Feed one block's states layer by layer ('.' empty, 's' solid, 'p' sparse, 'e' edge). */
+  function runs(column: string): { bottom: [number, number][]; top: [number, number][] } {
+    const t = new ColumnTracker();
+    const code: Record<string, number> = { '.': B_EMPTY, s: B_SOLID, p: B_SPARSE, e: B_EDGE };
+    for (const ch of column) {
+      t.beginLayer();
+      t.set(ColumnTracker.key(0, 0), code[ch]);
+      t.endLayer();
+    }
+    t.finish();
+    return { bottom: [...t.bottomRuns], top: [...t.topRuns] };
+  }
+  it('counts bed-side and top-side stacks, and only those bounded by sparse infill', () => {
+    expect(runs('sssspppppssss')).toEqual({ bottom: [[4, 1]], top: [[4, 1]] });
+    // A thin plate, solid throughout: neither count is proven.
+    expect(runs('ssssssss')).toEqual({ bottom: [], top: [] });
+    // Over an overhang (air first, then material), and under a step that leaves the block empty above.
+    expect(runs('...sssppppsssss...')).toEqual({ bottom: [[3, 1]], top: [[5, 1]] });
+    // A run that touches an edge state proves nothing.
+    expect(runs('sssepppsses')).toEqual({ bottom: [], top: [] });
+  });
+  it('reads short empty gaps between sparse and solid as combined infill', () => {
+    expect(runs('ssss.p.p.p.pssss')).toEqual({ bottom: [[4, 1]], top: [[4, 1]] });
+    // A long air gap is air: the solid run above it starts a new bottom surface.
+    expect(runs('ssssp' + '.'.repeat(12) + 'ssspp')).toEqual({ bottom: [[4, 1], [3, 1]], top: [] });
+  });
 });
 
 describe('settings analysis on bad or odd input', () => {
