@@ -27,12 +27,15 @@ const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'p
 interface ChildResult {
   bytes: number;
   seconds: number;
+  /** CPU time of the child (user + system): less disturbed than wall time on a shared machine. */
+  cpuSeconds: number;
   maxRssMb: number;
   detail: string;
 }
 
 async function child(mode: string, file: string): Promise<void> {
   const t0 = process.hrtime.bigint();
+  const c0 = process.cpuUsage();
   let detail = '';
   if (mode === 'peer') {
     // eslint-disable-next-line @typescript-eslint/no-require-imports
@@ -54,7 +57,14 @@ async function child(mode: string, file: string): Promise<void> {
     detail = `${r.layers.count} layers, ${(r.filament.lengthMm / 1000).toFixed(1)} m filament, est. ${(r.time.estimatedS / 3600).toFixed(1)} h, walls measured ${r.settings.walls.measured}`;
   }
   const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
-  const out: ChildResult = { bytes: statSync(file).size, seconds, maxRssMb: process.resourceUsage().maxRSS / 1024, detail };
+  const cpu = process.cpuUsage(c0);
+  const out: ChildResult = {
+    bytes: statSync(file).size,
+    seconds,
+    cpuSeconds: (cpu.user + cpu.system) / 1e6,
+    maxRssMb: process.resourceUsage().maxRSS / 1024,
+    detail,
+  };
   process.stdout.write(`${JSON.stringify(out)}\n`);
 }
 
@@ -96,7 +106,8 @@ async function main(): Promise<void> {
   if (sizes.some((s) => !(s > 0))) throw new Error('--sizes takes sizes in MB, e.g. --sizes 100,500');
   const keep = args.includes('--keep');
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
-  console.log(`Node ${process.version}, temp dir ${dir}`);
+  const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
+  console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
   try {
     const rows: { what: string; size: number; r: ChildResult }[] = [];
     for (const [i, size] of sizes.entries()) {
@@ -105,26 +116,34 @@ async function main(): Promise<void> {
       for (const mode of ['inspect', 'engine']) {
         const r = runChild(mode, file);
         rows.push({ what: mode === 'inspect' ? 'full inspection' : 'engine without toolpath settings', size, r });
-        console.log(`  ${rows[rows.length - 1].what}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s, peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+        console.log(`  ${rows[rows.length - 1].what}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
       }
       if (i === 0) {
         const r = runChild('peer', file);
         rows.push({ what: 'gcode-parser (GCodeLineStream, no-op per line)', size, r });
-        console.log(`  gcode-parser: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s, peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+        console.log(`  gcode-parser: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
       }
       if (!keep) rmSync(file);
     }
     console.log('\nSummary');
-    console.log('what'.padEnd(50), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
+    console.log('what'.padEnd(50), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'MB/CPU-s'.padStart(9), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
     for (const { what, size, r } of rows) {
-      console.log(what.padEnd(50), String(size).padStart(8), (mb(r.bytes) / r.seconds).toFixed(1).padStart(8), r.seconds.toFixed(2).padStart(9), r.maxRssMb.toFixed(0).padStart(12));
+      console.log(
+        what.padEnd(50),
+        String(size).padStart(8),
+        (mb(r.bytes) / r.seconds).toFixed(1).padStart(8),
+        (mb(r.bytes) / r.cpuSeconds).toFixed(1).padStart(9),
+        r.seconds.toFixed(2).padStart(9),
+        r.maxRssMb.toFixed(0).padStart(12),
+      );
     }
     const first = sizes[0];
     const peer = rows.find((x) => x.what.startsWith('gcode-parser'))!.r;
     const speed = (r: ChildResult) => mb(r.bytes) / r.seconds;
     for (const what of ['full inspection', 'engine without toolpath settings']) {
       const ours = rows.find((x) => x.what === what && x.size === first)!.r;
-      console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput`);
+      const cpuRatio = peer.cpuSeconds / ours.cpuSeconds;
+      console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput (${cpuRatio.toFixed(1)}× by CPU time)`);
     }
     if (sizes.length > 1) {
       for (const what of ['full inspection', 'engine without toolpath settings']) {
