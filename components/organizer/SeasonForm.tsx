@@ -1,11 +1,20 @@
 'use client';
 /** Season editor: the same zod schema checks the fields here and again on the server. */
-import { useMemo, useState } from 'react';
+import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { SeasonInputSchema, TIMING_CONVENTIONS, type SeasonInput } from '@/lib/seasons/schemas';
 import { Markdown } from '@/components/organizer/Markdown';
 import { sendChecked } from '@/components/organizer/api';
 import { Check, Outcome, Select, TextArea, TextInput } from '@/components/organizer/controls';
+
+/** The IANA zone names this browser knows, for the time-zone suggestions. */
+function timeZoneNames(): string[] {
+  try {
+    return (Intl as unknown as { supportedValuesOf?: (k: string) => string[] }).supportedValuesOf?.('timeZone') ?? [];
+  } catch {
+    return [];
+  }
+}
 
 const slugify = (s: string) => s.toLowerCase().normalize('NFKD').replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 64);
 
@@ -22,13 +31,7 @@ export function SeasonForm({ seasonId, initial, locked }: { seasonId?: number; i
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [outcome, setOutcome] = useState<{ error?: string; message?: string }>({});
   const [busy, setBusy] = useState(false);
-  const zones = useMemo(() => {
-    try {
-      return (Intl as unknown as { supportedValuesOf?: (k: string) => string[] }).supportedValuesOf?.('timeZone') ?? [];
-    } catch {
-      return [];
-    }
-  }, []);
+  const [zones] = useState(timeZoneNames);
   const set = (k: keyof typeof v) => (val: string | boolean) =>
     setV((cur) => {
       const next = { ...cur, [k]: val };

@@ -90,6 +90,16 @@ test('an organizer sets up and runs a whole season', async ({ page, browser }) =
   await page.getByRole('button', { name: 'Open for entries' }).click();
   await expect(page.getByTestId('lifecycle-status')).toContainText(`${name} is now open.`);
 
+  // A member subscribes on the public season page and gets the next announcement.
+  const fan = await browser.newContext();
+  const fanPage = await fan.newPage();
+  await signIn(fanPage, demoEmail('pim'));
+  await fanPage.goto(`/seasons/${slug}`);
+  await expect(fanPage.getByTestId('markdown').locator('li')).toHaveCount(2);
+  await fanPage.getByRole('button', { name: 'Get announcements by e-mail' }).click();
+  await expect(fanPage.getByRole('button', { name: 'Stop announcements' })).toBeVisible();
+  await fan.close();
+
   // Invite a judge who has no account yet: the link asks them to sign up with that address.
   const judgeEmail = `thaw.judge.${stamp}@example.org`;
   await page.getByLabel('Judge’s e-mail').fill(judgeEmail);
@@ -125,7 +135,8 @@ test('an organizer sets up and runs a whole season', async ({ page, browser }) =
 
   // Judging, then final.
   await page.getByRole('button', { name: 'Close entries and start judging' }).click();
-  await expect(page.getByTestId('lifecycle-status')).toContainText(`${name} is now judging.`);
+  await expect(page.getByTestId('lifecycle-status')).toContainText(`${name} is now judging. 1 subscriber notified.`);
+  expect(await readLatestMail(browser, demoEmail('pim'), `${name} is now judging`)).toContain('the judges are reviewing');
   await page.getByRole('button', { name: 'Publish final standings' }).click();
   await expect(page.getByTestId('lifecycle-status')).toContainText(`${name} is now final.`);
   await expect(page.getByRole('button', { name: 'Save rulebook' })).toHaveCount(0);
@@ -147,8 +158,4 @@ test('an organizer sets up and runs a whole season', async ({ page, browser }) =
   await expect(page.getByRole('heading', { name: 'Safety first' })).toBeVisible();
   await expect(page.getByText('Never disable thermal-runaway protection')).toBeVisible();
   await shot(page, 'rulebook');
-
-  // The season page renders the description as Markdown.
-  await page.goto(`/seasons/${slug}`);
-  await expect(page.getByTestId('markdown').locator('li')).toHaveCount(2);
 });

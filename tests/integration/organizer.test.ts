@@ -27,7 +27,7 @@ const rule = (metric: string, value: unknown, extra: Record<string, unknown> = {
 function stlForm(name: string, data: string | Buffer) {
   const form = new FormData();
   form.set('name', 'Cube');
-  form.set('file', new Blob([data]), name);
+  form.set('file', new Blob([typeof data === 'string' ? data : new Uint8Array(data)]), name);
   return form;
 }
 const upload = (c: Client, seasonId: number, name: string, data: string | Buffer) =>
@@ -367,6 +367,19 @@ describe('lifecycle, rulebook freeze and judges', () => {
     const mine = dash.seasons.find((s: { id: number }) => s.id === seasonId);
     expect(mine.entries.submitted).toBe(1);
     expect(mine.oldestWaiting.entrant).toBe('Juno Calloway');
+
+    // Judges' load on the demo season, against the same figures counted straight from the tables.
+    const frost = dash.seasons.find((s: { slug: string }) => s.slug === 'frostbite-sprint');
+    const expected = await sql<{ name: string; waiting: number; reviews: number }>(dbFile, `
+      SELECT u.name,
+        (SELECT COUNT(*) FROM entries e WHERE e.season_id = sj.season_id AND e.state = 'submitted' AND e.entrant_id <> sj.user_id) AS waiting,
+        (SELECT COUNT(*) FROM reviews r JOIN entries e ON e.id = r.entry_id WHERE e.season_id = sj.season_id AND r.judge_id = sj.user_id) AS reviews
+      FROM season_judges sj JOIN users u ON u.id = sj.user_id JOIN seasons s ON s.id = sj.season_id WHERE s.slug = 'frostbite-sprint' ORDER BY sj.created_at, u.id`);
+    expect(frost.judges.map((j: { name: string; waiting: number; reviews: number }) => ({ name: j.name, waiting: j.waiting, reviews: j.reviews }))).toEqual(expected);
+    // Tobin Reyes has an entry of his own waiting: he is not counted as its reviewer.
+    const ilse = frost.judges.find((j: { name: string }) => j.name === 'Ilse Varga');
+    const tobin = frost.judges.find((j: { name: string }) => j.name === 'Tobin Reyes');
+    expect(ilse.waiting - tobin.waiting).toBe(Number((await sql<{ n: number }>(dbFile, "SELECT COUNT(*) n FROM entries e JOIN users u ON u.id = e.entrant_id JOIN seasons s ON s.id = e.season_id WHERE s.slug = 'frostbite-sprint' AND e.state = 'submitted' AND u.name = 'Tobin Reyes'"))[0].n));
 
     await sql(dbFile, "UPDATE entries SET state = 'verified' WHERE season_id = ?", [seasonId]);
     const fin = await clients.organizer.post(`/api/organizer/seasons/${seasonId}/transition`, { to: 'final' });
