@@ -224,7 +224,7 @@ function featureFromVerboseComment(text: string): FeatureKind | null {
   if (l === 'infill' || l === 'fill') return 'sparse-infill';
   if (l === 'solid infill') return 'solid-infill';
   if (l === 'top solid infill') return 'top-solid';
-  if (l === 'bridge infill' || l === 'bridge') return 'bridge';
+  if (l === 'bridge infill' || l === 'bridge' || l === 'infill (bridge)') return 'bridge';
   if (l === 'skirt' || l === 'brim') return 'skirt';
   if (l.startsWith('support material')) return 'support';
   if (l === 'gap fill') return 'gap-fill';

@@ -241,8 +241,9 @@ describe('feature labels', () => {
   it('labels following moves, and reads Slic3r verbose per-move comments', () => {
     const p = parse('M83\n;TYPE:External perimeter\nG1 X1 E0.1 F600\n;TYPE:Internal infill\nG1 X2 E0.1');
     expect(p.segments.map((s) => s.feature)).toEqual(['outer-wall', 'sparse-infill']);
-    const v = parse('M83\nG1 X1 E0.1 F600 ; perimeter\nG1 X2 E0.1 ; skirt');
-    expect(v.segments.map((s) => s.feature)).toEqual(['inner-wall', 'skirt']);
+    // As written by Slic3r 1.3.0 with --gcode-comments (fixture slic3r-cylinder-025).
+    const v = parse('M83\nG1 X1 E0.1 F600 ; perimeter\nG1 X2 E0.1 ; skirt\nG1 X3 E0.1 ; infill (bridge)\nG1 X4 E0.1 ; infill');
+    expect(v.segments.map((s) => s.feature)).toEqual(['inner-wall', 'skirt', 'bridge', 'sparse-infill']);
   });
 });
 
