@@ -12,6 +12,7 @@ import { exists, localPath, openRead, putBuffer } from '@/lib/storage';
 import { buildPreviewFromFile, PREVIEW_VERSION, type ToolpathPreview } from '@/lib/inspection/preview';
 import { InspectionError } from '@/lib/inspection';
 import { reviewableEntry } from './access';
+import { currentGcode } from '@/lib/entries/inspection';
 
 const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode'];
 
@@ -59,7 +60,7 @@ const previewKey = (sha256: string) => `previews/${sha256.slice(0, 64)}-v${PREVI
 /** The toolpath preview JSON of the entry's latest G-code (computed once, then served from storage). */
 export async function entryPreviewJson(judgeId: number, entryId: number): Promise<string> {
   const entry = await reviewableEntry(judgeId, entryId);
-  const gcode = (await StoredFile.findAll({ where: { entryId: entry.id, kind: 'gcode' }, order: [['id', 'DESC']] })).find((f) => !f.meta?.replacedAt);
+  const gcode = await currentGcode(entry.id);
   if (!gcode) throw notFound('This entry has no G-code to preview.');
   const key = previewKey(/^[0-9a-f]{64}$/.test(gcode.sha256) ? gcode.sha256 : `file-${gcode.id}`);
   if (await exists(key)) return fs.promises.readFile(localPath(key), 'utf8');

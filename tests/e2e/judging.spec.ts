@@ -79,3 +79,14 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await expect(page.locator(`[data-testid="standings-row"][data-entry="${verified}"]`)).toBeVisible();
   await expect(page.locator(`[data-testid="standings-row"][data-entry="${rejected}"]`)).toHaveCount(0);
 });
+
+test('an entry that has not been inspected yet opens on the review desk without a preview', async ({ page }) => {
+  await signIn(page, demoEmail('judge'));
+  await page.goto('/judging');
+  // The demo's own submitted entry by Sasha has no G-code on file.
+  const row = page.getByTestId('queue-row').filter({ hasText: 'not inspected' }).first();
+  await row.getByRole('link', { name: /Review #/ }).click();
+  await expect(page.getByText('This entry has not been inspected yet.')).toBeVisible();
+  await expect(page.getByTestId('layer-preview')).toHaveCount(0);
+  await expect(page.getByRole('button', { name: 'Record decision' })).toBeVisible();
+});

@@ -252,6 +252,17 @@ describe('review screen and evidence', () => {
     expect((await clients.judge.get(`/api/judging/entries/${judge2Own}/files/${r.photos[0].id}`)).status).toBe(404);
   });
 
+  it('an entry without G-code yet still opens, with no inspection and a clear 404 for the preview', async () => {
+    const entryId = await createSubmittedEntry(dbFile);
+    const r = await (await clients.judge.get(`/api/judging/entries/${entryId}`)).json();
+    expect(r.inspection).toBeNull();
+    expect(r.gcode).toBeNull();
+    expect(r.photos).toEqual([]);
+    const p = await clients.judge.get(`/api/judging/entries/${entryId}/preview`);
+    expect(p.status).toBe(404);
+    expect((await p.json()).error).toMatch(/no G-code/);
+  });
+
   it('serves the toolpath preview of the entry’s G-code under 1 MB', async () => {
     const { entryId } = await createReviewableEntry(dbFile, { fixture: 'cura-beacon-020.gcode.gz' });
     const res = await clients.judge.get(`/api/judging/entries/${entryId}/preview`);
