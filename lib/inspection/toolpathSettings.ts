@@ -153,6 +153,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
 
   let prevLayerZ = Number.NaN;
   let prevMajorZ = Number.NaN;
+  let firstLayerThicknessMm = 0;
+  let lastThicknessMm = 0.2;
   const zSteps = new Map<number, number>();
   const sequenceFirsts: { z: number; volumeMm3: number; moves: number }[] = [];
   let sequence = 0;
@@ -266,12 +268,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     if (nSeg === 0) {
       // Not stored: record the layer for heights and counts only.
       const z = layerZ;
-      if (!Number.isNaN(prevLayerZ) && z < prevLayerZ - Z_EPS_MM) {
-        columns.finish();
-        sequence++;
-        prevLayerZ = Number.NaN;
-      }
-      const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
+      layerThickness(z, nSkippedSeg);
       layerCount++;
       skippedLayers++;
       columns.abandon();
@@ -283,13 +280,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
       return;
     }
     const z = layerZ;
-    if (!Number.isNaN(prevLayerZ) && z < prevLayerZ - Z_EPS_MM) {
-      // Z went back down: a new print sequence (prime line before the first layer, sequential objects).
-      columns.finish();
-      sequence++;
-      prevLayerZ = Number.NaN;
-    }
-    const h = Number.isNaN(prevLayerZ) ? z : z - prevLayerZ;
+    const h = layerThickness(z, nSeg);
     noteHeights(z, nSeg, layerVolumeMm3, Number.isNaN(prevLayerZ));
     try {
       analyseLayer(z, h, Number.isNaN(prevLayerZ));
@@ -308,6 +299,32 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     decideStoring();
     if (layerTruncated && warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} has more than ${MAX_LAYER_SEGMENTS} moves; only the first were analysed.`);
     layerTruncated = false;
+  }
+
+  /**
+   * Thickness of the layer at z, starting a new sequence when Z goes back down (a prime line before
+   * the first layer, objects printed one after another) or jumps up by more than 2 mm and 5 layers
+   * (a part stacked on another after a lift): both mean air or the bed below. A sequence's first
+   * layer is z thick when it is near the bed, else as thick as the file's first layer.
+   */
+  function layerThickness(z: number, moves: number): number {
+    if (!Number.isNaN(prevLayerZ)) {
+      const step = z - prevLayerZ;
+      if (step < -Z_EPS_MM || (step > 2 && step > 5 * lastThicknessMm)) {
+        columns.finish();
+        sequence++;
+        prevLayerZ = Number.NaN;
+      }
+    }
+    let h: number;
+    if (!Number.isNaN(prevLayerZ)) h = z - prevLayerZ;
+    else if (z <= 2) h = z;
+    else h = firstLayerThicknessMm > 0 ? firstLayerThicknessMm : lastThicknessMm;
+    if (moves >= 20 && h > 0) {
+      if (firstLayerThicknessMm === 0 && Number.isNaN(prevLayerZ) && z <= 2) firstLayerThicknessMm = h;
+      lastThicknessMm = h;
+    }
+    return h;
   }
 
   /**

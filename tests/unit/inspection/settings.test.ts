@@ -1,4 +1,6 @@
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { gunzipSync } from 'node:zlib';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readFileLines } from '@/lib/inspection/reader';
@@ -39,7 +41,7 @@ async function inspectFixture(file: string, opts: Partial<ToolpathSettingsOption
     end: () => analyzer.end?.(),
   };
   const parser = new GcodeParser(sink);
-  await readFileLines(path.join(FIXTURES, file), parser);
+  await readFileLines(path.isAbsolute(file) ? file : path.join(FIXTURES, file), parser);
   parser.end();
   return { measured: analyzer.result(), declared: declared.result() };
 }
@@ -104,6 +106,24 @@ describe('settings measured from toolpaths equal the sliced settings on every fi
     }
     expect(m.walls.detail).toMatch(/mode over \d+ sparse layers without extra loops.*agree/);
     expect(m.analysedLayers).toBe(m.layers - 1); // all but the prime line's "layer" at Z 0.3
+  });
+
+  it('copies stacked after a lift and a G92 Z shift (one tall part) give the same figures', async () => {
+    const text = gunzipSync(readFileSync(path.join(FIXTURES, 'gcode/prusa-cube20-relative-e.gcode.gz'))).toString('latin1');
+    const copy = (home: boolean) => (home ? text : text.replace(/^G28/gm, ';G28')) + '\nG90\nG1 Z50 F600\nG92 Z-5\n';
+    const dir = mkdtempSync(path.join(tmpdir(), 'hotlap-settings-'));
+    const file = path.join(dir, 'stacked.gcode');
+    writeFileSync(file, copy(true) + copy(false) + copy(false), 'latin1');
+    try {
+      const { measured: m } = await inspectFixture(file);
+      expect([m.walls.value, m.top_layers.value, m.bottom_layers.value, m.layer_height_mm.value, m.first_layer_height_mm.value]).toEqual([2, 4, 4, 0.2, 0.2]);
+      expect(Math.abs(m.infill_percent.value! - 15)).toBeLessThanOrEqual(2);
+      // Each copy's bed-side stack is counted: three times the columns of one copy.
+      const single = (await inspectFixture('gcode/prusa-cube20-relative-e.gcode.gz')).measured;
+      expect(m.bottom_layers.detail).toContain(`in ${3 * Number(/in (\d+) /.exec(single.bottom_layers.detail)![1])} `);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('a tight work budget samples windows of layers and still finds the same settings', async () => {
