@@ -51,7 +51,8 @@ function buildGcode(file: string) {
   let bytes = 0;
   fs.writeSync(fd, Buffer.from(text, 'latin1'));
   bytes += text.length;
-  while (bytes < sizeMb * 1024 * 1024) {
+  // Stay at or under the limit: the upload refuses anything over 200 MB (lib/entries/files.ts).
+  while (bytes + later.length <= sizeMb * 1024 * 1024) {
     fs.writeSync(fd, later);
     bytes += later.length;
   }
@@ -62,7 +63,9 @@ function buildGcode(file: string) {
 async function main() {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-mem-'));
   const gcode = path.join(dir, 'big.gcode');
+  const tBuild = Date.now();
   const bytes = buildGcode(gcode);
+  console.log(`built ${(bytes / 1024 / 1024).toFixed(1)} MB in ${((Date.now() - tBuild) / 1000).toFixed(1)} s`);
   const env = testEnv(port, dir);
   prepareDatabase(env);
   const server = spawn(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {

@@ -24,10 +24,14 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
   const [busy, setBusy] = useState(false);
   const running = inspection?.status === 'queued' || inspection?.status === 'running';
 
-  useEffect(() => {
+  // A refreshed server render brings a new entry object: adopt its inspection (React's
+  // "adjust state when a prop changes" pattern, during render rather than in an effect).
+  const [seen, setSeen] = useState(entry);
+  if (seen !== entry) {
+    setSeen(entry);
     setInspection(entry.inspection);
     setBlockers(entry.blockers);
-  }, [entry]);
+  }
 
   useEffect(() => {
     if (!running) return;

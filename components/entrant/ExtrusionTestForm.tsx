@@ -4,7 +4,7 @@
  * rate step. Shows the computed efficiencies, limit and speed ceilings as you type (same library
  * as the server, which recomputes and stores them).
  */
-import { useMemo, useState } from 'react';
+import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { computeExtrusionLimit, DEFAULT_THRESHOLD_PERCENT } from '@/lib/extrusion';
@@ -26,10 +26,11 @@ export function ExtrusionTestForm({ machineId }: { machineId: number }) {
   const [message, setMessage] = useState<string | null>(null);
 
   const parsedSteps = steps.filter((s) => s.rate && s.mass).map((s) => ({ rateMm3s: num(s.rate), massG: num(s.mass) })).filter((s) => s.rateMm3s > 0 && s.massG >= 0);
-  const preview = useMemo(() => {
-    if (!(num(diameter) > 0 && num(length) > 0) || parsedSteps.length === 0) return null;
-    return computeExtrusionLimit({ materialFamily: family, filamentDiameterMm: num(diameter), sampleLengthMm: num(length), referenceMassG: num(reference) > 0 ? num(reference) : null, thresholdPercent: num(threshold) || DEFAULT_THRESHOLD_PERCENT, steps: parsedSteps });
-  }, [family, diameter, length, reference, threshold, JSON.stringify(parsedSteps)]); // eslint-disable-line react-hooks/exhaustive-deps
+  // Cheap arithmetic: recomputed on every render, no memo needed.
+  const preview =
+    num(diameter) > 0 && num(length) > 0 && parsedSteps.length > 0
+      ? computeExtrusionLimit({ materialFamily: family, filamentDiameterMm: num(diameter), sampleLengthMm: num(length), referenceMassG: num(reference) > 0 ? num(reference) : null, thresholdPercent: num(threshold) || DEFAULT_THRESHOLD_PERCENT, steps: parsedSteps })
+      : null;
 
   async function onSubmit(e: React.FormEvent) {
     e.preventDefault();

@@ -6,6 +6,7 @@
  */
 import { useMemo, useState } from 'react';
 import { useRouter } from 'next/navigation';
+import Link from 'next/link';
 import { MATERIAL_FAMILIES, MATERIALS, materialCaution } from '@/lib/inspection/materials';
 import type { entryFormOptions } from '@/lib/entries';
 import { uploadWithProgress } from './upload';
@@ -47,7 +48,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
   const nozzle = v.nozzleMm || String(m?.nozzleMm ?? '');
 
   if (!s) return <p>No season is open for entries right now.</p>;
-  if (!m) return <p>Register a machine first: <a href="/me/machines">Machines</a>.</p>;
+  if (!m) return <p>Register a machine first: <Link href="/me/machines">Machines</Link>.</p>;
 
   const aria = (name: string) => ({ 'aria-invalid': errors[name] ? true : undefined, 'aria-describedby': errors[name] ? `e-${name}-error` : undefined });
 
