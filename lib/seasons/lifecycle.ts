@@ -2,7 +2,6 @@
  * Season lifecycle: draft → open → judging → final → archived, one step at a time, each with the
  * guards a contest runner needs. Every transition is audited and may mail the subscribers.
  */
-import { Op } from 'sequelize';
 import { ContestClass, Entry, TestPiece, type Season } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
@@ -13,6 +12,7 @@ import { managedSeason, type Actor } from '@/lib/seasons/context';
 import { notifySubscribers } from '@/lib/seasons/subscriptions';
 import { reinspectSeason, startQueued } from '@/lib/seasons/reinspect';
 import { freezeStandings } from '@/lib/standings/freeze';
+import { submittedEntryCount } from '@/lib/seasons/rulebook';
 
 /** The one state each state may move to. */
 export const NEXT_STATE: Record<SeasonState, SeasonState | null> = {
@@ -74,7 +74,7 @@ export async function requestReinspection(actor: Actor, seasonId: number) {
     const season = await managedSeason(seasonId, transaction);
     if (season.state === 'final' || season.state === 'archived')
       throw new HttpError(409, `The season is ${season.state}: its standings are frozen, so its entries are not inspected again.`, undefined, 'standings_frozen');
-    const submitted = await Entry.count({ where: { seasonId, state: { [Op.ne]: 'draft' } }, transaction });
+    const submitted = await submittedEntryCount(seasonId, transaction);
     const result = await reinspectSeason(seasonId, { transaction });
     await audit('season.reinspect_requested', { type: 'season', id: seasonId }, {
       actorId: actor.user.id, ip: actor.ip, transaction, details: { reason: 'organizer request', submitted, queued: result.queued, withoutFile: result.withoutFile },

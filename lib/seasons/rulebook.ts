@@ -42,11 +42,22 @@ export async function rulebookRules(seasonId: number, transaction?: Transaction)
   return seasonFirst.map((r) => ({ ...ruleFromRow(r), id: String(r.id), classId: r.classId ?? null }));
 }
 
+/**
+ * Entries ever submitted to the season (a withdrawn entry that was submitted counts: it was
+ * printed and inspected under the rules as they were). Drafts do not freeze anything.
+ */
+export async function submittedEntryCount(seasonId: number, transaction?: Transaction): Promise<number> {
+  return Entry.count({
+    where: { seasonId, [Op.or]: [{ state: { [Op.notIn]: ['draft', 'withdrawn'] } }, { submittedAt: { [Op.ne]: null } }] },
+    transaction,
+  });
+}
+
 /** Why the rulebook cannot change right now, or null. `reinspectAllowed` says whether re-inspecting lifts it. */
 export async function rulesFreeze(season: Season, transaction?: Transaction): Promise<{ reason: string; reinspectAllowed: boolean } | null> {
   if (season.state === 'final' || season.state === 'archived')
     return { reason: `The season is ${season.state}: its rulebook is frozen with its standings.`, reinspectAllowed: false };
-  const submitted = await Entry.count({ where: { seasonId: season.id, state: { [Op.ne]: 'draft' } }, transaction });
+  const submitted = await submittedEntryCount(season.id, transaction);
   if (submitted > 0)
     return {
       reason: `The rules are frozen: ${submitted} ${submitted === 1 ? 'entry has' : 'entries have'} been submitted under them. To change them anyway, choose to re-inspect every entry under the new rules.`,

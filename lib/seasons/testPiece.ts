@@ -4,7 +4,8 @@
  * not a valid STL is refused with the reader's own sentence.
  */
 import path from 'node:path';
-import { Entry, StoredFile, TestPiece } from '@/models';
+import { StoredFile, TestPiece } from '@/models';
+import { submittedEntryCount } from '@/lib/seasons/rulebook';
 import { getSequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
 import { HttpError, conflict } from '@/lib/errors';
@@ -14,7 +15,6 @@ import { putFile, removeFile } from '@/lib/storage';
 import type { UploadResult, UploadSpec } from '@/lib/uploads';
 import { TEST_PIECE_MAX_BYTES } from '@/lib/seasons/schemas';
 import { managedSeason, type Actor } from '@/lib/seasons/context';
-import { Op } from 'sequelize';
 
 export const TEST_PIECE_UPLOAD: UploadSpec = {
   files: { file: { maxBytes: TEST_PIECE_MAX_BYTES, maxCount: 1, required: true, label: 'the test piece STL' } },
@@ -39,7 +39,7 @@ export async function saveTestPiece(actor: Actor, seasonId: number, upload: Uplo
   try {
     const file = upload.files.file[0];
     const season = await managedSeason(seasonId);
-    const entries = await Entry.count({ where: { seasonId, state: { [Op.ne]: 'draft' } } });
+    const entries = await submittedEntryCount(seasonId);
     if (entries > 0 || season.state === 'final' || season.state === 'archived')
       throw conflict(`The test piece cannot change: ${entries > 0 ? `${entries} entries were already printed against it` : `the season is ${season.state}`}.`);
     let stl: StlSummary;

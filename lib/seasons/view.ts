@@ -5,7 +5,7 @@ import { managedSeason } from '@/lib/seasons/context';
 import { seasonJson } from '@/lib/seasons/editor';
 import { testPieceJson } from '@/lib/seasons/testPiece';
 import { classJson, seasonClasses } from '@/lib/seasons/classes';
-import { rulebookRules, rulesFreeze } from '@/lib/seasons/rulebook';
+import { rulebookRules, rulesFreeze, submittedEntryCount } from '@/lib/seasons/rulebook';
 import { NEXT_STATE, transitionBlockers } from '@/lib/seasons/lifecycle';
 import { seasonJudges } from '@/lib/seasons/judges';
 import { subscriberCount } from '@/lib/seasons/subscriptions';
@@ -14,7 +14,7 @@ import { organizerDashboard } from '@/lib/seasons/dashboard';
 export async function organizerSeasonView(seasonId: number) {
   const season = await managedSeason(seasonId);
   const next = NEXT_STATE[season.state as SeasonState];
-  const [testPiece, classes, rules, freeze, judges, subscribers, [dashboard], blockers] = await Promise.all([
+  const [testPiece, classes, rules, freeze, judges, subscribers, [dashboard], blockers, submittedEntries] = await Promise.all([
     TestPiece.findOne({ where: { seasonId } }),
     seasonClasses(seasonId),
     rulebookRules(seasonId),
@@ -23,6 +23,7 @@ export async function organizerSeasonView(seasonId: number) {
     subscriberCount(seasonId),
     organizerDashboard({ seasonId }),
     next ? transitionBlockers(season, next) : Promise.resolve([] as string[]),
+    submittedEntryCount(seasonId),
   ]);
   return {
     season: seasonJson(season),
@@ -32,6 +33,7 @@ export async function organizerSeasonView(seasonId: number) {
     freeze,
     ...judges,
     subscribers,
+    submittedEntries,
     dashboard,
     next: next ? { to: next, blockers } : null,
   };

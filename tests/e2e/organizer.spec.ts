@@ -146,6 +146,8 @@ test('an organizer sets up and runs a whole season', async ({ page, browser }) =
   await page.goto('/organize');
   const card = page.getByTestId('dashboard-season').filter({ hasText: name });
   await expect(card.getByTestId('judge-load')).toContainText('Thaw Judge');
+  await expect(page.getByTestId('dashboard-season').filter({ hasText: 'Frostbite Sprint' }).getByTestId('oldest-waiting')).toBeVisible();
+  await shot(page, 'dashboard');
 
   // The public rulebook: the same rules as plain sentences, with the safety cautions.
   await page.goto(`/seasons/${slug}/rulebook`);

@@ -25,7 +25,7 @@ export default async function SeasonAdminPage({ params }: { params: Promise<{ id
   });
   const { season, dashboard } = view;
   const closed = season.state === 'final' || season.state === 'archived' ? `The season is ${season.state}: this is frozen with its standings.` : null;
-  const submitted = dashboard ? ENTRY_STATES.filter((s) => s !== 'draft').reduce((n, s) => n + dashboard.entries[s], 0) : 0;
+  const submitted = view.submittedEntries;
   const pieceLocked = closed ?? (submitted > 0 ? `Entries were already printed against this test piece (${submitted}); it can no longer change.` : null);
   const section = 'card space-y-4';
   return (

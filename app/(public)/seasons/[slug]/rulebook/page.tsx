@@ -38,7 +38,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
           <h1>Rulebook · {season.name}</h1>
           <StatePill state={season.state} />
         </div>
-        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}</p>
+        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}{season.timeZone !== 'UTC' ? ` (${season.timeZone} time)` : ''}</p>
         <SubscribeForm slug={season.slug} back={`/seasons/${season.slug}/rulebook`} subscribed={subscribed} signedIn={!!user} />
       </header>
 
