@@ -4,6 +4,8 @@
  * and judges. Demo seasons are left alone: every test works on seasons it creates.
  */
 import http from 'node:http';
+import fs from 'node:fs';
+import path from 'node:path';
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
@@ -316,6 +318,38 @@ describe('lifecycle, rulebook freeze and judges', () => {
     const events = await sql<{ action: string }>(dbFile, "SELECT action FROM audit_events WHERE subject_id = ? AND action IN ('season.rules_saved', 'season.reinspect_requested') ORDER BY id", [String(seasonId)]);
     expect(events.map((e) => e.action)).toEqual(['season.rules_saved', 'season.rules_saved', 'season.reinspect_requested']);
   });
+
+  it('re-inspection after a rule change re-runs the engine on entries with a G-code, under the new rules', async () => {
+    // A draft entry with a real PrusaSlicer G-code of the Beacon, made through the entrant API.
+    const [machine] = await sql<{ id: number }>(dbFile, "SELECT id FROM machines WHERE name = 'Quillwork 180'");
+    const gcode = fs.readFileSync(path.resolve(__dirname, '..', 'fixtures', 'gcode', 'prusa-beacon-020.gcode.gz'));
+    const f = new FormData();
+    const fields = { seasonId: String(seasonId), classId: String(classA), machineId: String(machine.id), materialFamily: 'pla', materialName: 'Club grey', nozzleMm: '0.4', claimedTime: '0:25:10.0', evidenceUrl: 'https://video.example.org/run', measuredXMm: '20', measuredYMm: '20', measuredZMm: '20', notes: '' };
+    for (const [k, v] of Object.entries(fields)) f.append(k, v);
+    f.append('gcode', new Blob([new Uint8Array(gcode)]), 'beacon.gcode.gz');
+    const created = await clients.entrant.request('/api/entries', { method: 'POST', body: f });
+    expect(created.status, await created.clone().text()).toBeLessThan(300);
+    const entryId = (await created.json()).id as number;
+    const inspections = () => sql<{ id: number; status: string; rule_results: string }>(dbFile, 'SELECT id, status, rule_results FROM inspections WHERE entry_id = ? ORDER BY id', [entryId]);
+    const settle = async (n: number) => {
+      for (let i = 0; i < 480; i++) {
+        const rows = await inspections();
+        if (rows.length >= n && rows.every((r) => r.status === 'done' || r.status === 'failed')) return rows;
+        await new Promise((r) => setTimeout(r, 250));
+      }
+      throw new Error('inspections did not finish');
+    };
+    const first = await settle(1);
+
+    const res = await clients.organizer.put(`/api/organizer/seasons/${seasonId}/rules`, { rules: [rule('walls', 2), rule('objects', 1, { severity: 'advisory' })], reinspect: true });
+    expect(res.status).toBe(200);
+    expect((await res.json()).reinspection.queued).toBe(1);
+    const after = await settle(first.length + 1);
+    const latest = after[after.length - 1];
+    expect(latest.status).toBe('done');
+    const results = JSON.parse(latest.rule_results) as { rule: { metric: string; severity: string } }[];
+    expect(results.map((r) => `${r.rule.metric}/${r.rule.severity}`)).toEqual(['walls/blocking', 'objects/advisory']);
+  }, 180_000);
 
   it('judges: appoint an existing account (role granted, audited), refuse unknown addresses, invite by mail', async () => {
     const sashaEmail = demoEmail('sasha');
