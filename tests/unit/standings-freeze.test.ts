@@ -64,6 +64,25 @@ describe('ranking cache', () => {
     expect(await names(live())).toEqual(['Alba', 'Brindle']);
   });
 
+  it('only writes that touch verified entries bump the change counter', async () => {
+    const version = async () => Number((await q('SELECT version FROM standings_version'))[0].version);
+    const t = stamp('2026-11-02T00:00:00.000Z');
+    const v0 = await version();
+    await exec("INSERT INTO entries (id, season_id, class_id, entrant_id, machine_id, material_family, nozzle_mm, claimed_time_ms, state, submitted_at, created_at, updated_at) VALUES (99, 1, 1, 1, 1, 'pla', 0.4, 800000, 'submitted', ?, ?, ?)", [t, t, t]);
+    await exec("INSERT INTO inspections (entry_id, engine_version, status, created_at, updated_at) VALUES (99, 't', 'done', ?, ?)", [t, t]);
+    await exec("UPDATE entries SET notes = 'edited' WHERE id = 99");
+    expect(await version()).toBe(v0);
+    await exec("UPDATE entries SET state = 'verified' WHERE id = 99");
+    expect(await version()).toBe(v0 + 1);
+    expect(await names(live())).toEqual(['Alba', 'Brindle']);
+    await exec("UPDATE inspections SET peak_flow_mm3s = 41 WHERE entry_id = 99");
+    expect(await version()).toBe(v0 + 2);
+    expect((await lib.rankedRows(live()))[0]).toMatchObject({ entry_id: 99, peak_flow_mm3s: 41 });
+    await exec("UPDATE entries SET state = 'rejected' WHERE id = 99");
+    expect(await version()).toBe(v0 + 3);
+    expect((await lib.rankedRows(live()))[0].entry_id).not.toBe(99);
+  });
+
   it('the query plan searches the standings index', async () => {
     const plan = await lib.explainLiveRanking(seasonId, classId);
     expect(plan.join('\n')).toMatch(/SEARCH e USING (COVERING )?INDEX entries_standings \(season_id=\? AND class_id=\? AND state=\?\)/);
