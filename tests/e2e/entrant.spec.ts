@@ -1,5 +1,4 @@
 import { test, expect } from '@playwright/test';
-import fs from 'node:fs';
 import path from 'node:path';
 import sharp from 'sharp';
 import { signIn, demoEmail, readLatestMail } from './helpers';
@@ -46,7 +45,7 @@ test('an entrant registers a machine, records an extrusion-limit test, fixes a b
   await expect(page.getByTestId('extrusion-limit').first()).toHaveText('30 mm³/s');
   await expect(page.getByTestId('speed-ceilings').first()).toContainText('375');
   await expect(page.getByTestId('efficiency-chart').first()).toBeVisible();
-  await page.screenshot({ path: 'test-results/entrant-machine.png', fullPage: true });
+  await page.screenshot({ path: test.info().outputPath('entrant-machine.png'), fullPage: true });
 
   // Entry, step by step
   await page.goto('/me');
@@ -78,14 +77,14 @@ test('an entrant registers a machine, records an extrusion-limit test, fixes a b
   await expect(page.getByTestId('flow-chart')).toBeVisible();
   await expect(page.getByRole('button', { name: 'Submit entry' })).toBeDisabled();
   await expect(page.getByTestId('entry-photos').getByRole('img')).toHaveCount(2);
-  await page.screenshot({ path: 'test-results/entrant-blocked.png', fullPage: true });
+  await page.screenshot({ path: test.info().outputPath('entrant-blocked.png'), fullPage: true });
 
   // Fix: upload the compliant G-code
   await page.getByLabel('New G-code').setInputFiles(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'));
   await page.getByRole('form', { name: 'Upload new files' }).getByRole('button', { name: 'Upload' }).click();
   await expect(summary).toContainText('No blocking problems', { timeout: 60_000 });
   await expect(page.getByTestId('key-figures')).toContainText('0.20 mm');
-  await page.screenshot({ path: 'test-results/entrant-passed.png', fullPage: true });
+  await page.screenshot({ path: test.info().outputPath('entrant-passed.png'), fullPage: true });
   await page.getByRole('button', { name: 'Submit entry' }).click();
   await expect(page.getByTestId('entry-message')).toHaveText(/Entry submitted/);
   await expect(page.locator('.pill', { hasText: 'submitted' }).first()).toBeVisible();
@@ -95,5 +94,4 @@ test('an entrant registers a machine, records an extrusion-limit test, fixes a b
   const text = await readLatestMail(browser, demoEmail('entrant'), 'Entry received');
   expect(text).toContain(entryUrl);
   expect(text).toMatch(/Frostbite Sprint/);
-  fs.mkdirSync('test-results', { recursive: true });
 });
