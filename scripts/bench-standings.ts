@@ -210,7 +210,7 @@ async function main() {
     db.configure('busyTimeout', 5000);
     const cold: number[] = [];
     for (let i = 0; i < 20; i++) {
-      await run(db, 'UPDATE entries SET updated_at = updated_at WHERE id = (SELECT MIN(id) FROM entries WHERE state = 'verified')');
+      await run(db, "UPDATE entries SET updated_at = updated_at WHERE id = (SELECT MIN(id) FROM entries WHERE state = 'verified')");
       const t = performance.now();
       await (await fetch(base)).arrayBuffer();
       cold.push(performance.now() - t);

@@ -65,11 +65,17 @@ export async function freezeStandings(seasonId: number, transaction?: Transactio
  * freeze was wired, or by a direct data change, is frozen at its first read). Two first readers at
  * once: the loser's insert hits the primary key and it simply uses the winner's snapshot.
  */
+const knownFrozen = new Set<number>();
+
 export async function ensureFrozen(seasonId: number): Promise<void> {
-  if (await existing(seasonId)) return;
-  try {
-    await freezeStandings(seasonId);
-  } catch (err) {
-    if (!(await existing(seasonId))) throw err;
+  // A snapshot, once taken, is never removed: remember it and skip the look-up next time.
+  if (knownFrozen.has(seasonId)) return;
+  if (!(await existing(seasonId))) {
+    try {
+      await freezeStandings(seasonId);
+    } catch (err) {
+      if (!(await existing(seasonId))) throw err;
+    }
   }
+  knownFrozen.add(seasonId);
 }

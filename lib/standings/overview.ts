@@ -56,7 +56,7 @@ export async function seasonOverview(slug: string) {
   });
   const ranked: { slug: string; name: string; rows: StandingsRow[] }[] = [];
   for (const c of classes) {
-    const ref = await classRef(season, c as unknown as Parameters<typeof classRef>[1]);
+    const ref = await classRef(season, c);
     ranked.push({ slug: c.slug, name: c.name, rows: (await standingsPage(ref, DEFAULT_QUERY, { all: true })).rows });
   }
   const histogram = timeHistogram(Object.fromEntries(ranked.map((c) => [c.slug, c.rows.map((r) => r.time_ms / 1000)])));

@@ -110,7 +110,7 @@ export async function findClass(season: SeasonRow, classSlug: string): Promise<C
   return c;
 }
 
-export async function classRef(season: SeasonRow, cls: ClassRow): Promise<ClassRef> {
+export async function classRef(season: Pick<SeasonRow, 'id' | 'state'>, cls: Pick<ClassRow, 'id'>): Promise<ClassRef> {
   const frozen = isFrozenState(season.state);
   if (frozen) await ensureFrozen(season.id);
   return { seasonId: season.id, classId: cls.id, frozen };
