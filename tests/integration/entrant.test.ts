@@ -4,6 +4,7 @@ import path from 'node:path';
 import http from 'node:http';
 import sharp from 'sharp';
 import exifr from 'exifr';
+import { gunzipSync } from 'node:zlib';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail } from '../support/demo';
@@ -283,6 +284,44 @@ describe('an entry from upload to submission', () => {
     const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [demoEmail('sasha')]);
     expect(mail[0].subject).toMatch(/^Entry withdrawn/);
     expect((await sasha.post(`/api/entries/${entryId}/submit`, {})).status).toBe(409);
+  });
+});
+
+describe('a returned entry', () => {
+  it('is resubmitted only with new files, re-inspected, and mailed', async () => {
+    // Own copy of the compliant G-code (one comment added), so it is not a duplicate of another entrant's upload.
+    const own = Buffer.concat([gunzipSync(gcode020), Buffer.from('\n; sasha resubmission copy\n')]);
+    const res = await postForm(sasha, '/api/entries', form(details(), [
+      { field: 'gcode', name: 'beacon.gcode', data: own, type: 'text/plain' },
+      { field: 'photos', name: 'front.jpg', data: await photo() },
+      { field: 'photos', name: 'side.png', data: await sharp({ create: { width: 300, height: 300, channels: 3, background: '#fff' } }).png().toBuffer() },
+    ]));
+    expect(res.status).toBe(201);
+    const id = (await res.json()).id;
+    expect((await waitForInspection(sasha, id)).inspection.blockingFailures).toBe(0);
+    // Details can change while a draft; a bad time is explained next to its field.
+    const bad = await sasha.put(`/api/entries/${id}`, details({ claimedTime: 'quick' }));
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).fields.claimedTime).toMatch(/h:mm:ss\.t/);
+    expect((await sasha.post(`/api/entries/${id}/submit`, {})).status).toBe(200);
+    // A judge returns it (the judging side's act, arranged directly here).
+    await sql(dbFile, "UPDATE entries SET state = 'returned', decided_at = datetime('now', '+1 second') WHERE id = ?", [id]);
+    await new Promise((r) => setTimeout(r, 1500));
+    const early = await sasha.post(`/api/entries/${id}/submit`, {});
+    expect(early.status).toBe(422);
+    expect((await early.json()).error).toMatch(/returned: upload the corrected files/);
+    const up = await postForm(sasha, `/api/entries/${id}/files`, form({}, [{ field: 'photos', name: 'better-1.jpg', data: await photo() }, { field: 'photos', name: 'better-2.jpg', data: await photo(false) }]));
+    expect(up.status).toBe(200);
+    const view = await (await sasha.get(`/api/entries/${id}`)).json();
+    expect(view.files.photos.map((p: { name: string }) => p.name)).toEqual(['better-1.jpg', 'better-2.jpg']);
+    const again = await sasha.post(`/api/entries/${id}/submit`, {});
+    expect(again.status).toBe(200);
+    const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [demoEmail('sasha')]);
+    expect(mail[0].subject).toMatch(/^Entry resubmitted: Frostbite Sprint/);
+    // The replaced photos stay for the judges but are no longer the owner's current set or public.
+    const replaced = await sql<{ id: number }>(dbFile, "SELECT id FROM stored_files WHERE entry_id = ? AND kind = 'photo' AND json_extract(meta, '$.replacedAt') IS NOT NULL", [id]);
+    expect(replaced).toHaveLength(2);
+    expect((await anonymous.get(`/api/files/${replaced[0].id}`)).status).toBe(404);
   });
 });
 

@@ -8,6 +8,7 @@ import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { EntryWorkbench } from '@/components/entrant/EntryWorkbench';
 import { formatDateTime, formatDurationMs } from '@/lib/format';
+import { reasonLabel } from '@/lib/reviews/reasons';
 
 export const metadata = { title: 'Entry' };
 export const dynamic = 'force-dynamic';
@@ -91,7 +92,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
               {entry.reviews.map((r) => (
                 <li key={r.id}>
                   <p className="font-semibold">{DECISION_LABEL[r.decision] ?? r.decision} · {formatDateTime(r.createdAt)}</p>
-                  {r.reasonCodes.length > 0 && <p className="text-ink-600">{r.reasonCodes.join(', ')}</p>}
+                  {r.reasonCodes.length > 0 && <ul className="list-disc pl-5 text-ink-600">{r.reasonCodes.map((c) => <li key={c}>{reasonLabel(c)}</li>)}</ul>}
                   {r.note && <p className="whitespace-pre-wrap">{r.note}</p>}
                 </li>
               ))}
