@@ -6,7 +6,7 @@ import fs from 'node:fs';
 import crypto from 'node:crypto';
 import zlib from 'node:zlib';
 import type { Transaction } from 'sequelize';
-import { Entry, SeasonJudge, StoredFile, Season } from '@/models';
+import { Entry, SeasonJudge, StoredFile, Season, TestPiece } from '@/models';
 import { HttpError } from '@/lib/errors';
 import { sniffBytes, sniffFile, type SniffedType } from '@/lib/uploads/sniff';
 import type { UploadSpec, UploadedFile } from '@/lib/uploads';
@@ -178,7 +178,12 @@ const PUBLIC_KINDS: StoredFileKind[] = ['photo', 'thumbnail'];
  * anyone for photos of verified entries and for the test piece of a published season.
  */
 export async function canReadFile(user: { id: number; roles: string[] } | null, file: StoredFile): Promise<boolean> {
-  if (file.kind === 'test_piece') return true;
+  if (file.kind === 'test_piece') {
+    // Public once the season is published; a draft season's piece only for organizers and admins.
+    const piece = await TestPiece.findOne({ where: { storedFileId: file.id }, include: [{ model: Season, attributes: ['state'] }] });
+    const state = (piece as unknown as { Season?: Season } | null)?.Season?.state;
+    return (state !== undefined && state !== 'draft') || (!!user && hasRole(user as never, ['organizer', 'admin']));
+  }
   if (!file.entryId) return !!user && (file.ownerId === user.id || hasRole(user as never, ['organizer', 'admin']));
   const entry = await Entry.findByPk(file.entryId, { attributes: ['id', 'entrantId', 'seasonId', 'state'] });
   if (!entry) return false;

@@ -54,6 +54,7 @@ test('an entrant registers a machine, records an extrusion-limit test, fixes a b
   await page.getByLabel('Machine').selectOption({ label: 'Sprinter 230 (0.4 mm)' });
   await page.getByLabel('Class').selectOption({ label: 'Open · 0.4 mm' });
   await page.getByLabel('Material name').fill('Club grey PLA');
+  await page.screenshot({ path: test.info().outputPath('entrant-form.png'), fullPage: true });
   await page.getByRole('button', { name: 'Next' }).click();
   await page.getByLabel('Claimed time (h:mm:ss.t)').fill('0:25:10.0');
   await page.getByLabel(/Evidence video link/).fill('https://video.example.org/juno-sprinter');
