@@ -329,9 +329,10 @@ export class LayerGrid {
    * Walk from (x, y) along (dx, dy) (unit vector) until leaving the filled region F and count the
    * distinct loops crossed on the way, other than `selfLoop`. Returns −1 when F is not left within
    * maxMm (the walk went into the part instead of out of it). `lastGapMm` is set to the distance
-   * walked before meeting the first other loop (or leaving F when none was crossed).
+   * walked before meeting the first other loop (or leaving F when none was crossed). Gives up
+   * (−1) once more than maxCount loops are crossed.
    */
-  loopsCrossed(x: number, y: number, dx: number, dy: number, selfLoop: number, maxMm: number, seen: Int32Array): number {
+  loopsCrossed(x: number, y: number, dx: number, dy: number, selfLoop: number, maxMm: number, seen: Int32Array, maxCount = 1 << 30): number {
     const c = this.cellMm;
     const step = c * 0.5;
     const nSteps = Math.ceil(maxMm / step);
@@ -354,6 +355,8 @@ export class LayerGrid {
         for (let j = 0; j < count; j++) if (seen[j] === id) known = true;
         if (!known && count < seen.length) seen[count++] = id;
         last = id;
+        // The caller only needs to know whether this way out is shorter than another.
+        if (count > maxCount) return -1;
       }
     }
     return -1;

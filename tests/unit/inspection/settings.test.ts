@@ -127,7 +127,7 @@ describe('settings measured from toolpaths equal the sliced settings on every fi
   });
 
   it('a tight work budget samples windows of layers and still finds the same settings', async () => {
-    const { measured: m } = await inspectFixture('gcode/prusa-beacon-020.gcode.gz', { cellBudget: { baseCells: 2_000_000, cellsPerSegment: 0 } });
+    const { measured: m } = await inspectFixture('gcode/prusa-beacon-020.gcode.gz', { cellBudget: { baseCells: 1_200_000, cellsPerSegment: 0 } });
     expect(m.analysedLayers).toBeLessThan(m.layers / 2);
     expect(m.walls.value).toBe(2);
     expect(m.bottom_layers.value).toBe(4);
