@@ -31,8 +31,8 @@ const CODES: Record<SettingName, FlagCode> = {
   nozzle_mm: 'settings_mismatch_nozzle',
 };
 
-const LABELS: Record<SettingName, { name: string; unit: string; digits: number }> = {
-  infill_percent: { name: 'sparse infill', unit: ' %', digits: 0 },
+const LABELS: Record<SettingName, { name: string; unit: string; digits: number; tolUnit?: string }> = {
+  infill_percent: { name: 'sparse infill', unit: ' %', digits: 0, tolUnit: ' percentage points' },
   walls: { name: 'wall count', unit: '', digits: 0 },
   top_layers: { name: 'top solid layers', unit: '', digits: 0 },
   bottom_layers: { name: 'bottom solid layers', unit: '', digits: 0 },
@@ -56,7 +56,7 @@ export function settingsMismatchFlags(settings: SettingsEvidence): Flag[] {
     if (!e || !settingDisagrees(name, e.declared, e.measured)) continue;
     const l = LABELS[name];
     const tol = SETTINGS_TOLERANCES[name];
-    const tolText = tol === 0 ? 'they must match exactly' : `allowed difference ${tol}${l.unit}`;
+    const tolText = tol === 0 ? 'they must match exactly' : `allowed difference ${tol}${l.tolUnit ?? l.unit}`;
     flags.push(
       makeFlag(
         CODES[name],

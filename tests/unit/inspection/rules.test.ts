@@ -189,7 +189,9 @@ describe('settingsMismatchFlags', () => {
   it('counts must match exactly; infill within 3 points; layer height within 0.01 mm', () => {
     expect(settingsMismatchFlags(evidence())).toEqual([]);
     expect(settingsMismatchFlags(evidence({ infill_percent: [15, 18] }))).toEqual([]);
-    expect(settingsMismatchFlags(evidence({ infill_percent: [15, 18.1] })).map((f) => f.code)).toEqual(['settings_mismatch_infill']);
+    const infill = settingsMismatchFlags(evidence({ infill_percent: [15, 18.1] }));
+    expect(infill.map((f) => f.code)).toEqual(['settings_mismatch_infill']);
+    expect(infill[0].message).toContain('declares sparse infill 15 % but the toolpaths show 18 % (allowed difference 3 percentage points)');
     expect(settingsMismatchFlags(evidence({ layer_height_mm: [0.2, 0.21] }))).toEqual([]);
     expect(settingsMismatchFlags(evidence({ layer_height_mm: [0.2, 0.22] })).map((f) => f.code)).toEqual(['settings_mismatch_layer_height']);
     const f = settingsMismatchFlags(evidence({ walls: [2, 3], top_layers: [3, 4] }));
