@@ -93,7 +93,7 @@ const Z_EPS_MM = 0.0015;
  */
 const CELLS_PER_WIDTH = 1.6;
 /**
- * Default work budget: 6 M cells (~0.3 s of CPU here) covers the 36 × 42 × 40 mm Beacon in full at
+ * Default work budget: 6 M cells (~0.3 s of CPU here) covers the 36 × 39 × 40 mm Beacon in full at
  * 0.2 mm layers (4.7 M cells); a quarter cell per extruding move keeps large files near parser
  * speed. Callers wanting every layer analysed pass Infinity.
  */

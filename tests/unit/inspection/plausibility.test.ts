@@ -5,7 +5,7 @@ const base: PlausibilityReport = {
   time: { estimated_s: 1000 },
   flow: { peak_mm3s: 20 },
   filament: { volume_mm3: 20_000 },
-  size_mm: { x: 36, y: 42, z: 40 },
+  size_mm: { x: 36, y: 39, z: 40 },
 };
 const codes = (f: { code: string }[]) => f.map((x) => x.code);
 
@@ -40,23 +40,23 @@ describe('plausibility checks (worked examples by hand)', () => {
 
   it('measured part off the test piece beyond tolerance: deviation in mm and %', () => {
     // Z 40 → 39.2 mm is −0.80 mm, −2.0 %; X 36.2 is +0.56 % (inside 1 %).
-    const f = checkPlausibility(base, { measuredDimensionsMm: { x: 36.2, y: 42, z: 39.2 }, testPieceSizeMm: { x: 36, y: 42, z: 40 } });
+    const f = checkPlausibility(base, { measuredDimensionsMm: { x: 36.2, y: 39, z: 39.2 }, testPieceSizeMm: { x: 36, y: 39, z: 40 } });
     expect(codes(f)).toEqual(['dimensions_off_test_piece']);
     expect(f[0].message).toContain('Z -0.80 mm (-2.0 %)');
     expect(f[0].message).not.toContain('X ');
-    expect(checkPlausibility(base, { measuredDimensionsMm: { x: 36.3, y: 42, z: 40 }, testPieceSizeMm: { x: 36, y: 42, z: 40 } })).toEqual([]);
+    expect(checkPlausibility(base, { measuredDimensionsMm: { x: 36.3, y: 39, z: 40 }, testPieceSizeMm: { x: 36, y: 39, z: 40 } })).toEqual([]);
   });
 
   it('G-code scaled relative to the test piece', () => {
-    // 95 % scale: 34.2 × 39.9 × 38 mm against 36 × 42 × 40 mm.
-    const f = checkPlausibility({ ...base, size_mm: { x: 34.2, y: 39.9, z: 38 } }, { testPieceSizeMm: { x: 36, y: 42, z: 40 } });
+    // 95 % scale: 34.2 × 37.05 × 38 mm against 36 × 39 × 40 mm.
+    const f = checkPlausibility({ ...base, size_mm: { x: 34.2, y: 37.05, z: 38 } }, { testPieceSizeMm: { x: 36, y: 39, z: 40 } });
     expect(codes(f)).toEqual(['scale_off_test_piece']);
     expect(f[0].message).toContain('about 95.0 %');
-    expect(scalePercent({ x: 34.2, y: 39.9, z: 38 }, { x: 36, y: 42, z: 40 })).toBeCloseTo(95, 9);
+    expect(scalePercent({ x: 34.2, y: 37.05, z: 38 }, { x: 36, y: 39, z: 40 })).toBeCloseTo(95, 9);
     // 100.5 % is within the default ±1 %, but not within ±0.25 %.
-    const ok = { ...base, size_mm: { x: 36.18, y: 42.21, z: 40.2 } };
-    expect(checkPlausibility(ok, { testPieceSizeMm: { x: 36, y: 42, z: 40 } })).toEqual([]);
-    expect(codes(checkPlausibility(ok, { testPieceSizeMm: { x: 36, y: 42, z: 40 }, scaleTolerancePercent: 0.25 }))).toEqual(['scale_off_test_piece']);
+    const ok = { ...base, size_mm: { x: 36.18, y: 39.195, z: 40.2 } };
+    expect(checkPlausibility(ok, { testPieceSizeMm: { x: 36, y: 39, z: 40 } })).toEqual([]);
+    expect(codes(checkPlausibility(ok, { testPieceSizeMm: { x: 36, y: 39, z: 40 }, scaleTolerancePercent: 0.25 }))).toEqual(['scale_off_test_piece']);
   });
 
   it('same G-code hash used by another entrant', () => {
@@ -74,7 +74,7 @@ describe('plausibility checks (worked examples by hand)', () => {
   it('uses only codes from the one list', () => {
     const all = checkPlausibility(
       { ...base, flow: { peak_mm3s: 99 }, size_mm: { x: 10, y: 10, z: 10 } },
-      { claimedTimeMs: 100_000, machineFlowLimitMm3s: 10, measuredDimensionsMm: { x: 1, y: 1, z: 1 }, testPieceSizeMm: { x: 36, y: 42, z: 40 }, duplicateOfEntry: 'x' },
+      { claimedTimeMs: 100_000, machineFlowLimitMm3s: 10, measuredDimensionsMm: { x: 1, y: 1, z: 1 }, testPieceSizeMm: { x: 36, y: 39, z: 40 }, duplicateOfEntry: 'x' },
     );
     expect(all.length).toBe(6);
     for (const f of all) {

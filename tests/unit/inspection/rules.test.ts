@@ -25,7 +25,7 @@ function report(over: Partial<MetricReport> = {}): MetricReport {
     filament: { length_mm: 4819.9, volume_mm3: 11592.6, mass_g: 14.375 },
     flow: { peak_mm3s: 24.1, p95_mm3s: 18.2, mean_mm3s: 9.9 },
     layers: { count: 200, height_mm: 0.2, first_height_mm: 0.2 },
-    size_mm: { x: 36, y: 42, z: 40 },
+    size_mm: { x: 36, y: 39, z: 40 },
     objects: 1,
     time: { estimated_s: 1400 },
     overrides: { feed_percent_max: null, flow_percent_max: null },
@@ -169,7 +169,7 @@ describe('evaluateRules', () => {
       { metric: 'flow_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
       { metric: 'settings_mismatch', comparator: 'eq', value: 0, severity: 'advisory' },
     ]);
-    const res = evaluateRules(book, report(), { testPieceSizeMm: { x: 36, y: 42, z: 40 } });
+    const res = evaluateRules(book, report(), { testPieceSizeMm: { x: 36, y: 39, z: 40 } });
     expect(res.map((r) => `${r.rule.metric}:${r.status}`)).toEqual(book.map((b) => `${b.metric}:pass`));
     // No M220/M221 in the file: the override metric defaults to 100 %.
     expect(res[7].source).toBe('default');
@@ -209,10 +209,10 @@ describe('metric list', () => {
     expect(new Set(METRIC_IDS).size).toBe(METRIC_IDS.length);
     for (const m of METRICS) {
       expect(metricById(m.id)).toBe(m);
-      const v = m.get(report(), { testPieceSizeMm: { x: 36, y: 42, z: 40 } });
+      const v = m.get(report(), { testPieceSizeMm: { x: 36, y: 39, z: 40 } });
       expect(v.value === null || typeof v.value === 'number' || typeof v.value === 'boolean', m.id).toBe(true);
     }
-    expect(metricById('scale_percent')!.get(report({ size_mm: { x: 36.36, y: 42.42, z: 40.4 } }), { testPieceSizeMm: { x: 36, y: 42, z: 40 } }).value).toBeCloseTo(101, 6);
+    expect(metricById('scale_percent')!.get(report({ size_mm: { x: 36.36, y: 39.39, z: 40.4 } }), { testPieceSizeMm: { x: 36, y: 39, z: 40 } }).value).toBeCloseTo(101, 6);
   });
   it('every flag code the mismatch check emits is in the one flag list', () => {
     const codes = settingsMismatchFlags(evidence({ infill_percent: [0, 50], walls: [1, 9], top_layers: [1, 9], bottom_layers: [1, 9], layer_height_mm: [0.1, 0.3], nozzle_mm: [0.4, 0.8] })).map((f) => f.code);
