@@ -2,7 +2,7 @@
  * Declared vs measured settings: where the slicer's comment block and the toolpaths disagree
  * beyond tolerance. A mismatch is itself a flag (the comment block is easy to edit).
  */
-import { makeFlag, type FlagCode } from '../plausibility';
+import { FLAG_CODES, makeFlag, type FlagCode } from '../plausibility';
 import type { Flag, SettingsEvidence } from '../types';
 
 export type SettingName = keyof SettingsEvidence;
@@ -67,11 +67,15 @@ export function settingsMismatchFlags(settings: SettingsEvidence): Flag[] {
   return flags;
 }
 
-/** True when any setting disagrees; null when no setting has both figures. */
+/**
+ * True when any setting disagrees; null when no setting has both figures. The nozzle is left out:
+ * its measured figure is an estimate from the line width (an info flag, not a contradiction).
+ */
 export function anySettingMismatch(settings: SettingsEvidence | null | undefined): boolean | null {
   if (!settings) return null;
   let compared = false;
   for (const name of SETTING_NAMES) {
+    if (FLAG_CODES[CODES[name]].severity === 'info') continue;
     const e = settings[name];
     if (!e || e.declared === null || e.measured === null) continue;
     compared = true;

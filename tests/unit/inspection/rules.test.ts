@@ -177,6 +177,12 @@ describe('evaluateRules', () => {
     const fast = evaluateRules([book[7]], report({ overrides: { feed_percent_max: 150, flow_percent_max: null } }));
     expect(fast[0].status).toBe('fail');
   });
+  it('settings_mismatch ignores the nozzle estimate (a hint from the line width)', () => {
+    const rep = report({ settings: evidence({ nozzle_mm: [0.4, 0.5] }) });
+    const [r] = evaluateRules([rule({ metric: 'settings_mismatch', comparator: 'eq', value: 0 })], rep);
+    expect(r.status).toBe('pass');
+    expect(settingsMismatchFlags(rep.settings!).map((f) => [f.code, f.severity])).toEqual([['settings_mismatch_nozzle', 'info']]);
+  });
   it('settings_mismatch is true on a lying comment block', () => {
     const rep = report({ settings: evidence({ walls: [2, 3] }) });
     const [r] = evaluateRules([rule({ metric: 'settings_mismatch', comparator: 'eq', value: 0 })], rep);
