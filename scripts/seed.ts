@@ -1,10 +1,13 @@
 import { migrate } from '@/lib/migrate';
 import { seedDemo } from '@/lib/seed';
+import { seedEvidence } from '@/lib/seedEvidence';
 import { getSequelize, databaseUrl } from '@/lib/db';
 
 (async () => {
   await migrate();
   await seedDemo({ log: (s) => console.log(s) });
+  // Test servers skip the evidence (G-code, photos, inspections) to start quickly; the demo has it.
+  if (process.env.HOTLAP_DEMO_EVIDENCE !== '0') await seedEvidence({ log: (s) => console.log(s) });
   console.log(`Database: ${databaseUrl()}`);
   await getSequelize().close();
 })().catch((err) => {

@@ -29,6 +29,7 @@ export function testEnv(port: number, dataDir: string): Record<string, string> {
     // Lets each test act from its own client address (X-Forwarded-For), as behind a proxy.
     TRUST_PROXY: '1',
     SMTP_URL: '',
+    HOTLAP_DEMO_EVIDENCE: '0',
   };
 }
 
