@@ -71,7 +71,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
 
       <EntryWorkbench entry={entry} limitMm3s={limit?.limitMm3s ?? null} />
 
-      {entry.canEdit && <SafetyNotes compact />}
+      {entry.canEdit && <SafetyNotes />}
 
       <div className="grid gap-6 lg:grid-cols-2">
         <section className="card" aria-labelledby="ihist-h">

@@ -18,7 +18,7 @@ export default async function NewEntryPage({ searchParams }: { searchParams: Pro
         <NewEntryForm options={options} seasonId={chosen?.id} />
       </div>
       <aside className="space-y-4">
-        <SafetyNotes compact />
+        <SafetyNotes />
       </aside>
     </div>
   );
