@@ -92,6 +92,7 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
     if (!c || !data || !data.layers.length) return;
     const ctx = c.getContext('2d');
     if (!ctx) return;
+    const t0 = performance.now();
     const dpr = window.devicePixelRatio || 1;
     c.width = CANVAS_PX * dpr;
     c.height = CANVAS_PX * dpr;
@@ -127,6 +128,12 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
       ctx.strokeStyle = flowColour(b);
       ctx.stroke(p);
     });
+    // Decode + draw time of this layer, kept on the element so a browser test can report it.
+    const ms = performance.now() - t0;
+    c.dataset.drawMs = ms.toFixed(2);
+    c.dataset.drawMsMax = Math.max(ms, Number(c.dataset.drawMsMax ?? 0)).toFixed(2);
+    c.dataset.drawMsSum = (ms + Number(c.dataset.drawMsSum ?? 0)).toFixed(2);
+    c.dataset.draws = String(1 + Number(c.dataset.draws ?? 0));
   }, [data, layer, showBelow, wholePlate, paths]);
 
   const current = data?.layers[layer];

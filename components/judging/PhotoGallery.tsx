@@ -1,11 +1,17 @@
 'use client';
 /** Entry photos as thumbnails; a click opens the full-size photo (a view the server audits). */
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 
 export interface GalleryPhoto { id: number; name: string; capturedAt: string | null; url: string; thumbUrl: string }
 
 export function PhotoGallery({ photos }: { photos: GalleryPhoto[] }) {
   const [open, setOpen] = useState<GalleryPhoto | null>(null);
+  useEffect(() => {
+    if (!open) return;
+    const onKey = (e: KeyboardEvent) => e.key === 'Escape' && setOpen(null);
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [open]);
   if (!photos.length) return <p className="text-sm text-ink-600">No photos were uploaded.</p>;
   return (
     <>
@@ -26,7 +32,7 @@ export function PhotoGallery({ photos }: { photos: GalleryPhoto[] }) {
           {/* eslint-disable-next-line @next/next/no-img-element */}
           <img src={open.url} alt={open.name} className="max-h-[85vh] max-w-full rounded" data-testid="photo-full" />
           <p className="mt-3 text-sm text-white">{open.name} · {open.capturedAt ? `captured ${open.capturedAt.replace('T', ' ')}` : 'no capture time'}</p>
-          <button type="button" className="btn-quiet mt-3" onClick={() => setOpen(null)}>Close</button>
+          <button type="button" className="btn-quiet mt-3" onClick={() => setOpen(null)} autoFocus>Close</button>
         </div>
       )}
     </>

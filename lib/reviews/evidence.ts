@@ -17,7 +17,7 @@ import { currentGcode } from '@/lib/entries/inspection';
 const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode'];
 
 /** What a judge looked at; other file routes that serve private evidence to judges call this too. */
-export type EvidenceView = 'review' | 'photo' | 'gcode' | 'project' | 'evidence_link';
+export type EvidenceView = 'review' | 'photo' | 'gcode' | 'project' | 'evidence_link' | 'toolpath_preview';
 
 export async function auditEvidenceView(actorId: number, entryId: number, view: EvidenceView, extra: { fileId?: number; url?: string; ip?: string | null } = {}) {
   const { ip, ...details } = extra;
@@ -58,10 +58,12 @@ export async function evidenceLink(judgeId: number, entryId: number, ip?: string
 const previewKey = (sha256: string) => `previews/${sha256.slice(0, 64)}-v${PREVIEW_VERSION}.json`;
 
 /** The toolpath preview JSON of the entry's latest G-code (computed once, then served from storage). */
-export async function entryPreviewJson(judgeId: number, entryId: number): Promise<string> {
+export async function entryPreviewJson(judgeId: number, entryId: number, ip?: string | null): Promise<string> {
   const entry = await reviewableEntry(judgeId, entryId);
   const gcode = await currentGcode(entry.id);
   if (!gcode) throw notFound('This entry has no G-code to preview.');
+  // The preview draws the entrant's G-code: a view of private evidence like the download.
+  await auditEvidenceView(judgeId, entry.id, 'toolpath_preview', { fileId: gcode.id, ip });
   const key = previewKey(/^[0-9a-f]{64}$/.test(gcode.sha256) ? gcode.sha256 : `file-${gcode.id}`);
   if (await exists(key)) return fs.promises.readFile(localPath(key), 'utf8');
   let preview: ToolpathPreview;

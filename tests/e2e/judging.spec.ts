@@ -10,14 +10,14 @@ const db = () => {
 };
 
 test('a judge reviews an entry, steps through the preview layers, rejects it with two reasons, then verifies another that enters the standings', async ({ page, browser }) => {
-  test.setTimeout(120_000);
+  test.setTimeout(180_000);
   const { entryId: rejected } = await createReviewableEntry(db(), { entrant: 'sasha', claimedTimeMs: 1_640_000 });
   const { entryId: verified } = await createReviewableEntry(db(), { entrant: 'sasha', claimedTimeMs: 1_590_000, fixture: 'slic3r-beacon-020.gcode.gz' });
 
   await signIn(page, demoEmail('judge'));
   await page.goto('/judging');
   await expect(page.getByRole('heading', { name: 'Review desk' })).toBeVisible();
-  await page.screenshot({ path: 'test-results/judging-queue.png', fullPage: true });
+  await page.screenshot({ path: test.info().outputPath('judging-queue.png'), fullPage: true });
   await page.getByRole('link', { name: `Review #${rejected}` }).click();
   await expect(page.getByRole('heading', { name: `Entry #${rejected}` })).toBeVisible();
   await expect(page.getByTestId('claimed-time')).toHaveText('0:27:20.0');
@@ -29,7 +29,8 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   const dialog = page.getByRole('dialog');
   await expect(dialog.getByTestId('photo-full')).toBeVisible();
   await expect(dialog).toContainText('captured 2026-11-25 18:04:31');
-  await dialog.getByRole('button', { name: 'Close' }).click();
+  await page.keyboard.press('Escape');
+  await expect(dialog).toHaveCount(0);
 
   // Step through layers of the toolpath preview.
   const slider = page.getByTestId('layer-slider');
@@ -48,7 +49,25 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await expect(readout).toContainText('Layer 21 /');
   await expect(page.getByText('Commanded flow, mm³/s')).toBeVisible();
   await expect(page.getByTestId('flow-legend').locator('li').first()).toBeVisible();
-  await page.getByTestId('layer-preview').screenshot({ path: 'test-results/judging-preview.png' });
+  await page.getByTestId('layer-preview').screenshot({ path: test.info().outputPath('judging-preview.png') });
+  // A figure for the report, not an assertion: step through every layer in the page, one frame each.
+  const total = Number((await readout.innerText()).match(/\/ (\d+)/)![1]);
+  await slider.fill('0');
+  const elapsedMs = await page.evaluate(async (n) => {
+    const next = document.querySelector<HTMLButtonElement>('[aria-label="Next layer"]')!;
+    const t0 = performance.now();
+    for (let i = 1; i < n; i++) {
+      next.click();
+      await new Promise((r) => requestAnimationFrame(() => r(null)));
+    }
+    return performance.now() - t0;
+  }, total);
+  await expect(readout).toContainText(`Layer ${total} /`);
+  const canvasEl = page.getByTestId('preview-canvas');
+  const [drawMaxMs, drawSumMs, draws] = await Promise.all(['data-draw-ms-max', 'data-draw-ms-sum', 'data-draws'].map((a) => canvasEl.getAttribute(a).then(Number)));
+  console.log(
+    `stepped through ${total} preview layers in ${elapsedMs.toFixed(0)} ms, one animation frame each; layer decode + draw: mean ${(drawSumMs / draws).toFixed(2)} ms, slowest ${drawMaxMs} ms over ${draws} draws (headless Chromium, software rendering)`,
+  );
 
   // Reject with two reasons.
   await page.getByLabel('Reject', { exact: true }).check();
@@ -57,7 +76,7 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await page.getByLabel('Note to the entrant').fill('The video stops before the last layer and the bridge window droops.');
   await page.getByRole('button', { name: 'Record decision' }).click();
   await expect(page.getByTestId('decision-result')).toContainText('now rejected');
-  await page.screenshot({ path: 'test-results/judging-review.png', fullPage: true });
+  await page.screenshot({ path: test.info().outputPath('judging-review.png'), fullPage: true });
 
   const mail = await readLatestMail(browser, demoEmail('sasha'), `#${rejected} was rejected`);
   expect(mail).toContain(REASON_CODES.timing_unconfirmed.label);

@@ -273,8 +273,10 @@ describe('review screen and evidence', () => {
     const p = JSON.parse(text);
     // 40 mm Beacon at 0.2 mm layers = 200 layers, plus the prime line's own Z.
     expect(p.layers.length).toBeGreaterThanOrEqual(200);
-    // Second call is served from the stored copy, same bytes.
+    // Second call is served from the stored copy, same bytes; each view is audited.
     expect(await (await clients.judge.get(`/api/judging/entries/${entryId}/preview`)).text()).toBe(text);
+    const views = await sql<{ details: string }>(dbFile, "SELECT details FROM audit_events WHERE action = 'evidence.viewed' AND subject_id = ?", [String(entryId)]);
+    expect(views.map((v) => JSON.parse(v.details).view)).toEqual(['toolpath_preview', 'toolpath_preview']);
   });
 
   it('shows judges what changed after a re-inspection, keeping both inspections', async () => {
