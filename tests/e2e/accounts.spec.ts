@@ -57,10 +57,10 @@ test('wrong password shows a message that does not tell whether the account exis
 
 test('each demo role sees its own navigation', async ({ browser }) => {
   const expected: Record<string, string[]> = {
-    entrant: ['My entries'],
-    judge: ['My entries', 'Review desk'],
-    organizer: ['My entries', 'Organize'],
-    admin: ['My entries', 'Users', 'Audit log', 'Outbox'],
+    entrant: ['My entries', 'Machines'],
+    judge: ['My entries', 'Machines', 'Review desk'],
+    organizer: ['My entries', 'Machines', 'Organize'],
+    admin: ['My entries', 'Machines', 'Users', 'Audit log', 'Outbox'],
   };
   for (const [key, labels] of Object.entries(expected)) {
     const ctx = await browser.newContext();
