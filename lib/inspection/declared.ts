@@ -183,6 +183,8 @@ const COMMA_KEYS = new Map<string, KeyRule>([
 /** CuraEngine's CLI writes these header values before it knows the real totals. */
 const CURA_PLACEHOLDER_TIME_S = 6666;
 
+const MAX_NOTES = 20;
+
 /** Largest SETTING_3 text kept (a front-end block is a few kB; refuse to grow without bound). */
 const MAX_SETTING3_CHARS = 256 * 1024;
 
@@ -211,12 +213,17 @@ export function createDeclaredSettingsReader(): DeclaredSettingsReader {
   let lastTimeElapsedS: number | null = null;
   let lastTimeElapsedLine = 0;
 
+  /** Notes are capped: a file repeating a bad line must not grow memory. */
+  function note(text: string): void {
+    if (notes.length < MAX_NOTES) notes.push(text);
+  }
+
   function put(rule: KeyRule, key: string, raw: string, lineNo: number): void {
     let value: number | string | null;
     if (rule.parse === 'text' || rule.parse === 'raw') value = raw.trim();
     else value = rule.parse(raw);
     if (value === null) {
-      if (notes.length < 20) notes.push(`Line ${lineNo}: could not read a number from "${key}".`);
+      note(`Line ${lineNo}: could not read a number from "${key}".`);
       return;
     }
     const prev = slots.get(rule.field);
@@ -277,7 +284,7 @@ export function createDeclaredSettingsReader(): DeclaredSettingsReader {
         } else if (text.startsWith('TIME:')) {
           curaHeaderSeen = true;
           const v = num(text.slice(5));
-          if (v === CURA_PLACEHOLDER_TIME_S) notes.push(`Line ${lineNo}: ";TIME:6666" is CuraEngine's placeholder, not an estimate.`);
+          if (v === CURA_PLACEHOLDER_TIME_S) note(`Line ${lineNo}: ";TIME:6666" is CuraEngine's placeholder, not an estimate.`);
           else if (v !== null) put({ field: 'estimated_time_s', parse: num, dialect: 'cura', rank: 0 }, 'TIME', text.slice(5), lineNo);
         }
         return;
@@ -286,7 +293,7 @@ export function createDeclaredSettingsReader(): DeclaredSettingsReader {
         else if (text.startsWith('Filament used:')) {
           curaHeaderSeen = true;
           const v = metresListSum(text.slice(14));
-          if (v === 0) notes.push(`Line ${lineNo}: ";Filament used: 0m" is CuraEngine's placeholder, not a total.`);
+          if (v === 0) note(`Line ${lineNo}: ";Filament used: 0m" is CuraEngine's placeholder, not a total.`);
           else if (v !== null) put({ field: 'filament_length_mm', parse: metresListSum, dialect: 'cura', rank: 0 }, 'Filament used', text.slice(14), lineNo);
         }
         return;
@@ -316,7 +323,7 @@ export function createDeclaredSettingsReader(): DeclaredSettingsReader {
 
   function parseSetting3(): void {
     if (setting3 === '') return;
-    if (setting3Truncated) notes.push('The SETTING_3 block was longer than 256 kB; only its start was read.');
+    if (setting3Truncated) note('The SETTING_3 block was longer than 256 kB; only its start was read.');
     // The block is JSON whose strings hold INI text with escaped newlines ("\\n").
     const text = setting3.replace(/\\\\n|\\n/g, '\n');
     for (const line of text.split('\n')) {

@@ -173,6 +173,11 @@ describe('declared settings on composed comment blocks', () => {
     expect(parseDurationS('soon')).toBeNull();
   });
 
+  it('keeps notes bounded when a bad line repeats', () => {
+    const d = feed(Array.from({ length: 5000 }, () => 'TIME:6666'));
+    expect(d.notes.length).toBe(20);
+  });
+
   it('keeps a huge SETTING_3 block bounded', () => {
     const r = createDeclaredSettingsReader();
     const chunk = 'SETTING_3 ' + 'x'.repeat(1000);
