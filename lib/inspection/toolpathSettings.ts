@@ -746,7 +746,8 @@ function summarise(
     infill_every_layers: 1,
     analysedLayers: 0,
     labelledWallAgreement: null,
-    warnings,
+    // A copy: result() may be called more than once.
+    warnings: [...warnings],
   };
   if (layers.length === 0 && steps.size === 0) return out;
 
@@ -840,6 +841,6 @@ function summarise(
     const nozzle = STANDARD_NOZZLES_MM.reduce((a, b) => (Math.abs(Math.log(spacing / b)) < Math.abs(Math.log(spacing / a)) ? b : a));
     out.nozzle_mm = { value: nozzle, detail: `Estimate: outer-wall extrusion spacing ${spacing.toFixed(3)} mm (all walls: width ${lw.toFixed(3)} mm) snapped to the nearest standard nozzle size; slicers let line width differ from the nozzle, so treat as a hint.` };
   }
-  if (columns.overflowed) warnings.push('Too many XY columns to follow; top/bottom counts use part of the bed.');
+  if (columns.overflowed) out.warnings.push('Too many XY columns to follow; top/bottom counts use part of the bed.');
   return out;
 }

@@ -108,6 +108,14 @@ describe('settings measured from toolpaths equal the sliced settings on every fi
     expect(m.analysedLayers).toBe(m.layers - 1); // all but the prime line's "layer" at Z 0.3
   });
 
+  it('result() can be called twice with the same answer', async () => {
+    const analyzer = createToolpathSettingsAnalyzer({ filamentDiameterMm: 1.75 });
+    const parser = new GcodeParser(analyzer);
+    await readFileLines(path.join(FIXTURES, 'gcode/prusa-twin-020.gcode.gz'), parser);
+    parser.end();
+    expect(analyzer.result()).toEqual(analyzer.result());
+  });
+
   it('copies stacked after a lift and a G92 Z shift (one tall part) give the same figures', async () => {
     const text = gunzipSync(readFileSync(path.join(FIXTURES, 'gcode/prusa-cube20-relative-e.gcode.gz'))).toString('latin1');
     const copy = (home: boolean) => (home ? text : text.replace(/^G28/gm, ';G28')) + '\nG90\nG1 Z50 F600\nG92 Z-5\n';
