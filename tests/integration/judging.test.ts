@@ -75,6 +75,9 @@ describe('season separation', () => {
     expect((await clients.judge.get(`/api/judging/entries/${leafEntry}`)).status).toBe(200);
     // An entry number that does not exist answers the same as one in another season.
     expect((await clients.judge2.get('/api/judging/entries/999999')).status).toBe(404);
+    // The review page answers the same way as its API.
+    expect((await clients.judge2.get(`/judging/entries/${leafEntry}`)).status).toBe(404);
+    expect((await clients.judge.get(`/judging/entries/${leafEntry}`)).status).toBe(200);
   });
 });
 
@@ -84,6 +87,7 @@ describe('who may decide', () => {
     expect(res.status).toBe(403);
     expect((await res.json()).error).toMatch(/own entry/);
     expect((await clients.judge2.get(`/api/judging/entries/${judge2Own}`)).status).toBe(403);
+    expect((await clients.judge2.get(`/judging/entries/${judge2Own}`)).status).toBe(403);
     const [row] = await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [judge2Own]);
     expect(row.state).toBe('submitted');
   });
