@@ -87,6 +87,8 @@ const MAX_LAYER_SEGMENTS = 400_000;
 /** Most layer records kept. */
 const MAX_LAYERS = 200_000;
 const Z_EPS_MM = 0.0015;
+/** Coordinates beyond ±10 m are not a printer's (bad input); such moves are ignored. */
+const MAX_COORD_MM = 10_000;
 /**
  * Grid cells across one line width. The fixtures and a sweep of 33 further slices give the same
  * figures at 1.6 and 2 (cell ≈ 0.28 mm for 0.45 mm lines); 1.6 costs 36 % fewer cells.
@@ -184,6 +186,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   let windowLeft = 0;
   let skippedLayers = 0;
   let analysedLayers = 0;
+  let absurdMoves = 0;
   let skipStoring = false;
   let nSkippedSeg = 0;
   let lastLayerCells = 0;
@@ -227,7 +230,11 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const dx = s.x1 - s.x0;
     const dy = s.y1 - s.y0;
     const lenXY = Math.sqrt(dx * dx + dy * dy);
-    if (lenXY < 1e-6) return;
+    if (!(lenXY >= 1e-6) || !Number.isFinite(lenXY) || !Number.isFinite(s.z1) || !Number.isFinite(s.eMm) || Math.abs(s.x0) > MAX_COORD_MM || Math.abs(s.y0) > MAX_COORD_MM || Math.abs(s.x1) > MAX_COORD_MM || Math.abs(s.y1) > MAX_COORD_MM) {
+      // Zero-length, non-finite or absurd (beyond any build volume) moves say nothing about settings.
+      if (lenXY >= 1e-6 && absurdMoves++ === 0 && warnings.length < 20) warnings.push(`Line ${s.lineNo}: a move with non-finite or out-of-range coordinates was left out of the settings analysis.`);
+      return;
+    }
     const z = s.z1;
     if (!(Math.abs(z - layerZ) <= Z_EPS_MM)) {
       // Moves that climb while extruding (spiral "vase" mode) stay on the current layer.

@@ -301,9 +301,26 @@ describe('settings analysis on bad or odd input', () => {
     expect(r.layers).toBe(0);
   });
 
-  it('a layer spread over kilometres is skipped with a warning, not rasterised', () => {
+  it('random and absurd moves (NaN, 1e308, negative filament) never throw and keep memory bounded', () => {
+    // Deterministic pseudo-random stream (LCG constants from Numerical Recipes).
+    let state = 12345;
+    const rnd = () => ((state = (state * 1664525 + 1013904223) >>> 0) / 2 ** 32);
+    const specials = [Number.NaN, Number.POSITIVE_INFINITY, -1e308, 1e308, 0, -5];
     const a = createToolpathSettingsAnalyzer({ filamentDiameterMm: 1.75 });
-    for (let i = 0; i < 30; i++) a.segment(seg({ x0: i * 1e5, x1: i * 1e5 + 10, y0: i, y1: i, lineNo: i }));
+    for (let i = 0; i < 20_000; i++) {
+      const pick = (v: number) => (rnd() < 0.02 ? specials[Math.floor(rnd() * specials.length)] : v);
+      const z = pick(0.2 * (1 + Math.floor(rnd() * 50)));
+      a.segment(seg({ x0: pick(rnd() * 200), y0: pick(rnd() * 200), x1: pick(rnd() * 200), y1: pick(rnd() * 200), z0: z, z1: z, eMm: pick(rnd() * 2 - 0.5), extruding: rnd() < 0.8, lineNo: i }));
+    }
+    expect(() => a.end?.()).not.toThrow();
+    const r = a.result();
+    expect(r.warnings.length).toBeLessThanOrEqual(21);
+    expect(r.warnings.join(' ')).toMatch(/out-of-range coordinates/);
+  });
+
+  it('a layer spread over metres in X and Y is skipped with a warning, not rasterised', () => {
+    const a = createToolpathSettingsAnalyzer({ filamentDiameterMm: 1.75 });
+    for (let i = 0; i < 30; i++) a.segment(seg({ x0: i * 300, x1: i * 300 + 10, y0: i * 300, y1: i * 300, lineNo: i }));
     a.end?.();
     const r = a.result();
     expect(r.warnings.join(' ')).toMatch(/too large to rasterise/);
