@@ -14,8 +14,9 @@ export interface SettingPair {
 }
 
 /**
- * What the metrics read from an inspection report. Structural: the engine's InspectionReport
- * (lib/inspection/report.ts) carries these fields under the same names as its JSON output.
+ * What the metrics read from an inspection report: the snake_case JSON form the engine produces
+ * (toJsonReport() in lib/inspection/report.ts, also what the CLI prints and the app stores).
+ * Structural, so a stored report read back from the database fits as well.
  */
 export interface MetricReport {
   filament?: { length_mm: number | null; volume_mm3?: number | null; mass_g?: number | null } | null;

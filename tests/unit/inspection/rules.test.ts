@@ -1,5 +1,6 @@
+import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { compare, evaluateRules, ruleSentence, RuleSchema, RulebookSchema, settingsMismatchFlags, type Rule } from '@/lib/inspection/rules';
+import { compare, evaluateRules, ruleSentence, RuleSchema, RulebookSchema, settingsMismatchFlags, type Rule, type RuleResult } from '@/lib/inspection/rules';
 import { METRICS, METRIC_IDS, metricById, type MetricReport } from '@/lib/inspection/metrics';
 import { FLAG_CODES } from '@/lib/inspection/plausibility';
 import type { SettingsEvidence } from '@/lib/inspection/types';
@@ -224,5 +225,41 @@ describe('metric list', () => {
     const codes = settingsMismatchFlags(evidence({ infill_percent: [0, 50], walls: [1, 9], top_layers: [1, 9], bottom_layers: [1, 9], layer_height_mm: [0.1, 0.3], nozzle_mm: [0.4, 0.8] })).map((f) => f.code);
     expect(codes).toHaveLength(6);
     for (const c of codes) expect(Object.keys(FLAG_CODES)).toContain(c);
+  });
+});
+
+describe('rules on real inspections (engine JSON from inspectFile)', () => {
+  // The demo season's rulebook against real slicer output (tests/fixtures/manifest.json gives the
+  // settings each file was sliced with; the Beacon STL measures 36 × 39 × 40 mm).
+  const book = RulebookSchema.parse([
+    { metric: 'infill_percent', comparator: 'eq', value: 15, tolerance: 2, severity: 'blocking' },
+    { metric: 'walls', comparator: 'eq', value: 2, severity: 'blocking' },
+    { metric: 'top_layers', comparator: 'eq', value: 4, severity: 'blocking' },
+    { metric: 'bottom_layers', comparator: 'eq', value: 4, severity: 'blocking' },
+    { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, severity: 'blocking' },
+    { metric: 'objects', comparator: 'eq', value: 1, severity: 'blocking' },
+    { metric: 'scale_percent', comparator: 'eq', value: 100, tolerance: 1, severity: 'blocking' },
+    { metric: 'feed_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
+    { metric: 'settings_mismatch', comparator: 'eq', value: 0, severity: 'advisory' },
+  ]);
+  const ctx = { testPieceSizeMm: { x: 36, y: 39, z: 40 } };
+
+  it('a conforming Beacon passes every rule, from measured figures', async () => {
+    const { inspectFile } = await import('@/lib/inspection/inspect');
+    const r = await inspectFile(path.resolve(__dirname, '../../fixtures/gcode/prusa-beacon-020-nocomments.gcode.gz'), { rules: book, ruleContext: ctx });
+    const results = r.rules as RuleResult[];
+    expect(results.map((x) => `${x.rule.metric}:${x.status}`)).toEqual(book.map((b) => `${b.metric}:${b.metric === 'settings_mismatch' ? 'unknown' : 'pass'}`));
+    // Stripped comments: nothing declared, so the settings come from the toolpaths.
+    expect(results.slice(0, 4).every((x) => x.source === 'measured')).toBe(true);
+  });
+
+  it('the lying Beacon (28 % layers, 3 walls, 25 % infill claimed as 2 walls, 15 %) fails on measured values', async () => {
+    const { inspectFile } = await import('@/lib/inspection/inspect');
+    const r = await inspectFile(path.resolve(__dirname, '../../fixtures/gcode/prusa-beacon-028-lying.gcode.gz'), { rules: book, ruleContext: ctx });
+    const by = new Map((r.rules as RuleResult[]).map((x) => [x.rule.metric, x]));
+    expect(by.get('infill_percent')!.status).toBe('fail');
+    expect(by.get('walls')!).toMatchObject({ status: 'fail', measured: 3, source: 'measured' });
+    expect(by.get('settings_mismatch')!).toMatchObject({ status: 'fail', measured: true });
+    expect(by.get('layer_height_mm')!.status).toBe('pass');
   });
 });
