@@ -197,7 +197,12 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
         </div>
         <div className="flex gap-2">
           <a className="btn-quiet" href={csvHref} download data-testid="csv-link">Download CSV</a>
-          <button type="button" className="btn-quiet" onClick={() => navigator.clipboard?.writeText(window.location.href).then(() => setCopied(true), () => setCopied(false))}>
+          <button type="button" className="btn-quiet" onClick={() => {
+              const href = window.location.href;
+              // The clipboard API needs a secure context; elsewhere show the link to copy by hand.
+              if (navigator.clipboard) navigator.clipboard.writeText(href).then(() => setCopied(true), () => window.prompt('Copy this link:', href));
+              else window.prompt('Copy this link:', href);
+            }}>
             {copied ? 'Link copied' : 'Copy link to this view'}
           </button>
         </div>
