@@ -406,6 +406,52 @@ export class GcodeParser implements LineSink {
     let stmtStart = start;
     while (i < end) {
       const c = buf[i];
+      // Letters first: they start most words, so the common case takes one test.
+      const letter = (c | 0x20) - 97; // lower-case, 0..25 for a letter
+      if (letter >= 0 && letter <= 25) {
+        // A first word that is a name, not a letter + number, is a text command (Klipper style).
+        if (this.firstWord && i + 1 < end) {
+          const n1 = buf[i + 1];
+          const n1l = n1 | 0x20;
+          if (n1 === UNDERSCORE || (n1l >= 97 && n1l <= 122)) {
+            i = this.textCommand(buf, i, end);
+            continue;
+          }
+        }
+        const wordAt = i;
+        i++;
+        const j = this.readNumber(buf, i, end, wordAt === start || buf[wordAt - 1] === SPACE || buf[wordAt - 1] === TAB);
+        const v = this.numVal;
+        if (j < 0) {
+          // Letter without a number, e.g. "G28 X Y": present, no value. Bad text right after it is malformed.
+          const nc = i < end ? buf[i] : SPACE;
+          if (!isTerminator(nc) && !isLetter(nc)) {
+            this.warn('malformed-number', `Line ${this.lineNo}: '${String.fromCharCode(letter + 65)}' is not followed by a valid number; word ignored.`);
+            i = skipWord(buf, i, end);
+            continue;
+          }
+          this.storeWord(letter, NaN);
+          continue;
+        }
+        const nc = j < end ? buf[j] : SPACE;
+        if (!isTerminator(nc) && !isLetter(nc)) {
+          this.warn(
+            'malformed-number',
+            `Line ${this.lineNo}: malformed number '${buf.toString('latin1', i, Math.min(skipWord(buf, j, end), i + 32))}' for ${String.fromCharCode(letter + 65)}; word ignored.`,
+          );
+          i = skipWord(buf, j, end);
+          continue;
+        }
+        i = j;
+        if (letter === L_M && this.firstWord && isTextArgMcode(v)) {
+          // M117 and friends carry free text: stop parsing words.
+          this.storeWord(letter, v);
+          i = end;
+          continue;
+        }
+        this.storeWord(letter, v);
+        continue;
+      }
       if (c === SPACE || c === TAB) {
         i++;
         continue;
@@ -441,54 +487,8 @@ export class GcodeParser implements LineSink {
         i = this.checksum(buf, stmtStart, i, end);
         continue;
       }
-      let letter = c | 0x20; // lower-case
-      if (letter < 97 || letter > 122) {
-        this.warn('bad-character', `Line ${this.lineNo}: unexpected character '${String.fromCharCode(c)}' ignored.`);
-        i = skipWord(buf, i, end);
-        continue;
-      }
-      letter -= 97;
-      // A first word that is a name, not a letter + number, is a text command (Klipper style).
-      if (this.firstWord && i + 1 < end) {
-        const n1 = buf[i + 1];
-        const n1l = n1 | 0x20;
-        if (n1 === UNDERSCORE || (n1l >= 97 && n1l <= 122)) {
-          i = this.textCommand(buf, i, end);
-          continue;
-        }
-      }
-      const wordAt = i;
-      i++;
-      const j = this.readNumber(buf, i, end, wordAt === start || buf[wordAt - 1] === SPACE || buf[wordAt - 1] === TAB);
-      const v = this.numVal;
-      if (j < 0) {
-        // Letter without a number, e.g. "G28 X Y": present, no value. Bad text right after it is malformed.
-        const nc = i < end ? buf[i] : SPACE;
-        if (!isTerminator(nc) && !isLetter(nc)) {
-          this.warn('malformed-number', `Line ${this.lineNo}: '${String.fromCharCode(letter + 65)}' is not followed by a valid number; word ignored.`);
-          i = skipWord(buf, i, end);
-          continue;
-        }
-        this.storeWord(letter, NaN);
-        continue;
-      }
-      const nc = j < end ? buf[j] : SPACE;
-      if (!isTerminator(nc) && !isLetter(nc)) {
-        this.warn(
-          'malformed-number',
-          `Line ${this.lineNo}: malformed number '${buf.toString('latin1', i, Math.min(skipWord(buf, j, end), i + 32))}' for ${String.fromCharCode(letter + 65)}; word ignored.`,
-        );
-        i = skipWord(buf, j, end);
-        continue;
-      }
-      i = j;
-      if (letter === L_M && this.firstWord && isTextArgMcode(v)) {
-        // M117 and friends carry free text: stop parsing words.
-        this.storeWord(letter, v);
-        i = end;
-        continue;
-      }
-      this.storeWord(letter, v);
+      this.warn('bad-character', `Line ${this.lineNo}: unexpected character '${String.fromCharCode(c)}' ignored.`);
+      i = skipWord(buf, i, end);
     }
     this.execute();
   }
@@ -528,22 +528,21 @@ export class GcodeParser implements LineSink {
       neg = buf[i] === MINUS;
       i++;
     }
-    // One pass: all digits into an integer mantissa, counting those after the dot; one division
-    // at the end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits).
+    // One pass: all digits into an integer mantissa; the dot's position gives the fraction digit
+    // count afterwards, so each digit costs one range test and a multiply-add. One division at the
+    // end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits).
     let mant = 0;
-    let digits = 0;
-    let fd = -1;
+    const numStart = i;
+    let dotAt = -1;
     while (i < end) {
-      const c = buf[i];
-      if (c >= D0 && c <= D9) {
-        mant = mant * 10 + (c - D0);
-        digits++;
-        if (fd >= 0) fd++;
-      } else if (c === DOT && fd < 0) {
-        fd = 0;
-      } else break;
+      const d = buf[i] - D0;
+      if (d >= 0 && d <= 9) mant = mant * 10 + d;
+      else if (d === DOT - D0 && dotAt < 0) dotAt = i;
+      else break;
       i++;
     }
+    const fd = dotAt >= 0 ? i - dotAt - 1 : -1;
+    const digits = dotAt >= 0 ? i - numStart - 1 : i - numStart;
     let v = fd > 0 ? (fd < POW10.length ? mant / POW10[fd] : mant / Math.pow(10, fd)) : mant;
     if (digits === 0) {
       this.numVal = NaN;
