@@ -15,7 +15,7 @@ import { createGunzip } from 'node:zlib';
 
 /** Longest line kept; the rest of a longer line is dropped with a warning. */
 export const MAX_LINE_BYTES = 64 * 1024;
-/** Read size for plain files; one reused buffer. */
+/** Read size for plain files (one reused buffer) and for compressed input and its inflated chunks. */
 const CHUNK_BYTES = 1024 * 1024;
 
 export type InspectionErrorCode =
@@ -214,7 +214,7 @@ export async function readFileLines(path: string, sink: LineSink): Promise<ReadS
     await fh.read(head, 0, 2, 0);
     if (isGzipStart(head)) {
       await fh.close();
-      return await readStreamLines(createReadStream(path, { highWaterMark: 256 * 1024 }), sink);
+      return await readStreamLines(createReadStream(path, { highWaterMark: CHUNK_BYTES }), sink);
     }
     const splitter = new LineSplitter(sink);
     const buf = Buffer.allocUnsafe(CHUNK_BYTES);
@@ -268,7 +268,9 @@ export async function readStreamLines(input: Readable, sink: LineSink): Promise<
   const source = Readable.from(raw(), { objectMode: false });
   try {
     if (gzip) {
-      const gunzip = createGunzip();
+      // Output chunks of CHUNK_BYTES instead of zlib's 16 KB default: measured on an 11 MB .gz of
+      // the 100 MB bench stack, inflating took 0.25 s CPU at 16 KB and 0.11 s at 1 MB, same peak RSS.
+      const gunzip = createGunzip({ chunkSize: CHUNK_BYTES });
       // pipeline() carries backpressure and tears both streams down when the consumer stops early.
       const piped = pipeline(source, gunzip);
       piped.catch(() => undefined);
