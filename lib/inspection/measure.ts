@@ -324,16 +324,27 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     else if (layerIndex >= 0) this.layerTime[layerIndex] += timeS;
     else this.beforeFirstS += timeS;
     // Time series bucket at the move's start time; double the bucket length when the series is full.
-    let b = Math.floor(this.plannedT / this.tsBucketS);
-    while (b >= TIME_SERIES_POINTS) {
-      this.mergeBuckets();
+    // The bucket index only changes when the time passes the current bucket's end, so the division
+    // is skipped for most moves (bucket lengths are powers of two: the index and end are exact).
+    let b = this.tsCur;
+    if (!(this.plannedT < this.tsCurEndS)) {
       b = Math.floor(this.plannedT / this.tsBucketS);
+      while (b >= TIME_SERIES_POINTS) {
+        this.mergeBuckets();
+        b = Math.floor(this.plannedT / this.tsBucketS);
+      }
+      this.tsCur = b;
+      this.tsCurEndS = (b + 1) * this.tsBucketS;
     }
     if (b >= this.tsN) this.tsN = b + 1;
     if (flowMm3s > this.tsMax[b]) this.tsMax[b] = flowMm3s;
     this.tsVol[b] += flowMm3s * timeS;
     this.plannedT += timeS;
   }
+
+  /** Bucket of the current time and the time it ends (s); −Infinity end until the first move. */
+  private tsCur = 0;
+  private tsCurEndS = -Infinity;
 
   private mergeBuckets(): void {
     const half = TIME_SERIES_POINTS / 2;
@@ -346,6 +357,7 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     this.tsVol.fill(0, half);
     this.tsBucketS *= 2;
     this.tsN = Math.ceil(this.tsN / 2);
+    this.tsCurEndS = -Infinity;
   }
 
   /** Per-move figures for extrusion(), as fields so no double is boxed per call (see planner.nextFlowMm3s). */
@@ -478,21 +490,16 @@ export class Measurements implements MotionSink, PlannedMoveSink {
     const dy = n > 0 ? (y1 - y0) / n : 0;
     // Both ends inside the grid: no clamping in the loop, and truncation is floor for positives.
     const inside = x0 >= 0 && y0 >= 0 && x1 >= 0 && y1 >= 0 && x0 < GRID_N && x1 < GRID_N && y0 < GRID_N && y1 < GRID_N;
-    let last = -1;
+    // Two loops rather than a test per sample (an extruding move averages ~7 samples). Marking a
+    // cell again is harmless, so the inside loop does not track the previous cell.
+    if (inside) {
+      for (let k = 0; k <= n; k++) g[((y0 + dy * k) | 0) * GRID_N + ((x0 + dx * k) | 0)] |= bit;
+      return;
+    }
     for (let k = 0; k <= n; k++) {
-      let i: number;
-      let j: number;
-      if (inside) {
-        i = (x0 + dx * k) | 0;
-        j = (y0 + dy * k) | 0;
-      } else {
-        i = Math.min(GRID_N - 1, Math.max(0, Math.floor(x0 + dx * k)));
-        j = Math.min(GRID_N - 1, Math.max(0, Math.floor(y0 + dy * k)));
-      }
-      const c = j * GRID_N + i;
-      if (c === last) continue;
-      last = c;
-      g[c] |= bit;
+      const i = Math.min(GRID_N - 1, Math.max(0, Math.floor(x0 + dx * k)));
+      const j = Math.min(GRID_N - 1, Math.max(0, Math.floor(y0 + dy * k)));
+      g[j * GRID_N + i] |= bit;
     }
   }
 
