@@ -7,7 +7,7 @@ import exifr from 'exifr';
 import { gunzipSync } from 'node:zlib';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
-import { DEMO_PASSWORD, demoEmail } from '../support/demo';
+import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
@@ -15,7 +15,8 @@ const FIXTURES = path.resolve(__dirname, '..', 'fixtures', 'gcode');
 const gcode020 = fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'));
 const gcode028 = fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-028.gcode.gz'));
 
-const sasha = new Client(base);
+// Its own account: other test files add entries for the demo entrants on the same server.
+let maker: Client & { email: string };
 const pim = new Client(base);
 const anonymous = new Client(base);
 
@@ -62,7 +63,7 @@ async function waitForInspection(c: Client, entryId: number) {
 const count = async (table: string) => (await sql<{ n: number }>(dbFile, `SELECT COUNT(*) AS n FROM ${table}`))[0].n;
 
 beforeAll(async () => {
-  expect((await sasha.signIn(demoEmail('sasha'), DEMO_PASSWORD)).status).toBe(200);
+  maker = await freshEntrant(base, dbFile, 'Test Maker');
   expect((await pim.signIn(demoEmail('pim'), DEMO_PASSWORD)).status).toBe(200);
   const seasons = await sql<{ id: number; slug: string }>(dbFile, 'SELECT id, slug FROM seasons');
   seasonId = seasons.find((s) => s.slug === 'frostbite-sprint')!.id;
@@ -75,17 +76,17 @@ beforeAll(async () => {
 
 describe('machines and extrusion-limit tests', () => {
   it('an entrant registers a machine; field errors come back by name', async () => {
-    const bad = await sasha.post('/api/entrant/machines', { name: '', motionSystem: 'hexapod', buildXMm: 5 });
+    const bad = await maker.post('/api/entrant/machines', { name: '', motionSystem: 'hexapod', buildXMm: 5 });
     expect(bad.status).toBe(400);
     const fields = (await bad.json()).fields;
     expect(Object.keys(fields)).toEqual(expect.arrayContaining(['name', 'motionSystem', 'buildXMm']));
-    const res = await sasha.post('/api/entrant/machines', { name: 'Test Rig 250', motionSystem: 'corexy', buildXMm: 250, buildYMm: 250, buildZMm: 240, nozzleMm: 0.4, hotend: 'Test hotend', isModified: false });
+    const res = await maker.post('/api/entrant/machines', { name: 'Test Rig 250', motionSystem: 'corexy', buildXMm: 250, buildYMm: 250, buildZMm: 240, nozzleMm: 0.4, hotend: 'Test hotend', isModified: false });
     expect(res.status).toBe(201);
     machineId = (await res.json()).id;
   });
 
   it('records an extrusion-limit test and computes the limit', async () => {
-    const res = await sasha.post(`/api/entrant/machines/${machineId}/extrusion-tests`, {
+    const res = await maker.post(`/api/entrant/machines/${machineId}/extrusion-tests`, {
       materialFamily: 'pla', filamentDiameterMm: 1.75, sampleLengthMm: 100, referenceMassG: 0.3,
       steps: [{ rateMm3s: 20, massG: 0.3 }, { rateMm3s: 30, massG: 0.297 }, { rateMm3s: 40, massG: 0.29 }],
     });
@@ -113,7 +114,7 @@ describe('uploads are checked before anything is kept', () => {
   it('a PNG renamed to .gcode is refused and nothing is created', async () => {
     const before = [await count('entries'), await count('stored_files')];
     const png = await sharp({ create: { width: 20, height: 20, channels: 3, background: '#000' } }).png().toBuffer();
-    const res = await postForm(sasha, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.gcode', data: png }, { field: 'photos', name: 'a.jpg', data: await photo() }]));
+    const res = await postForm(maker, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.gcode', data: png }, { field: 'photos', name: 'a.jpg', data: await photo() }]));
     expect(res.status).toBe(415);
     const body = await res.json();
     expect(body.fields.gcode).toMatch(/is a PNG image, not G-code/);
@@ -121,13 +122,13 @@ describe('uploads are checked before anything is kept', () => {
   });
 
   it('binary G-code is refused with how to export text', async () => {
-    const res = await postForm(sasha, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.bgcode', data: Buffer.concat([Buffer.from('GCDE'), Buffer.alloc(64, 1)]) }]));
+    const res = await postForm(maker, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.bgcode', data: Buffer.concat([Buffer.from('GCDE'), Buffer.alloc(64, 1)]) }]));
     expect(res.status).toBe(415);
     expect((await res.json()).fields.gcode).toMatch(/binary G-code.*plain-text/);
   });
 
   it('an upload declaring more than the limit is refused with 413 before the body is read', async () => {
-    const cookie = (sasha as unknown as { cookieHeader(): string }).cookieHeader();
+    const cookie = (maker as unknown as { cookieHeader(): string }).cookieHeader();
     const status = await new Promise<number>((resolve, reject) => {
       const u = new URL(`${base}/api/entries`);
       const req = http.request({ hostname: u.hostname, port: u.port, path: u.pathname, method: 'POST', headers: { cookie, 'content-type': 'multipart/form-data; boundary=xyz', 'content-length': String(2 * 1024 ** 3) } }, (res) => {
@@ -144,14 +145,14 @@ describe('uploads are checked before anything is kept', () => {
 
   it('a photo over the per-file limit is refused with 413', async () => {
     const big = Buffer.concat([Buffer.from([0xff, 0xd8, 0xff, 0xe0]), Buffer.alloc(21 * 1024 * 1024, 3)]);
-    const res = await postForm(sasha, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }, { field: 'photos', name: 'huge.jpg', data: big }]));
+    const res = await postForm(maker, '/api/entries', form(details(), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }, { field: 'photos', name: 'huge.jpg', data: big }]));
     expect(res.status).toBe(413);
     expect((await res.json()).error).toMatch(/limit/);
   });
 
   it('an interrupted upload leaves no entry and no stored file', async () => {
     const before = [await count('entries'), await count('stored_files')];
-    const cookie = (sasha as unknown as { cookieHeader(): string }).cookieHeader();
+    const cookie = (maker as unknown as { cookieHeader(): string }).cookieHeader();
     const boundary = 'cutoff';
     const head = Object.entries(details()).map(([k, v]) => `--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`).join('') +
       `--${boundary}\r\nContent-Disposition: form-data; name="gcode"; filename="beacon.gcode.gz"\r\nContent-Type: application/gzip\r\n\r\n`;
@@ -171,14 +172,14 @@ describe('uploads are checked before anything is kept', () => {
   });
 
   it('a season that is not open refuses entries with 409', async () => {
-    const res = await postForm(sasha, '/api/entries', form(details({ seasonId: String(leafSeasonId), classId: String(leafClassId) }), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }]));
+    const res = await postForm(maker, '/api/entries', form(details({ seasonId: String(leafSeasonId), classId: String(leafClassId) }), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }]));
     expect(res.status).toBe(409);
     expect((await res.json()).error).toMatch(/not open for entries/);
   });
 
   it('a class the machine is not eligible for is refused with the reason', async () => {
     const wide = (await sql<{ id: number }>(dbFile, "SELECT id FROM classes WHERE season_id = ? AND slug = 'wide-06'", [seasonId]))[0].id;
-    const res = await postForm(sasha, '/api/entries', form(details({ classId: String(wide) }), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }]));
+    const res = await postForm(maker, '/api/entries', form(details({ classId: String(wide) }), [{ field: 'gcode', name: 'beacon.gcode.gz', data: gcode020 }]));
     expect(res.status).toBe(422);
     expect((await res.json()).fields.classId).toMatch(/0\.6 mm or wider/);
   });
@@ -189,14 +190,14 @@ describe('an entry from upload to submission', () => {
   let gcodeFileId: number;
 
   it('creates a draft from one upload and inspects it off the request thread', async () => {
-    const res = await postForm(sasha, '/api/entries', form(details(), [
+    const res = await postForm(maker, '/api/entries', form(details(), [
       { field: 'gcode', name: 'beacon-028.gcode.gz', data: gcode028 },
       { field: 'photos', name: 'front.jpg', data: await photo(), type: 'image/jpeg' },
       { field: 'photos', name: 'window.jpg', data: await photo(), type: 'image/jpeg' },
     ]));
     expect(res.status).toBe(201);
     entryId = (await res.json()).id;
-    const { inspection, blockers } = await waitForInspection(sasha, entryId);
+    const { inspection, blockers } = await waitForInspection(maker, entryId);
     expect(inspection.status).toBe('done');
     // prusa-beacon-028 was sliced with 3 walls, 25 % infill, 5 top / 3 bottom layers (tests/fixtures/manifest.json).
     const failing = inspection.ruleResults.filter((r: { status: string }) => r.status === 'fail').map((r: { rule: { metric: string } }) => r.rule.metric);
@@ -210,7 +211,7 @@ describe('an entry from upload to submission', () => {
   });
 
   it('blocking failures prevent submitting', async () => {
-    const res = await sasha.post(`/api/entries/${entryId}/submit`, {});
+    const res = await maker.post(`/api/entries/${entryId}/submit`, {});
     expect(res.status).toBe(422);
     expect((await res.json()).error).toMatch(/blocking/);
   });
@@ -230,13 +231,13 @@ describe('an entry from upload to submission', () => {
   });
 
   it('photos are served without location data; the capture time is kept', async () => {
-    const view = await (await sasha.get(`/api/entries/${entryId}`)).json();
+    const view = await (await maker.get(`/api/entries/${entryId}`)).json();
     expect(view.files.photos).toHaveLength(2);
     const p = view.files.photos[0];
     expect(p.capturedAt).toBe('2026-11-28T09:15:00');
     expect(p.locationRemoved).toBe(true);
     for (const url of [p.url, p.thumbnailUrl]) {
-      const res = await sasha.get(url);
+      const res = await maker.get(url);
       expect(res.status).toBe(200);
       const bytes = Buffer.from(await res.arrayBuffer());
       // exifr: an independent EXIF reader finds no GPS in what is served.
@@ -245,9 +246,9 @@ describe('an entry from upload to submission', () => {
   });
 
   it('a compliant G-code fixes the blocking failures; the entry submits and mails a confirmation', async () => {
-    const res = await postForm(sasha, `/api/entries/${entryId}/files`, form({}, [{ field: 'gcode', name: 'beacon-020.gcode.gz', data: gcode020 }]));
+    const res = await postForm(maker, `/api/entries/${entryId}/files`, form({}, [{ field: 'gcode', name: 'beacon-020.gcode.gz', data: gcode020 }]));
     expect(res.status).toBe(200);
-    const { inspection, blockers } = await waitForInspection(sasha, entryId);
+    const { inspection, blockers } = await waitForInspection(maker, entryId);
     expect(inspection.fileName).toBe('beacon-020.gcode.gz');
     expect(inspection.blockingFailures).toBe(0);
     expect(blockers).toEqual([]);
@@ -255,10 +256,10 @@ describe('an entry from upload to submission', () => {
     expect(inspection.figures.estimatedTimeS).toBeGreaterThan(1427 * 0.9);
     expect(inspection.figures.estimatedTimeS).toBeLessThan(1427 * 1.1);
     expect(inspection.flowSeries.maxMm3s.length).toBeGreaterThan(10);
-    const sub = await sasha.post(`/api/entries/${entryId}/submit`, {});
+    const sub = await maker.post(`/api/entries/${entryId}/submit`, {});
     expect(sub.status).toBe(200);
     expect((await sub.json()).state).toBe('submitted');
-    const mail = await sql<{ subject: string; text: string }>(dbFile, 'SELECT subject, text FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [demoEmail('sasha')]);
+    const mail = await sql<{ subject: string; text: string }>(dbFile, 'SELECT subject, text FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [maker.email]);
     expect(mail[0].subject).toMatch(new RegExp(`Entry received: Frostbite Sprint .* \\(entry #${entryId}\\)`));
     expect(mail[0].text).toContain(`/me/entries/${entryId}`);
     const audit = await sql<{ action: string }>(dbFile, "SELECT action FROM audit_events WHERE subject_type = 'entry' AND subject_id = ? ORDER BY id", [String(entryId)]);
@@ -273,50 +274,50 @@ describe('an entry from upload to submission', () => {
     const { inspection } = await waitForInspection(pim, (await res.json()).id);
     expect(inspection.flags.map((f: { code: string }) => f.code)).toContain('duplicate_gcode');
     expect(inspection.blockingFailures).toBeGreaterThan(0);
-    // And pim still cannot read sasha's G-code.
+    // And pim still cannot read the maker's G-code.
     expect((await pim.get(`/api/files/${gcodeFileId}`)).status).toBe(404);
   });
 
   it('a submitted entry can be withdrawn, with an e-mail', async () => {
-    const res = await sasha.post(`/api/entries/${entryId}/withdraw`, {});
+    const res = await maker.post(`/api/entries/${entryId}/withdraw`, {});
     expect(res.status).toBe(200);
     expect((await res.json()).state).toBe('withdrawn');
-    const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [demoEmail('sasha')]);
+    const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [maker.email]);
     expect(mail[0].subject).toMatch(/^Entry withdrawn/);
-    expect((await sasha.post(`/api/entries/${entryId}/submit`, {})).status).toBe(409);
+    expect((await maker.post(`/api/entries/${entryId}/submit`, {})).status).toBe(409);
   });
 });
 
 describe('a returned entry', () => {
   it('is resubmitted only with new files, re-inspected, and mailed', async () => {
     // Own copy of the compliant G-code (one comment added), so it is not a duplicate of another entrant's upload.
-    const own = Buffer.concat([gunzipSync(gcode020), Buffer.from('\n; sasha resubmission copy\n')]);
-    const res = await postForm(sasha, '/api/entries', form(details(), [
+    const own = Buffer.concat([gunzipSync(gcode020), Buffer.from('\n; maker resubmission copy\n')]);
+    const res = await postForm(maker, '/api/entries', form(details(), [
       { field: 'gcode', name: 'beacon.gcode', data: own, type: 'text/plain' },
       { field: 'photos', name: 'front.jpg', data: await photo() },
       { field: 'photos', name: 'side.png', data: await sharp({ create: { width: 300, height: 300, channels: 3, background: '#fff' } }).png().toBuffer() },
     ]));
     expect(res.status).toBe(201);
     const id = (await res.json()).id;
-    expect((await waitForInspection(sasha, id)).inspection.blockingFailures).toBe(0);
+    expect((await waitForInspection(maker, id)).inspection.blockingFailures).toBe(0);
     // Details can change while a draft; a bad time is explained next to its field.
-    const bad = await sasha.put(`/api/entries/${id}`, details({ claimedTime: 'quick' }));
+    const bad = await maker.put(`/api/entries/${id}`, details({ claimedTime: 'quick' }));
     expect(bad.status).toBe(400);
     expect((await bad.json()).fields.claimedTime).toMatch(/h:mm:ss\.t/);
-    expect((await sasha.post(`/api/entries/${id}/submit`, {})).status).toBe(200);
+    expect((await maker.post(`/api/entries/${id}/submit`, {})).status).toBe(200);
     // A judge returns it (the judging side's act, arranged directly here).
     await sql(dbFile, "UPDATE entries SET state = 'returned', decided_at = datetime('now', '+1 second') WHERE id = ?", [id]);
     await new Promise((r) => setTimeout(r, 1500));
-    const early = await sasha.post(`/api/entries/${id}/submit`, {});
+    const early = await maker.post(`/api/entries/${id}/submit`, {});
     expect(early.status).toBe(422);
     expect((await early.json()).error).toMatch(/returned: upload the corrected files/);
-    const up = await postForm(sasha, `/api/entries/${id}/files`, form({}, [{ field: 'photos', name: 'better-1.jpg', data: await photo() }, { field: 'photos', name: 'better-2.jpg', data: await photo(false) }]));
+    const up = await postForm(maker, `/api/entries/${id}/files`, form({}, [{ field: 'photos', name: 'better-1.jpg', data: await photo() }, { field: 'photos', name: 'better-2.jpg', data: await photo(false) }]));
     expect(up.status).toBe(200);
-    const view = await (await sasha.get(`/api/entries/${id}`)).json();
+    const view = await (await maker.get(`/api/entries/${id}`)).json();
     expect(view.files.photos.map((p: { name: string }) => p.name)).toEqual(['better-1.jpg', 'better-2.jpg']);
-    const again = await sasha.post(`/api/entries/${id}/submit`, {});
+    const again = await maker.post(`/api/entries/${id}/submit`, {});
     expect(again.status).toBe(200);
-    const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [demoEmail('sasha')]);
+    const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [maker.email]);
     expect(mail[0].subject).toMatch(/^Entry resubmitted: Frostbite Sprint/);
     // The replaced photos stay for the judges but are no longer the owner's current set or public.
     const replaced = await sql<{ id: number }>(dbFile, "SELECT id FROM stored_files WHERE entry_id = ? AND kind = 'photo' AND json_extract(meta, '$.replacedAt') IS NOT NULL", [id]);

@@ -9,3 +9,21 @@ export function linkIn(text: string, pathPrefix: string): string {
   if (!m) throw new Error(`No ${pathPrefix} link in:\n${text}`);
   return m[1];
 }
+
+/**
+ * A new, confirmed entrant account of its own, signed in: for tests that must not share limits or
+ * state (entry limits per entrant and class) with other test files on the same server.
+ */
+export async function freshEntrant(base: string, dbFile: string, name: string) {
+  const { Client } = await import('./client');
+  const { sql } = await import('./db');
+  const email = `${name.toLowerCase().replace(/\W+/g, '.')}.${Date.now()}.${Math.floor(Math.random() * 1e6)}@example.org`;
+  const password = 'fresh-entrant-password';
+  const c = new Client(base);
+  const res = await c.post('/api/account/signup', { name, email, password });
+  if (res.status !== 202) throw new Error(`sign-up failed: ${res.status}`);
+  await sql(dbFile, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
+  const signin = await c.signIn(email, password);
+  if (signin.status !== 200) throw new Error(`sign-in failed: ${signin.status}`);
+  return Object.assign(c, { email });
+}
