@@ -5,6 +5,7 @@
  */
 import { FlowChart } from '@/components/charts/FlowChart';
 import type { InspectionJson } from '@/lib/entries/inspection';
+import { formatRuleMeasured } from '@/lib/inspection/rules';
 
 const STATUS_TONE = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' } as const;
 const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
@@ -70,7 +71,7 @@ export function InspectionReport({ inspection, limitMm3s = null, audience = 'ent
                 <tr key={i} data-status={r.status}>
                   <td><span className={`pill ${STATUS_TONE[r.status]}`}>{r.status}</span>{r.rule.severity === 'advisory' && <span className="ml-1 text-xs text-ink-500">advisory</span>}</td>
                   <td>{r.message.split(/ (Passes|Fails|Not checked):/)[0]}</td>
-                  <td className="num">{r.measured === null ? '—' : typeof r.measured === 'boolean' ? (r.measured ? 'yes' : 'no') : +Number(r.measured).toFixed(3)}</td>
+                  <td className="num">{formatRuleMeasured(r.rule?.metric, r.measured)}</td>
                   <td className="text-xs text-ink-600">{r.source ? SOURCE_LABEL[r.source] ?? r.source : r.message.includes('Not checked') ? r.message.split('Not checked: ')[1] : '—'}</td>
                 </tr>
               ))}

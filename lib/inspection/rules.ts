@@ -170,3 +170,11 @@ export function evaluateRules(rules: readonly Rule[], report: MetricReport, ctx?
 }
 
 export type { MetricId };
+
+/** A rule result's measured value for people: units and sensible decimals, '—' when unknown. */
+export function formatRuleMeasured(metricId: string | undefined, v: number | boolean | null | undefined): string {
+  if (v === null || v === undefined) return '—';
+  const metric = metricId ? metricById(metricId) : undefined;
+  if (!metric) return typeof v === 'boolean' ? (v ? 'yes' : 'no') : String(+v.toFixed(3));
+  return formatMetricValue(metric, v);
+}

@@ -12,6 +12,7 @@ import { DECIDABLE_STATES } from '@/lib/reviews/schemas';
 import { MOTION_SYSTEM_LABELS, type MotionSystem, type ReviewDecision } from '@/lib/domain';
 import { formatDurationMs, formatDateTime } from '@/lib/format';
 import { StatePill } from '@/components/StatePill';
+import { formatRuleMeasured } from '@/lib/inspection/rules';
 import { PhotoGallery } from '@/components/judging/PhotoGallery';
 import { LayerPreview } from '@/components/judging/LayerPreview';
 import { FlowChart } from '@/components/charts/FlowChart';
@@ -117,7 +118,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
                 <thead><tr><th>Rule</th><th>Severity</th><th>Measured</th><th>Result</th></tr></thead>
                 <tbody>
                   {insp.ruleResults.map((x, i) => (
-                    <tr key={i}><td>{x.rule?.sentence || x.message}</td><td>{x.rule?.severity}</td><td className="num">{x.measured === null || x.measured === undefined ? '—' : String(x.measured)}</td><td><span className={`pill ${STATUS_TONE[x.status] ?? ''}`}>{x.status}</span></td></tr>
+                    <tr key={i}><td>{x.rule?.sentence || x.message}</td><td>{x.rule?.severity}</td><td className="num">{formatRuleMeasured(x.rule?.metric, x.measured as number | boolean | null | undefined)}</td><td><span className={`pill ${STATUS_TONE[x.status] ?? ''}`}>{x.status}</span></td></tr>
                   ))}
                 </tbody>
               </table>
