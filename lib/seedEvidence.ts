@@ -27,7 +27,7 @@ const EVIDENCE: { who: string; season: string; state: string; gcode: string; rea
   { who: 'pim', season: 'frostbite-sprint', state: 'verified', gcode: 'cura-beacon-020.gcode.gz', reasons: ['evidence_consistent', 'quality_acceptable'] },
   { who: 'sasha', season: 'frostbite-sprint', state: 'submitted', gcode: 'slic3r-beacon-020.gcode.gz' },
   { who: 'judge2', season: 'frostbite-sprint', state: 'submitted', gcode: 'prusa-beacon-020-nocomments.gcode.gz' },
-  { who: 'entrant', season: 'frostbite-sprint', state: 'returned', gcode: 'prusa-beacon-nozzle06-030.gcode.gz', reasons: ['rulebook_breach'], note: 'The file has 3 bottom layers; the rulebook asks for 4. Re-slice and upload again.' },
+  { who: 'entrant', season: 'frostbite-sprint', state: 'returned', gcode: 'prusa-beacon-nozzle06-030.gcode.gz', reasons: ['rulebook_breach'], note: 'The file prints 20 % infill and 3 bottom layers; the rulebook asks for 15 % and 4. Re-slice and upload again.' },
   { who: 'pim', season: 'frostbite-sprint', state: 'rejected', gcode: 'prusa-beacon-028.gcode.gz', reasons: ['time_below_estimate', 'rulebook_breach'], note: 'Claimed time is under what the file allows, and it prints 3 walls at 25 % infill.' },
   { who: 'pim', season: 'leaf-fall-dash', state: 'verified', gcode: 'cura-beacon-020.gcode.gz', reasons: ['evidence_consistent'] },
   { who: 'entrant', season: 'leaf-fall-dash', state: 'verified', gcode: 'prusa-beacon-020.gcode.gz', reasons: ['evidence_consistent'] },
