@@ -217,15 +217,31 @@ export async function readFileLines(path: string, sink: LineSink): Promise<ReadS
       return await readStreamLines(createReadStream(path, { highWaterMark: CHUNK_BYTES }), sink);
     }
     const splitter = new LineSplitter(sink);
-    const buf = Buffer.allocUnsafe(CHUNK_BYTES);
-    let offset = 0;
-    for (;;) {
-      const { bytesRead } = await fh.read(buf, 0, CHUNK_BYTES, offset).catch((err: NodeJS.ErrnoException) => {
+    // Two buffers: the next chunk is read (on libuv's thread pool) while this one is parsed, so
+    // reading and parsing overlap on a two-core machine. The splitter copies a line that spans
+    // chunks into its own carry buffer, so a buffer may be refilled once push() has returned.
+    const bufs = [Buffer.allocUnsafe(CHUNK_BYTES), Buffer.allocUnsafe(CHUNK_BYTES)];
+    const readAt = (b: Buffer, at: number) =>
+      fh.read(b, 0, CHUNK_BYTES, at).catch((err: NodeJS.ErrnoException) => {
         throw new InspectionError('unreadable', `Cannot read ${path}: ${err.message}`);
       });
-      if (bytesRead === 0) break;
-      offset += bytesRead;
-      splitter.push(bytesRead === CHUNK_BYTES ? buf : buf.subarray(0, bytesRead));
+    let offset = 0;
+    let cur = 0;
+    let pending = readAt(bufs[0], 0);
+    try {
+      for (;;) {
+        const { bytesRead } = await pending;
+        if (bytesRead === 0) break;
+        const buf = bufs[cur];
+        offset += bytesRead;
+        cur ^= 1;
+        pending = readAt(bufs[cur], offset);
+        splitter.push(bytesRead === CHUNK_BYTES ? buf : buf.subarray(0, bytesRead));
+      }
+    } catch (err) {
+      // Let the read in flight finish before the handle is closed.
+      await pending.catch(() => undefined);
+      throw err;
     }
     splitter.end();
     return { bytesIn: offset, bytesText: splitter.bytes, gzip: false, lines: splitter.lines };
