@@ -7,6 +7,11 @@
  * Semantics follow the NIST RS274NGC interpreter report (NISTIR 6556) for arcs, units, distance
  * modes and modal motion, and the RepRap / Marlin G-code references for the printer dialect
  * (G92, M82/M83, G10/G11, M204/M205, M220/M221…). Section names are given beside each rule.
+ *
+ * Our own parser rather than a package, for speed and for the modal state: the most-used general
+ * G-code parser on npm (gcode-parser 2.2, GCodeLineStream) builds an object per line and a string
+ * per word and resolves no units, modes, offsets or arcs; on the 100 MB bench stack it measured
+ * 9.7–11.8 MB per CPU-second against 125–134 for this reader + parser (npm run bench:inspect).
  */
 import type { FeatureKind, Segment, SegmentSink } from './types';
 import type { LineSink } from './reader';
