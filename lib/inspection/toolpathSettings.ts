@@ -30,6 +30,7 @@
 import type { Segment, SegmentSink } from './types';
 import { LayerGrid, MAX_GRID_CELLS } from './toolpath/layerGrid';
 import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
+import { LayerTable, layerHasFigures, type LayerRow } from './toolpath/layerTable';
 
 export interface MeasuredFigure {
   value: number | null;
@@ -171,7 +172,13 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   const zSteps = new Map<number, number>();
   const sequenceFirsts: { z: number; volumeMm3: number; moves: number }[] = [];
   let sequence = 0;
-  const layers: LayerRecord[] = [];
+  /** Every stored layer's volume, and the figures of the layers the summary can use. */
+  const table = new LayerTable();
+  /** The last stored records, for the combined-infill look-back (at most 9 layers down). */
+  const recent: LayerRecord[] = [];
+  /** Record of the layer being analysed and its index in the table (−1: not stored). */
+  let currentRec: LayerRecord | null = null;
+  let currentIndex = -1;
   let layerCount = 0;
   const grid = new LayerGrid();
   let blockBuf = new Float64Array(0);
@@ -309,6 +316,9 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     } catch (err) {
       if (warnings.length < 20) warnings.push(`Layer at Z ${z.toFixed(3)} could not be analysed: ${(err as Error).message}`);
     }
+    // Figures are kept once the layer is done (also when its analysis stopped part way).
+    if (currentRec !== null && currentIndex >= 0 && layerHasFigures(currentRec)) table.addFigures(currentIndex, currentRec);
+    currentRec = null;
     prevLayerZ = z;
     nSeg = 0;
     nChains = 0;
@@ -399,7 +409,13 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   function analyseLayer(z: number, h: number, firstOfSequence: boolean): void {
     layerCount++;
     const rec = emptyRecord(z, h, layerVolumeMm3, nSeg, sequence, firstOfSequence);
-    if (layers.length < MAX_LAYERS) layers.push(rec);
+    currentRec = rec;
+    currentIndex = -1;
+    if (table.layers < MAX_LAYERS) {
+      currentIndex = table.addLayer(rec.volumeMm3);
+      recent.push(rec);
+      if (recent.length > 11) recent.shift();
+    }
     if (!(h > 0.01 && h < 2)) {
       columns.abandon();
       return;
@@ -629,8 +645,8 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     const ratio = rec.infillToWallSection;
     if (ratio !== null && ratio >= 1.4) {
       let emptyBelow = 0;
-      for (let j = layers.length - 2; j >= 0 && emptyBelow < 9; j--) {
-        const b = layers[j];
+      for (let j = recent.length - 2; j >= 0 && emptyBelow < 9; j--) {
+        const b = recent[j];
         if (b.sequence !== rec.sequence || b.sparseBlocks > 0 || b.solidBlocks > 0 || b.firstOfSequence) break;
         emptyBelow++;
       }
@@ -678,7 +694,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
   }
 
   function result(): MeasuredSettings {
-    const out = summarise(layers, layerCount, zSteps, sequenceFirsts, columns, loopWidthHist, outerSpacingHist, warnings);
+    const out = summarise(table, layerCount, zSteps, sequenceFirsts, columns, loopWidthHist, outerSpacingHist, warnings);
     out.analysedLayers = analysedLayers;
     if (labelledWallMm > 0) {
       out.walls.detail += ` Cross-check with the file's feature labels: ${Math.round((labelledWallInLoopsMm / labelledWallMm) * 100)} % of wall-labelled extrusion lies in the loops counted as walls.`;
@@ -734,7 +750,7 @@ function modeOf(m: Map<number, number>): { value: number; count: number; total: 
 const pct = (a: number, b: number) => `${Math.round((a / b) * 100)} %`;
 
 function summarise(
-  layers: LayerRecord[],
+  table: LayerTable,
   layerCount: number,
   steps: Map<number, number>,
   sequenceFirsts: { z: number; volumeMm3: number; moves: number }[],
@@ -756,12 +772,13 @@ function summarise(
     // A copy: result() may be called more than once.
     warnings: [...warnings],
   };
-  if (layers.length === 0 && steps.size === 0) return out;
+  if (table.layers === 0 && steps.size === 0) return out;
 
   // Substantive layers: at least 10 % of the median layer volume (drops prime lines and wipes).
-  const vols = layers.map((l) => l.volumeMm3);
-  const medVol = vols.length > 0 ? median(vols) : 0;
-  const main = layers.filter((l) => l.volumeMm3 >= 0.1 * medVol);
+  // `main` holds those of them with figures (the only ones any filter below can pick); mainCount
+  // counts them all.
+  const medVol = table.medianVolume();
+  const { count: mainCount, rows: main } = table.mainRows(0.1 * medVol);
 
   // Layer height: mode of the Z steps (noteHeights). First layer: the lowest sequence start that is
   // a real layer (≥ 20 moves and ≥ 10 % of the median layer's volume).
@@ -778,12 +795,12 @@ function summarise(
   // them (CuraEngine's skin outline and skin-edge support print a loop right inside the inner wall
   // on skin layers and the layers under a skin). Fallbacks: any layer with sparse infill, then
   // mid-height layers.
-  const hasWalls = (l: LayerRecord) => l.walls !== null && l.walls > 0 && !l.firstOfSequence;
+  const hasWalls = (l: LayerRow) => l.walls !== null && l.walls > 0 && !l.firstOfSequence;
   const clean = main.filter((l) => hasWalls(l) && l.sparseBlocks > 0 && l.solidBlocks === 0 && l.innerLoops === 0);
   const withSparse = main.filter((l) => hasWalls(l) && l.sparseBlocks > 0);
-  const lo = Math.floor(main.length * 0.2);
-  const hi = Math.max(lo + 1, Math.ceil(main.length * 0.8));
-  const mid = main.slice(lo, hi).filter(hasWalls);
+  const lo = Math.floor(mainCount * 0.2);
+  const hi = Math.max(lo + 1, Math.ceil(mainCount * 0.8));
+  const mid = main.filter((l) => l.mainIndex >= lo && l.mainIndex < hi && hasWalls(l));
   const [wallLayers, wallNote] =
     clean.length >= 1 ? [clean, 'sparse layers without extra loops'] : withSparse.length >= 3 ? [withSparse, 'layers with sparse infill'] : [mid, 'mid-height layers'];
   if (wallLayers.length > 0) {
