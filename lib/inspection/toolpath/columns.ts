@@ -86,13 +86,22 @@ export class ColumnTracker {
     for (const c of this.cols.values()) {
       if (c.lastLayer === this.layer) this.toEmpty(c);
     }
-    this.cols.clear();
+    this.clear();
   }
 
   /** A layer was not analysed: runs in progress cannot be counted; forget them. */
   abandon(): void {
     this.layer++;
-    this.cols.clear();
+    this.clear();
+  }
+
+  /**
+   * Map.clear() allocates a fresh table, and V8 puts it in old space when the map lives there:
+   * clearing an empty map on each of 100 000 skipped layers left ~17 MB of garbage in old space
+   * on a 500 MB file (measured with the sampling heap profiler), so peak memory grew with the file.
+   */
+  private clear(): void {
+    if (this.cols.size > 0) this.cols.clear();
   }
 
   /** Consecutive layers prev → next (prev EMPTY only for a column seen for the first time). */
