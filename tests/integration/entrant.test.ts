@@ -4,20 +4,23 @@ import path from 'node:path';
 import http from 'node:http';
 import sharp from 'sharp';
 import exifr from 'exifr';
-import { gunzipSync } from 'node:zlib';
+import { gunzipSync, gzipSync } from 'node:zlib';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
-import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
+import { freshEntrant } from '../support/demo';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
 const FIXTURES = path.resolve(__dirname, '..', 'fixtures', 'gcode');
-const gcode020 = fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'));
+// Made unique per run: other files on the same server upload this fixture for other entrants,
+// which the inspection rightly flags as a duplicate G-code.
+const gcode020 = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\n; entrant test run ${Date.now()}-${Math.random()}\n`)]));
 const gcode028 = fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-028.gcode.gz'));
 
 // Its own account: other test files add entries for the demo entrants on the same server.
 let maker: Client & { email: string };
-const pim = new Client(base);
+// Another entrant of its own, for the other-entrant checks.
+let pim: Client & { email: string };
 const anonymous = new Client(base);
 
 async function photo(withGps = true) {
@@ -64,7 +67,7 @@ const count = async (table: string) => (await sql<{ n: number }>(dbFile, `SELECT
 
 beforeAll(async () => {
   maker = await freshEntrant(base, dbFile, 'Test Maker');
-  expect((await pim.signIn(demoEmail('pim'), DEMO_PASSWORD)).status).toBe(200);
+  pim = await freshEntrant(base, dbFile, 'Other Maker');
   const seasons = await sql<{ id: number; slug: string }>(dbFile, 'SELECT id, slug FROM seasons');
   seasonId = seasons.find((s) => s.slug === 'frostbite-sprint')!.id;
   leafSeasonId = seasons.find((s) => s.slug === 'leaf-fall-dash')!.id;
@@ -328,7 +331,7 @@ describe('a returned entry', () => {
 
 describe('crash during inspection', () => {
   it('an inspection left running by a stopped server is picked up again when the entry is read', async () => {
-    const entry = (await sql<{ id: number }>(dbFile, "SELECT e.id FROM entries e JOIN users u ON u.id = e.entrant_id WHERE u.email = ? AND e.state = 'draft' ORDER BY e.id DESC LIMIT 1", [demoEmail('pim')]))[0];
+    const entry = (await sql<{ id: number }>(dbFile, "SELECT e.id FROM entries e JOIN users u ON u.id = e.entrant_id WHERE u.email = ? AND e.state = 'draft' ORDER BY e.id DESC LIMIT 1", [pim.email]))[0];
     const latest = (await sql<{ id: number; stored_file_id: number }>(dbFile, 'SELECT id, stored_file_id FROM inspections WHERE entry_id = ? ORDER BY id DESC LIMIT 1', [entry.id]))[0];
     // As a server killed mid-inspection leaves it: a row marked running that no process works on.
     await sql(dbFile, "INSERT INTO inspections (entry_id, stored_file_id, engine_version, status, rule_results, flags, blocking_failures, advisory_flags, created_at, updated_at) VALUES (?, ?, 'x', 'running', '[]', '[]', 0, 0, datetime('now'), datetime('now'))", [entry.id, latest.stored_file_id]);

@@ -1,7 +1,7 @@
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
-import { DEMO_PASSWORD, demoEmail } from '../support/demo';
+import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { createReviewableEntry, createSubmittedEntry, inspectEntryWithFixture, seasonId, userId } from '../support/judging-fixtures';
 import { REASON_CODES } from '@/lib/reviews/reasons';
 
@@ -25,7 +25,9 @@ let judge2Own: number;
 let leafEntry: number;
 
 beforeAll(async () => {
-  for (const key of ['judge', 'judge2', 'entrant', 'organizer', 'admin', 'sasha']) clients[key] = await signedIn(key);
+  for (const key of ['judge', 'judge2', 'entrant', 'organizer', 'admin']) clients[key] = await signedIn(key);
+  // A plain entrant of its own (other files change the demo accounts' roles and passwords).
+  clients.sasha = await freshEntrant(base, dbFile, 'Plain Entrant');
   frostId = await seasonId(dbFile, 'frostbite-sprint');
   leafId = await seasonId(dbFile, 'leaf-fall-dash');
   judge2Own = (await sql<{ id: number }>(dbFile, "SELECT id FROM entries WHERE entrant_id = ? AND state = 'submitted'", [await userId(dbFile, 'judge2')]))[0].id;

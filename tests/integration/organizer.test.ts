@@ -9,7 +9,7 @@ import path from 'node:path';
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
-import { DEMO_PASSWORD, demoEmail } from '../support/demo';
+import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { cuboid, cylinder, toAsciiStl, toBinaryStl } from '@/scripts/fixtures/shapes';
 
 const base = inject('baseUrl');
@@ -352,7 +352,8 @@ describe('lifecycle, rulebook freeze and judges', () => {
   }, 180_000);
 
   it('judges: appoint an existing account (role granted, audited), refuse unknown addresses, invite by mail', async () => {
-    const sashaEmail = demoEmail('sasha');
+    // An account of its own: other files rely on the demo entrants having no judge role.
+    const { email: sashaEmail } = await freshEntrant(base, dbFile, 'Judge To Be');
     const res = await clients.organizer.post(`/api/organizer/seasons/${seasonId}/judges`, { email: sashaEmail });
     expect(res.status).toBe(201);
     const [u] = await sql<{ id: number; roles: string }>(dbFile, 'SELECT id, roles FROM users WHERE email = ?', [sashaEmail]);
