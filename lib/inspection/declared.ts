@@ -346,29 +346,21 @@ export function createDeclaredSettingsReader(): DeclaredSettingsReader {
     const nozzle = numberSlot('nozzle_mm');
     const layer = numberSlot('layer_height_mm');
 
-    // first_layer_height may be absolute (mm) or a percentage of layer_height (Slic3r).
-    let first: DeclaredValue<number> = { value: null, key: null, lineNo: null };
-    const fl = slots.get('first_layer_height_raw');
-    if (fl && typeof fl.value === 'string') {
-      const v = num(fl.value);
-      if (v !== null) {
-        if (fl.value.includes('%')) {
-          if (layer.value !== null) first = { value: (v / 100) * layer.value, key: fl.key, lineNo: fl.lineNo };
-        } else first = { value: v, key: fl.key, lineNo: fl.lineNo };
-      }
+    /** A raw slot that is absolute mm or "N%" of `base` (null base: a percentage stays unknown). */
+    function mmOrPercentOf(slotName: 'line_width_raw' | 'first_layer_height_raw', base: number | null, zeroMeansUnset: boolean): DeclaredValue<number> {
+      const raw = slots.get(slotName);
+      if (!raw || typeof raw.value !== 'string') return { value: null, key: null, lineNo: null };
+      const v = num(raw.value);
+      if (v === null || (zeroMeansUnset && v <= 0)) return { value: null, key: null, lineNo: null };
+      if (!raw.value.includes('%')) return { value: v, key: raw.key, lineNo: raw.lineNo };
+      if (base === null) return { value: null, key: null, lineNo: null };
+      return { value: (v / 100) * base, key: raw.key, lineNo: raw.lineNo };
     }
 
+    // first_layer_height may be absolute (mm) or a percentage of layer_height (Slic3r).
+    const first = mmOrPercentOf('first_layer_height_raw', layer.value, false);
     // Line width: absolute mm, a percentage of the nozzle, or 0 meaning "automatic".
-    let width: DeclaredValue<number> = { value: null, key: null, lineNo: null };
-    const lw = slots.get('line_width_raw');
-    if (lw && typeof lw.value === 'string') {
-      const v = num(lw.value);
-      if (v !== null && v > 0) {
-        if (lw.value.includes('%')) {
-          if (nozzle.value !== null) width = { value: (v / 100) * nozzle.value, key: lw.key, lineNo: lw.lineNo };
-        } else width = { value: v, key: lw.key, lineNo: lw.lineNo };
-      }
-    }
+    const width = mmOrPercentOf('line_width_raw', nozzle.value, true);
 
     let material: DeclaredValue<MaterialFamily> = { value: null, key: null, lineNo: null };
     const mt = slots.get('material_family');
