@@ -43,7 +43,6 @@ async function child(mode: string, file: string): Promise<void> {
   const c0 = process.cpuUsage();
   let detail = '';
   if (mode === 'peer') {
-    // eslint-disable-next-line @typescript-eslint/no-require-imports
     const { GCodeLineStream } = require('gcode-parser') as { GCodeLineStream: new (o?: object) => NodeJS.ReadWriteStream };
     let lines = 0;
     await new Promise<void>((resolve, reject) => {
