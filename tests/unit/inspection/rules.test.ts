@@ -20,6 +20,21 @@ function evidence(over: Partial<Record<keyof SettingsEvidence, [number | null, n
   return Object.fromEntries(Object.entries(base).map(([k, [d, m]]) => [k, { declared: d, measured: m }])) as unknown as SettingsEvidence;
 }
 
+/** The demo season's rulebook: 15 % infill, 2 walls, 4 top / 4 bottom, 0.20–0.30 mm layers,
+ * one object, 100 % ± 1 % scale, no overrides. */
+const DEMO_RULEBOOK = [
+  { metric: 'infill_percent', comparator: 'eq', value: 15, tolerance: 2, severity: 'blocking' },
+  { metric: 'walls', comparator: 'eq', value: 2, severity: 'blocking' },
+  { metric: 'top_layers', comparator: 'eq', value: 4, severity: 'blocking' },
+  { metric: 'bottom_layers', comparator: 'eq', value: 4, severity: 'blocking' },
+  { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, severity: 'blocking' },
+  { metric: 'objects', comparator: 'eq', value: 1, severity: 'blocking' },
+  { metric: 'scale_percent', comparator: 'eq', value: 100, tolerance: 1, severity: 'blocking' },
+  { metric: 'feed_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
+  { metric: 'flow_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
+  { metric: 'settings_mismatch', comparator: 'eq', value: 0, severity: 'advisory' },
+];
+
 /** A report shaped like the engine's JSON output (lib/inspection/report.ts toJsonReport). */
 function report(over: Partial<MetricReport> = {}): MetricReport {
   return {
@@ -156,20 +171,7 @@ describe('evaluateRules', () => {
     expect(res.every((r) => r.measured === null)).toBe(true);
   });
   it('evaluates the demo rulebook on a conforming report', () => {
-    // The demo season's rulebook: 15 % infill, 2 walls, 4 top / 4 bottom, 0.20–0.30 mm layers,
-    // one object, 100 % ± 1 % scale, no overrides.
-    const book = RulebookSchema.parse([
-      { metric: 'infill_percent', comparator: 'eq', value: 15, tolerance: 2, severity: 'blocking' },
-      { metric: 'walls', comparator: 'eq', value: 2, severity: 'blocking' },
-      { metric: 'top_layers', comparator: 'eq', value: 4, severity: 'blocking' },
-      { metric: 'bottom_layers', comparator: 'eq', value: 4, severity: 'blocking' },
-      { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, severity: 'blocking' },
-      { metric: 'objects', comparator: 'eq', value: 1, severity: 'blocking' },
-      { metric: 'scale_percent', comparator: 'eq', value: 100, tolerance: 1, severity: 'blocking' },
-      { metric: 'feed_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
-      { metric: 'flow_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
-      { metric: 'settings_mismatch', comparator: 'eq', value: 0, severity: 'advisory' },
-    ]);
+    const book = RulebookSchema.parse(DEMO_RULEBOOK);
     const res = evaluateRules(book, report(), { testPieceSizeMm: { x: 36, y: 39, z: 40 } });
     expect(res.map((r) => `${r.rule.metric}:${r.status}`)).toEqual(book.map((b) => `${b.metric}:pass`));
     // No M220/M221 in the file: the override metric defaults to 100 %.
@@ -230,18 +232,9 @@ describe('metric list', () => {
 
 describe('rules on real inspections (engine JSON from inspectFile)', () => {
   // The demo season's rulebook against real slicer output (tests/fixtures/manifest.json gives the
-  // settings each file was sliced with; the Beacon STL measures 36 × 39 × 40 mm).
-  const book = RulebookSchema.parse([
-    { metric: 'infill_percent', comparator: 'eq', value: 15, tolerance: 2, severity: 'blocking' },
-    { metric: 'walls', comparator: 'eq', value: 2, severity: 'blocking' },
-    { metric: 'top_layers', comparator: 'eq', value: 4, severity: 'blocking' },
-    { metric: 'bottom_layers', comparator: 'eq', value: 4, severity: 'blocking' },
-    { metric: 'layer_height_mm', comparator: 'between', value: 0.2, valueMax: 0.3, severity: 'blocking' },
-    { metric: 'objects', comparator: 'eq', value: 1, severity: 'blocking' },
-    { metric: 'scale_percent', comparator: 'eq', value: 100, tolerance: 1, severity: 'blocking' },
-    { metric: 'feed_override_percent_max', comparator: 'eq', value: 100, severity: 'advisory' },
-    { metric: 'settings_mismatch', comparator: 'eq', value: 0, severity: 'advisory' },
-  ]);
+  // settings each file was sliced with; the Beacon STL measures 36 × 39 × 40 mm). Same book less
+  // the flow-override rule.
+  const book = RulebookSchema.parse(DEMO_RULEBOOK.filter((r) => r.metric !== 'flow_override_percent_max'));
   const ctx = { testPieceSizeMm: { x: 36, y: 39, z: 40 } };
 
   it('a conforming Beacon passes every rule, from measured figures', async () => {
