@@ -64,21 +64,9 @@ async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: nu
   return { season, cls, machine };
 }
 
-function detailColumns(d: EntryDetails) {
-  return {
-    seasonId: d.seasonId,
-    classId: d.classId,
-    machineId: d.machineId,
-    materialFamily: d.materialFamily,
-    materialName: d.materialName,
-    nozzleMm: d.nozzleMm,
-    claimedTimeMs: parseClaimedTime(d.claimedTime)!,
-    evidenceUrl: d.evidenceUrl,
-    measuredXMm: d.measuredXMm,
-    measuredYMm: d.measuredYMm,
-    measuredZMm: d.measuredZMm,
-    notes: d.notes,
-  };
+/** The parsed details are the columns (zod strips unknown keys), but for the claimed time, stored in ms. */
+function detailColumns({ claimedTime, ...columns }: EntryDetails) {
+  return { ...columns, claimedTimeMs: parseClaimedTime(claimedTime)! };
 }
 
 interface CheckedFiles {

@@ -11,22 +11,9 @@ import { managedSeason, type Actor } from '@/lib/seasons/context';
 
 const slugTaken = (slug: string) => conflict('That address name is taken.', { slug: `Another season already uses "${slug}"; choose a different address name.` });
 
+/** The parsed input is the columns (zod strips unknown keys), but for the dates, stored as UTC instants. */
 function columns(input: SeasonInput) {
-  return {
-    name: input.name,
-    slug: input.slug,
-    hostName: input.hostName,
-    description: input.description,
-    opensAt: zonedLocalToUtc(input.opensAt, input.timeZone),
-    closesAt: zonedLocalToUtc(input.closesAt, input.timeZone),
-    timeZone: input.timeZone,
-    timingConvention: input.timingConvention,
-    photosRequired: input.photosRequired,
-    photoKinds: input.photoKinds,
-    videoRequired: input.videoRequired,
-    entryLimit: input.entryLimit,
-    verificationsRequired: input.verificationsRequired,
-  };
+  return { ...input, opensAt: zonedLocalToUtc(input.opensAt, input.timeZone), closesAt: zonedLocalToUtc(input.closesAt, input.timeZone) };
 }
 
 export async function createSeason(actor: Actor, input: SeasonInput): Promise<Season> {
