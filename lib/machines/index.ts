@@ -68,10 +68,15 @@ export function extrusionTestJson(t: ExtrusionTest) {
 }
 export type ExtrusionTestJson = ReturnType<typeof extrusionTestJson>;
 
-export async function listExtrusionTests(ownerId: number, machineId: number) {
-  await ownMachine(ownerId, machineId);
+/** A machine's tests, newest first; the caller has already checked the machine is theirs. */
+export async function extrusionTestsOf(machineId: number) {
   const rows = await ExtrusionTest.findAll({ where: { machineId }, order: [['testedAt', 'DESC'], ['id', 'DESC']] });
   return rows.map(extrusionTestJson);
+}
+
+export async function listExtrusionTests(ownerId: number, machineId: number) {
+  await ownMachine(ownerId, machineId);
+  return extrusionTestsOf(machineId);
 }
 
 export async function recordExtrusionTest(ownerId: number, machineId: number, raw: unknown) {

@@ -1,6 +1,6 @@
 import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth/guard';
-import { listExtrusionTests, machineJson } from '@/lib/machines';
+import { extrusionTestsOf, machineJson } from '@/lib/machines';
 import { Machine } from '@/models';
 import { MOTION_SYSTEM_LABELS } from '@/lib/domain';
 import { MachineForm, RetireButton } from '@/components/entrant/MachineForm';
@@ -14,7 +14,7 @@ export default async function MachinePage({ params }: { params: Promise<{ id: st
   const row = /^\d+$/.test(id) ? await Machine.findOne({ where: { id: Number(id), ownerId: user.id } }) : null;
   if (!row) notFound();
   const machine = machineJson(row);
-  const tests = await listExtrusionTests(user.id, machine.id);
+  const tests = await extrusionTestsOf(machine.id);
   return (
     <div className="space-y-8">
       <div className="flex flex-wrap items-center justify-between gap-3">
