@@ -53,11 +53,18 @@ export async function submittedEntryCount(seasonId: number, transaction?: Transa
   });
 }
 
+type RulesFreeze = { reason: string; reinspectAllowed: boolean };
+
 /** Why the rulebook cannot change right now, or null. `reinspectAllowed` says whether re-inspecting lifts it. */
-export async function rulesFreeze(season: Season, transaction?: Transaction): Promise<{ reason: string; reinspectAllowed: boolean } | null> {
+export async function rulesFreeze(season: Season, transaction?: Transaction): Promise<RulesFreeze | null> {
+  if (season.state === 'final' || season.state === 'archived') return freezeOf(season, 0);
+  return freezeOf(season, await submittedEntryCount(season.id, transaction));
+}
+
+/** rulesFreeze for a caller that has already counted the season's submitted entries. */
+export function freezeOf(season: Season, submitted: number): RulesFreeze | null {
   if (season.state === 'final' || season.state === 'archived')
     return { reason: `The season is ${season.state}: its rulebook is frozen with its standings.`, reinspectAllowed: false };
-  const submitted = await submittedEntryCount(season.id, transaction);
   if (submitted > 0)
     return {
       reason: `The rules are frozen: ${submitted} ${submitted === 1 ? 'entry has' : 'entries have'} been submitted under them. To change them anyway, choose to re-inspect every entry under the new rules.`,

@@ -5,7 +5,7 @@ import { managedSeason } from '@/lib/seasons/context';
 import { seasonJson } from '@/lib/seasons/editor';
 import { testPieceJson } from '@/lib/seasons/testPiece';
 import { classJson, seasonClasses } from '@/lib/seasons/classes';
-import { rulebookRules, rulesFreeze, submittedEntryCount } from '@/lib/seasons/rulebook';
+import { rulebookRules, freezeOf, submittedEntryCount } from '@/lib/seasons/rulebook';
 import { NEXT_STATE, transitionBlockers } from '@/lib/seasons/lifecycle';
 import { seasonJudges } from '@/lib/seasons/judges';
 import { subscriberCount } from '@/lib/seasons/subscriptions';
@@ -14,11 +14,10 @@ import { organizerDashboard } from '@/lib/seasons/dashboard';
 export async function organizerSeasonView(seasonId: number) {
   const season = await managedSeason(seasonId);
   const next = NEXT_STATE[season.state as SeasonState];
-  const [testPiece, classes, rules, freeze, judges, subscribers, [dashboard], blockers, submittedEntries] = await Promise.all([
+  const [testPiece, classes, rules, judges, subscribers, [dashboard], blockers, submittedEntries] = await Promise.all([
     TestPiece.findOne({ where: { seasonId } }),
     seasonClasses(seasonId),
     rulebookRules(seasonId),
-    rulesFreeze(season),
     seasonJudges(seasonId),
     subscriberCount(seasonId),
     organizerDashboard({ seasonId }),
@@ -30,7 +29,7 @@ export async function organizerSeasonView(seasonId: number) {
     testPiece: testPieceJson(testPiece),
     classes: classes.map(classJson),
     rules,
-    freeze,
+    freeze: freezeOf(season, submittedEntries),
     ...judges,
     subscribers,
     submittedEntries,
