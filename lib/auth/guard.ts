@@ -5,7 +5,8 @@
 import { getServerSession } from 'next-auth';
 import { redirect, forbidden as forbiddenPage } from 'next/navigation';
 import { authOptions } from '@/lib/auth/options';
-import { User } from '@/models';
+import type { User } from '@/models';
+import { loadUser } from '@/lib/auth/loadUser';
 import type { Role } from '@/lib/domain';
 import { forbidden, unauthorized } from '@/lib/errors';
 
@@ -13,7 +14,7 @@ export async function currentUser(): Promise<User | null> {
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
   if (!id) return null;
-  return User.findByPk(id);
+  return loadUser(id);
 }
 
 export function hasRole(user: Pick<User, 'roles'> | null | undefined, roles: readonly Role[]): boolean {

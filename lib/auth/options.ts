@@ -6,6 +6,7 @@ import { checkPassword, decoyHash } from '@/lib/auth/password';
 import { recordFailure, recordSuccess } from '@/lib/auth/throttle';
 import { clientIp } from '@/lib/http';
 import { EmailSchema } from '@/lib/auth/schemas';
+import { loadUser } from '@/lib/auth/loadUser';
 
 /** Error codes the sign-in form turns into sentences (see SIGN_IN_ERRORS). */
 export const EMAIL_NOT_VERIFIED = 'EmailNotVerified';
@@ -44,7 +45,7 @@ export const authOptions: NextAuthOptions = {
     },
     async session({ session, token }) {
       // Roles come from the database on every request, so a role change applies at once.
-      const user = token.uid ? await User.findByPk(token.uid as number) : null;
+      const user = token.uid ? await loadUser(token.uid as number) : null;
       if (!user) return { ...session, user: undefined };
       session.user = { id: user.id, name: user.name, email: user.email, roles: user.roles };
       return session;
