@@ -1,8 +1,7 @@
 import { expect, type Browser, type Page } from '@playwright/test';
-import { DEMO_PASSWORD, DEMO_USERS } from '../../lib/seed';
+import { DEMO_PASSWORD, demoEmail, linkIn } from '../support/demo';
 
-export const demoEmail = (key: string) => DEMO_USERS.find((u) => u.key === key)!.email;
-export { DEMO_PASSWORD };
+export { DEMO_PASSWORD, demoEmail };
 
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
   await page.goto('/signin');
@@ -25,8 +24,5 @@ export async function readLatestMail(browser: Browser, to: string, subject: stri
   return text;
 }
 
-export function pathOfLink(text: string, prefix: string): string {
-  const m = text.match(new RegExp(`https?://[^\\s]+?(${prefix}\\?token=[A-Za-z0-9_-]+)`));
-  if (!m) throw new Error(`no ${prefix} link in mail:\n${text}`);
-  return m[1];
-}
+/** The path + query of a mailed link, e.g. "/verify?token=…". */
+export const pathOfLink = linkIn;
