@@ -23,7 +23,6 @@ export const FLAG_CODES = {
 } as const satisfies Record<string, { severity: Flag['severity']; label: string }>;
 
 export type FlagCode = keyof typeof FLAG_CODES;
-export const FLAG_CODE_LIST = Object.keys(FLAG_CODES) as FlagCode[];
 
 export function makeFlag(code: FlagCode, message: string): Flag {
   return { code, severity: FLAG_CODES[code].severity, message };
