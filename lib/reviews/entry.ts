@@ -1,7 +1,6 @@
 /** Everything a judge needs on one screen for one entry. */
 import { ContestClass, Entry, ExtrusionTest, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
-import { computeExtrusionLimit } from '@/lib/extrusion';
-import { MATERIAL_FAMILIES, type MaterialFamily } from '@/lib/inspection/materials';
+import { extrusionTestJson } from '@/lib/machines';
 import { auditEvidenceView } from './evidence';
 import { resumeInspection } from '@/lib/entries/inspection';
 import { reviewableEntry } from './access';
@@ -118,28 +117,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       modifications: machine.modifications,
       isModified: machine.isModified,
     },
-    extrusionTests: tests.map((t) => {
-      const family = (MATERIAL_FAMILIES as readonly string[]).includes(t.materialFamily) ? (t.materialFamily as MaterialFamily) : ('other' as MaterialFamily);
-      const r = computeExtrusionLimit({
-        materialFamily: family,
-        filamentDiameterMm: t.filamentDiameterMm,
-        sampleLengthMm: t.sampleLengthMm,
-        referenceMassG: t.referenceMassG,
-        thresholdPercent: t.thresholdPercent,
-        steps: t.steps,
-      });
-      return {
-        id: t.id,
-        materialFamily: t.materialFamily,
-        materialName: t.materialName,
-        testedAt: t.testedAt.toISOString(),
-        matchesEntryMaterial: t.materialFamily === entry.materialFamily,
-        thresholdPercent: r.thresholdPercent,
-        limitFlowMm3s: r.limitFlowMm3s,
-        nonMonotonic: r.nonMonotonic,
-        steps: r.steps.map((s) => ({ rateMm3s: s.rateMm3s, massG: s.massG, efficiencyPercent: s.efficiencyPercent, passes: s.passes })),
-      };
-    }),
+    extrusionTests: tests.map((t) => ({ ...extrusionTestJson(t), matchesEntryMaterial: t.materialFamily === entry.materialFamily })),
     photos: photos.map((p) => {
       const t = thumbnailOf(p, thumbs);
       return {
