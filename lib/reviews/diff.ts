@@ -5,6 +5,7 @@
  */
 import { asFlags } from './flags';
 import { RuleSchema, ruleSentence } from '@/lib/inspection/rules';
+import { metricById, type MetricId } from '@/lib/inspection/metrics';
 
 /** The rule's own sentence ("Walls must be 2."), without the pass/fail wording of the result. */
 function sentenceOf(rule: unknown, fallback: string): string {
@@ -26,11 +27,17 @@ export interface InspectionSnapshot {
   flags: unknown[];
 }
 
+/** A headline column labelled as its rule metric is, so the figure has one name everywhere. */
+function metricField<K extends keyof InspectionSnapshot>(key: K, id: MetricId) {
+  const m = metricById(id)!;
+  return { key, label: m.label, unit: m.unit };
+}
+
 export const HEADLINE_FIELDS = [
-  { key: 'estimatedTimeS', label: 'Estimated minimum time', unit: 's' },
-  { key: 'peakFlowMm3s', label: 'Peak commanded flow', unit: 'mm³/s' },
-  { key: 'p95FlowMm3s', label: '95th percentile flow', unit: 'mm³/s' },
-  { key: 'layerHeightMm', label: 'Layer height', unit: 'mm' },
+  metricField('estimatedTimeS', 'estimated_time_s'),
+  metricField('peakFlowMm3s', 'peak_flow_mm3s'),
+  metricField('p95FlowMm3s', 'p95_flow_mm3s'),
+  metricField('layerHeightMm', 'layer_height_mm'),
   { key: 'blockingFailures', label: 'Blocking failures', unit: '' },
   { key: 'advisoryFlags', label: 'Advisory flags', unit: '' },
 ] as const;
