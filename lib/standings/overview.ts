@@ -2,7 +2,7 @@
 import { QueryTypes } from 'sequelize';
 import { getSequelize } from '@/lib/db';
 import { DEFAULT_QUERY } from './params';
-import { classRef, findSeason, type ClassStandings } from './views';
+import { classRef, findSeason, seasonClasses, type ClassStandings } from './views';
 import { isoDate, standingsPage, type StandingsRow } from './query';
 
 /**
@@ -50,10 +50,7 @@ export function sample<T>(xs: T[], max: number): T[] {
 
 export async function seasonOverview(slug: string) {
   const season = await findSeason(slug);
-  const classes = await getSequelize().query<{ id: number; slug: string; name: string }>('SELECT id, slug, name FROM classes WHERE season_id = ? ORDER BY display_order, id', {
-    replacements: [season.id],
-    type: QueryTypes.SELECT,
-  });
+  const classes = await seasonClasses(season.id);
   const ranked: { slug: string; name: string; rows: StandingsRow[] }[] = [];
   for (const c of classes) {
     const ref = await classRef(season, c);

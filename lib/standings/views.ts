@@ -100,7 +100,7 @@ export async function findSeason(slug: string): Promise<SeasonRow> {
   return s;
 }
 
-async function seasonClasses(seasonId: number): Promise<ClassRow[]> {
+export async function seasonClasses(seasonId: number): Promise<ClassRow[]> {
   return select<ClassRow>('SELECT * FROM classes WHERE season_id = ? ORDER BY display_order, id', [seasonId]);
 }
 
