@@ -16,22 +16,6 @@ function Frame({ title, children, empty, testId }: { title: string; children: Re
   );
 }
 
-export function FlowChart({ points }: { points: { t_s: number; max_mm3s: number; mean_mm3s: number }[] }) {
-  return (
-    <Frame title="Commanded volumetric flow over the print" testId="flow-chart" empty={!points.length}>
-      <LineChart data={points} margin={{ top: 5, right: 20, bottom: 20, left: 10 }}>
-        <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
-        <XAxis dataKey="t_s" type="number" domain={['dataMin', 'dataMax']} tickFormatter={minutes} label={{ value: 'print time', position: 'insideBottom', offset: -10 }} />
-        <YAxis label={{ value: 'mm³/s', angle: -90, position: 'insideLeft' }} />
-        <Tooltip labelFormatter={(v) => minutes(Number(v))} formatter={(v) => `${Number(v).toFixed(1)} mm³/s`} />
-        <Legend verticalAlign="top" />
-        <Line type="stepAfter" dataKey="max_mm3s" name="highest in interval" stroke={SERIES[0]} dot={false} isAnimationActive={false} />
-        <Line type="stepAfter" dataKey="mean_mm3s" name="mean in interval" stroke={SERIES[1]} dot={false} isAnimationActive={false} />
-      </LineChart>
-    </Frame>
-  );
-}
-
 export function TimesHistogram({ bins, classes }: { bins: Record<string, number>[]; classes: { slug: string; name: string }[] }) {
   const data = bins.map((b) => ({ ...b, label: `${minutes(b.from_s)}–${minutes(b.to_s)}` }));
   return (

@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
-import { FlowChart } from '@/components/standings/charts';
+import { FlowChart } from '@/components/charts/FlowChart';
 import { formatDate, formatDateTime, formatDurationMs } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
@@ -73,7 +73,14 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
         </section>
       </section>
 
-      {i?.flow_series && <FlowChart points={i.flow_series.points} />}
+      {i?.flow_series && (
+        <section className="card">
+          <FlowChart
+            title="Commanded volumetric flow over the print"
+            series={{ bucketS: i.flow_series.bucket_s, maxMm3s: i.flow_series.points.map((p) => p.max_mm3s), meanMm3s: i.flow_series.points.map((p) => p.mean_mm3s) }}
+          />
+        </section>
+      )}
 
       <section aria-label="Photos">
         <h2 className="mb-3">Photos</h2>
