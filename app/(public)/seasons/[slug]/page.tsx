@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { publicSeason } from '@/lib/seasonView';
 import { StatePill } from '@/components/StatePill';
+import { SeverityPill } from '@/components/standings/SeverityPill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { formatDateTime } from '@/lib/format';
 import { Markdown } from '@/components/organizer/Markdown';
@@ -60,7 +61,7 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
           {seasonRules.map((r) => (
             <li key={r.id}>
               {r.sentence || `${r.metric} ${r.comparator} ${r.value}`}{' '}
-              <span className={`pill ${r.severity === 'blocking' ? 'bg-alarm-100 text-alarm-700' : 'bg-ink-100 text-ink-700'}`}>{r.severity}</span>
+              <SeverityPill severity={r.severity} />
             </li>
           ))}
         </ol>

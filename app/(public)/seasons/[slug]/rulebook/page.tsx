@@ -10,15 +10,12 @@ import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
 import { formatDateTime } from '@/lib/format';
+import { SeverityPill } from '@/components/standings/SeverityPill';
 
 export async function generateMetadata({ params }: { params: Promise<{ slug: string }> }) {
   const { slug } = await params;
   const view = await publicSeason(slug);
   return { title: view ? `Rulebook · ${view.season.name}` : 'Rulebook' };
-}
-
-function Severity({ severity }: { severity: string }) {
-  return <span className={`pill ${severity === 'blocking' ? 'bg-alarm-100 text-alarm-700' : 'bg-ink-100 text-ink-700'}`}>{severity}</span>;
 }
 
 export default async function RulebookPage({ params }: { params: Promise<{ slug: string }> }) {
@@ -63,7 +60,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
         <h2 id="h-season-rules" className="mb-3">Rules for every class</h2>
         {seasonRules.length === 0 ? <p className="card text-sm text-ink-600">No season-wide rules.</p> : (
           <ol className="card list-decimal space-y-2 pl-10" data-testid="rulebook-season">
-            {seasonRules.map((r) => <li key={r.id}>{r.sentence} <Severity severity={r.severity} /></li>)}
+            {seasonRules.map((r) => <li key={r.id}>{r.sentence} <SeverityPill severity={r.severity} /></li>)}
           </ol>
         )}
       </section>
@@ -79,7 +76,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
               <ol className="card list-decimal space-y-2 pl-10" data-testid={`rulebook-class-${c.slug}`}>
                 {own.map((r) => (
                   <li key={r.id}>
-                    {r.sentence} <Severity severity={r.severity} />
+                    {r.sentence} <SeverityPill severity={r.severity} />
                     {seasonMetrics.has(r.metric) && <span className="ml-2 text-xs text-ink-500">{`(replaces the season rule on ${label(r.metric).toLowerCase()} for this class)`}</span>}
                   </li>
                 ))}
