@@ -200,9 +200,10 @@ async function mailEntrant(entry: Entry, subject: string, intro: (where: string)
 }
 
 /** What stands between this entry and submitting, as sentences (empty = may submit). */
-export async function submitBlockers(entry: Entry): Promise<string[]> {
+/** `loadedSeason`: the entry's season when the caller already has it (saves reading it again). */
+export async function submitBlockers(entry: Entry, loadedSeason?: Season): Promise<string[]> {
   const out: string[] = [];
-  const season = (await Season.findByPk(entry.seasonId))!;
+  const season = loadedSeason ?? (await Season.findByPk(entry.seasonId))!;
   if (season.state !== 'open') out.push(`${season.name} is not open for entries.`);
   if (!EDITABLE_STATES.includes(entry.state)) out.push(`The entry is ${entry.state}.`);
   const gcode = await currentGcode(entry.id);
@@ -228,7 +229,7 @@ export async function submitEntry(user: User, id: number) {
   const season = (await Season.findByPk(entry.seasonId))!;
   requireOpen(season);
   if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be submitted; this one is ${entry.state}.`);
-  const blockers = await submitBlockers(entry);
+  const blockers = await submitBlockers(entry, season);
   if (blockers.length) throw unprocessable(blockers[0], { submit: blockers.join(' ') });
   const resubmitted = entry.state === 'returned';
   await entry.update({ state: 'submitted', submittedAt: new Date(), decidedAt: null });
@@ -330,7 +331,7 @@ export async function entryView(user: User, id: number) {
     reviews: reviews.map((r) => ({ id: r.id, decision: r.decision, reasonCodes: r.reasonCodes, note: r.note, createdAt: r.createdAt.toISOString() })),
     canEdit: editable,
     canSubmit: editable,
-    blockers: editable ? await submitBlockers(entry) : [],
+    blockers: editable ? await submitBlockers(entry, season!) : [],
     canWithdraw: WITHDRAWABLE_STATES.includes(entry.state),
   };
 }
