@@ -80,6 +80,10 @@ export async function receiveUpload(req: Request, spec: UploadSpec): Promise<Upl
     },
   });
 
+  // formidable lists files as they finish writing; keep the order they were sent in instead.
+  const sentOrder = new Map<string, number>();
+  form.on('fileBegin', (_name: string, file: FormidableFile) => sentOrder.set(file.filepath, sentOrder.size));
+
   // formidable reads a Node stream with headers, as from an IncomingMessage.
   const headers = Object.fromEntries(req.headers);
   // Without a length formidable assumes an empty body; a streamed body is chunked.
@@ -108,7 +112,7 @@ export async function receiveUpload(req: Request, spec: UploadSpec): Promise<Upl
   const files: Record<string, UploadedFile[]> = {};
   const fieldErrors: Record<string, string> = {};
   for (const [name, f] of Object.entries(spec.files)) {
-    const list = (rawFiles[name] ?? []) as FormidableFile[];
+    const list = [...((rawFiles[name] ?? []) as FormidableFile[])].sort((a, b) => (sentOrder.get(a.filepath) ?? 0) - (sentOrder.get(b.filepath) ?? 0));
     files[name] = list.map((x) => ({
       field: name,
       tmpPath: x.filepath,

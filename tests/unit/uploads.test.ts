@@ -90,3 +90,13 @@ describe('sniffBytes (magic numbers from the format specifications named in lib/
     expect(sniffBytes(buf, buf.length)).toBe('stl-binary');
   });
 });
+
+describe('receiveUpload order', () => {
+  it('lists the files of a field in the order they were sent', async () => {
+    const many: UploadSpec = { files: { photo: { maxBytes: 1_000_000, maxCount: 6, label: 'photos' } }, maxTotalBytes: 10_000_000 };
+    // A big first file finishes writing after the small ones.
+    const res = await receiveUpload(multipart([['photo', new Blob([new Uint8Array(900_000)]), 'first.jpg'], ['photo', new Blob(['b']), 'second.jpg'], ['photo', new Blob(['c']), 'third.jpg']]), many);
+    expect(res.files.photo.map((f) => f.originalName)).toEqual(['first.jpg', 'second.jpg', 'third.jpg']);
+    await res.cleanup();
+  });
+});
