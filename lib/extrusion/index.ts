@@ -7,7 +7,7 @@
  * light, so efficiency = sample mass ÷ reference mass falls below 100 %.
  */
 import { z } from 'zod';
-import { densityGcm3, MaterialFamilySchema, type MaterialFamily } from '@/lib/inspection/materials';
+import { densityGcm3, filamentAreaMm2, MaterialFamilySchema, type MaterialFamily } from '@/lib/inspection/materials';
 
 export const DEFAULT_THRESHOLD_PERCENT = 98;
 
@@ -46,10 +46,6 @@ export interface ExtrusionResult {
   ceilings: SpeedCeiling[];
 }
 
-/** Cross-section of round filament, mm² (π d² / 4). */
-export function filamentAreaMm2(diameterMm: number): number {
-  return (Math.PI * diameterMm * diameterMm) / 4;
-}
 
 /**
  * Mass of `lengthMm` of filament: volume = length × area (mm³); ÷ 1000 → cm³; × density (g/cm³).

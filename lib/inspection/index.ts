@@ -3,6 +3,7 @@ export { inspectFile, inspectStream, DEFAULT_FILAMENT_DIAMETER_MM, type InspectO
 export { toJsonReport, type InspectionReport, type FeatureReport, type ReportSettings } from './report';
 export { InspectionError, type InspectionErrorCode, MAX_LINE_BYTES } from './reader';
 export { GcodeParser, MachineState, featureFromLabel, type MotionSink, type ParserOptions, type ParserWarning } from './parser';
-export { Measurements, filamentAreaMm2, lineWidthMm, crossSectionMm2, FEATURE_KINDS } from './measure';
+export { filamentAreaMm2 } from './materials';
+export { Measurements, lineWidthMm, crossSectionMm2, FEATURE_KINDS } from './measure';
 export { MotionPlanner, trapezoidTimeS, DEFAULT_LIMITS, type MachineLimits } from './planner';
 export type { Segment, SegmentSink, FeatureKind, Flag, SettingsEvidence, Source, Sourced } from './types';

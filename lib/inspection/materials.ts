@@ -9,6 +9,11 @@
  */
 import { z } from 'zod';
 
+/** Cross-section of round filament of diameter d: π (d/2)², mm² (1.75 mm → 2.405 mm²). */
+export function filamentAreaMm2(diameterMm: number): number {
+  return Math.PI * (diameterMm / 2) * (diameterMm / 2);
+}
+
 export const MATERIAL_FAMILIES = ['pla', 'petg', 'abs', 'asa', 'tpu', 'pa', 'pc', 'other'] as const;
 export type MaterialFamily = (typeof MATERIAL_FAMILIES)[number];
 

@@ -7,11 +7,7 @@
 import type { FeatureKind, Segment } from './types';
 import type { MotionSink, MachineState } from './parser';
 import { MotionPlanner, type MachineLimits, type PlannedMoveSink } from './planner';
-
-/** Cross-section of filament of diameter d: π (d/2)², mm². */
-export function filamentAreaMm2(diameterMm: number): number {
-  return Math.PI * (diameterMm / 2) * (diameterMm / 2);
-}
+import { filamentAreaMm2 } from './materials';
 
 /**
  * Line width from an extrusion cross-section A at layer height h, modelling the bead as a rectangle

@@ -17,7 +17,7 @@
 import type { Segment, SegmentSink } from './types';
 import { GcodeParser, type ParserOptions } from './parser';
 import { readFileLines, readStreamLines } from './reader';
-import { filamentAreaMm2 } from './measure';
+import { filamentAreaMm2 } from './materials';
 import type { Readable } from 'node:stream';
 
 /**

@@ -28,6 +28,7 @@
  * PrusaSlicer's honeycomb deposits more than its setting (a 20 % cube measured 25.2 %).
  */
 import type { Segment, SegmentSink } from './types';
+import { filamentAreaMm2 } from './materials';
 import { LayerGrid, MAX_GRID_CELLS } from './toolpath/layerGrid';
 import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
 import { LayerTable, layerHasFigures, type LayerRow } from './toolpath/layerTable';
@@ -139,7 +140,7 @@ export interface LayerRecord {
 export type ToolpathSettingsAnalyzer = SegmentSink & { result(): MeasuredSettings };
 
 export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): ToolpathSettingsAnalyzer {
-  const filamentAreaMm2 = Math.PI * (opts.filamentDiameterMm / 2) ** 2;
+  const areaOfFilamentMm2 = filamentAreaMm2(opts.filamentDiameterMm);
   const warnings: string[] = [];
 
   // Current layer buffer: x0 y0 x1 y1 A per segment, chain id per segment.
@@ -255,7 +256,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     segmentsSeen++;
     if (skipStoring) {
       // This layer will not be rasterised (work budget): keep only its volume.
-      layerVolumeMm3 += s.eMm * filamentAreaMm2;
+      layerVolumeMm3 += s.eMm * areaOfFilamentMm2;
       nSkippedSeg++;
       return;
     }
@@ -266,7 +267,7 @@ export function createToolpathSettingsAnalyzer(opts: ToolpathSettingsOptions): T
     ensureCapacity();
     if (broken || Math.abs(s.x0 - lastEndX) > 1e-3 || Math.abs(s.y0 - lastEndY) > 1e-3) newChain();
     broken = false;
-    const areaMm2 = (s.eMm * filamentAreaMm2) / lenXY;
+    const areaMm2 = (s.eMm * areaOfFilamentMm2) / lenXY;
     const o = nSeg * 5;
     seg[o] = s.x0;
     seg[o + 1] = s.y0;

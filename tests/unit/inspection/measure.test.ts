@@ -3,7 +3,8 @@
  * published flow math.
  */
 import { describe, expect, it } from 'vitest';
-import { crossSectionMm2, filamentAreaMm2, lineWidthMm } from '../../../lib/inspection/measure';
+import { crossSectionMm2, lineWidthMm } from '../../../lib/inspection/measure';
+import { filamentAreaMm2 } from '../../../lib/inspection/materials';
 import { inspectBytes, sum } from './engineHelpers';
 
 const AREA = filamentAreaMm2(1.75);
