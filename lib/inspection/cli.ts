@@ -4,11 +4,11 @@
  * Exit 0 with a report; exit 2 with one line on stderr when the file (or an option) cannot be used.
  */
 import { readFile } from 'node:fs/promises';
-import { InspectionError } from './reader';
 import { inspectFile } from './inspect';
 import { toJsonReport, type InspectionReport } from './report';
 import { RulebookSchema, type Rule, type RuleResult } from './rules';
 import { MATERIAL_FAMILIES, isMaterialFamily } from './materials';
+import { runInspectionMain, firstLine, type InspectionMainContext } from './main';
 
 const USAGE = 'usage: npm run inspect -- FILE [--rules rules.json] [--filament-diameter 1.75] [--material pla] [--json]';
 
@@ -142,42 +142,25 @@ function textReport(r: InspectionReport, rules: RuleResult[] | undefined): strin
   return out.join('\n');
 }
 
-async function main(): Promise<number> {
+async function main(ctx: InspectionMainContext): Promise<number> {
   let args: CliArgs;
   let rules: Rule[] | undefined;
   try {
     args = parseArgs(process.argv.slice(2));
     if (args.rulesPath) rules = await loadRules(args.rulesPath);
   } catch (err) {
-    process.stderr.write(`${(err as Error).message.split('\n')[0]}\n`);
+    process.stderr.write(`${firstLine((err as Error).message)}\n`);
     return 2;
   }
-  let report: InspectionReport;
-  try {
-    report = await inspectFile(args.file, {
-      filamentDiameterMm: args.diameterMm,
-      material: args.material as (typeof MATERIAL_FAMILIES)[number] | undefined,
-      rules,
-    });
-  } catch (err) {
-    if (err instanceof InspectionError || err instanceof RangeError) {
-      const line = err.message.split('\n')[0];
-      process.stderr.write(`${line.includes(args.file) ? line : `${args.file}: ${line}`}\n`);
-      return 2;
-    }
-    throw err;
-  }
+  ctx.subject = args.file;
+  const report: InspectionReport = await inspectFile(args.file, {
+    filamentDiameterMm: args.diameterMm,
+    material: args.material as (typeof MATERIAL_FAMILIES)[number] | undefined,
+    rules,
+  });
   if (args.json) process.stdout.write(`${JSON.stringify(toJsonReport(report))}\n`);
   else process.stdout.write(`${textReport(report, report.rules as RuleResult[] | undefined)}\n`);
   return 0;
 }
 
-main().then(
-  (code) => {
-    process.exitCode = code;
-  },
-  (err) => {
-    process.stderr.write(`internal error: ${(err as Error).stack ?? String(err)}\n`);
-    process.exitCode = 1;
-  },
-);
+void runInspectionMain(main);

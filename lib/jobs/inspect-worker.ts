@@ -2,9 +2,11 @@
  * Child-process entry point for one inspection: reads {file, options} as JSON on stdin, runs the
  * engine, writes the JSON report on stdout. Runs outside the web server so a 200 MB G-code never
  * touches the server's heap or event loop, and a crash here cannot take the server down.
- * Exit 0 = report written; exit 2 = the file could not be inspected (one line on stderr).
+ * Exit 0 = report written; exit 2 = the file could not be inspected (one line on stderr); exit 1 =
+ * anything else (lib/inspection/main.ts).
  */
-import { inspectFile, toJsonReport, InspectionError } from '../inspection';
+import { inspectFile, toJsonReport } from '../inspection';
+import { runInspectionMain } from '../inspection/main';
 import type { InspectOptions } from '../inspection';
 
 async function readStdin(): Promise<string> {
@@ -15,25 +17,10 @@ async function readStdin(): Promise<string> {
 
 async function main(): Promise<number> {
   const job = JSON.parse(await readStdin()) as { file: string; options: InspectOptions };
-  try {
-    const report = await inspectFile(job.file, job.options);
-    process.stdout.write(JSON.stringify(toJsonReport(report)));
-    return 0;
-  } catch (err) {
-    if (err instanceof InspectionError || err instanceof RangeError) {
-      process.stderr.write(`${err.message.split('\n')[0]}\n`);
-      return 2;
-    }
-    throw err;
-  }
+  const report = await inspectFile(job.file, job.options);
+  process.stdout.write(JSON.stringify(toJsonReport(report)));
+  return 0;
 }
 
-main().then(
-  (code) => {
-    process.exitCode = code;
-  },
-  (err) => {
-    process.stderr.write(`internal error: ${(err as Error).stack ?? String(err)}\n`);
-    process.exitCode = 1;
-  },
-);
+// No subject: the file is a storage path, not the name the entrant uploaded, so reasons stay as the engine wrote them.
+void runInspectionMain(main);
