@@ -1,6 +1,9 @@
-/** Display formats shared by pages and exports. */
+/** Display formats shared by pages and exports (framework-free: server and client components import it). */
 
-/** 1 h 2 min 3.4 s → "1:02:03.4" (tenths, as entrants claim times). */
+/**
+ * A claimed time as entrants type it (h:mm:ss.t): 1 h 2 min 3.4 s → "1:02:03.4". Only for claimed
+ * (ranked) times, which count to the tenth; every other duration goes through formatDurationS.
+ */
 export function formatDurationMs(ms: number | null | undefined): string {
   if (ms == null || !Number.isFinite(ms) || ms < 0) return '—';
   const tenths = Math.round(ms / 100);
@@ -9,6 +12,30 @@ export function formatDurationMs(ms: number | null | undefined): string {
   const s = Math.floor((tenths % 600) / 10);
   const t = tenths % 10;
   return `${h}:${String(m).padStart(2, '0')}:${String(s).padStart(2, '0')}.${t}`;
+}
+
+const two = (n: number) => String(n).padStart(2, '0');
+
+/**
+ * Any other duration (estimates, differences, waiting times), in seconds, as the two largest units:
+ * "45 s", "3 min 20 s", "1 h 02 min", "2 d 05 h". The smaller unit is rounded, so 3599.6 s reads
+ * "1 h 00 min", not "59 min 60 s".
+ */
+export function formatDurationS(seconds: number | null | undefined): string {
+  if (seconds == null || !Number.isFinite(seconds) || seconds < 0) return '—';
+  const s = Math.round(seconds);
+  if (s < 60) return `${s} s`;
+  if (s < 3600) return `${Math.floor(s / 60)} min ${two(s % 60)} s`;
+  const min = Math.round(s / 60);
+  if (min < 24 * 60) return `${Math.floor(min / 60)} h ${two(min % 60)} min`;
+  const h = Math.round(s / 3600);
+  return `${Math.floor(h / 24)} d ${two(h % 24)} h`;
+}
+
+/** A figure with a fixed number of decimals and an optional unit: (31.46, 1, 'mm³/s') → "31.5 mm³/s"; missing → "—". */
+export function formatNumber(value: number | null | undefined, digits: number, unit = ''): string {
+  if (value == null || !Number.isFinite(value)) return '—';
+  return `${value.toFixed(digits)}${unit ? ` ${unit}` : ''}`;
 }
 
 export function formatDate(iso: string | Date | null | undefined, timeZone = 'UTC'): string {

@@ -6,22 +6,16 @@
 import { FlowChart } from '@/components/charts/FlowChart';
 import type { InspectionJson } from '@/lib/entries/inspection';
 import { formatRuleMeasured } from '@/lib/inspection/rules';
+import { formatDurationS, formatNumber } from '@/lib/format';
 
 const STATUS_TONE = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' } as const;
 const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
 const SOURCE_LABEL: Record<string, string> = { measured: 'measured from the toolpaths', declared: 'declared by the slicer', default: 'default', claimed: 'claimed', option: 'option' };
 
-const n = (v: number | null | undefined, digits: number, unit = '') => (v === null || v === undefined || !Number.isFinite(v) ? '—' : `${v.toFixed(digits)}${unit}`);
-function duration(s: number | null | undefined) {
-  if (s === null || s === undefined || !Number.isFinite(s)) return '—';
-  const t = Math.round(s);
-  return `${Math.floor(t / 3600)}:${String(Math.floor((t % 3600) / 60)).padStart(2, '0')}:${String(t % 60).padStart(2, '0')}`;
-}
 function pair(p: { declared: number | null; measured: number | null } | null, digits = 0, unit = '') {
   if (!p) return '—';
   const m = p.measured ?? p.declared;
-  const src = p.measured !== null ? 'measured' : p.declared !== null ? 'declared' : '';
-  return m === null ? '—' : `${m.toFixed(digits)}${unit}${src === 'declared' ? ' (declared)' : ''}`;
+  return m === null ? '—' : `${formatNumber(m, digits, unit)}${p.measured === null ? ' (declared)' : ''}`;
 }
 
 export function InspectionReport({ inspection, limitMm3s = null, audience = 'entrant' }: { inspection: InspectionJson; limitMm3s?: number | null; audience?: 'entrant' | 'judge' | 'public' }) {
@@ -81,18 +75,18 @@ export function InspectionReport({ inspection, limitMm3s = null, audience = 'ent
         <section aria-labelledby="figures-h">
           <h3 id="figures-h" className="mb-2 font-semibold">Key figures</h3>
           <dl className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm" data-testid="key-figures">
-            <dt className="text-ink-600">Peak flow</dt><dd className="num">{n(f.peakFlowMm3s, 1, ' mm³/s')}</dd>
-            <dt className="text-ink-600">95th percentile flow</dt><dd className="num">{n(f.p95FlowMm3s, 1, ' mm³/s')}</dd>
-            <dt className="text-ink-600">Estimated time</dt><dd className="num">{duration(f.estimatedTimeS)}</dd>
-            <dt className="text-ink-600">Slicer&apos;s estimate</dt><dd className="num">{duration(f.slicerEstimateS)}</dd>
-            <dt className="text-ink-600">Layer height</dt><dd className="num">{n(f.layerHeightMm, 2, ' mm')}</dd>
+            <dt className="text-ink-600">Peak flow</dt><dd className="num">{formatNumber(f.peakFlowMm3s, 1, 'mm³/s')}</dd>
+            <dt className="text-ink-600">95th percentile flow</dt><dd className="num">{formatNumber(f.p95FlowMm3s, 1, 'mm³/s')}</dd>
+            <dt className="text-ink-600">Estimated time</dt><dd className="num">{formatDurationS(f.estimatedTimeS)}</dd>
+            <dt className="text-ink-600">Slicer&apos;s estimate</dt><dd className="num">{formatDurationS(f.slicerEstimateS)}</dd>
+            <dt className="text-ink-600">Layer height</dt><dd className="num">{formatNumber(f.layerHeightMm, 2, 'mm')}</dd>
             <dt className="text-ink-600">Walls</dt><dd className="num">{pair(f.walls)}</dd>
             <dt className="text-ink-600">Top / bottom layers</dt><dd className="num">{pair(f.topLayers)} / {pair(f.bottomLayers)}</dd>
-            <dt className="text-ink-600">Sparse infill</dt><dd className="num">{pair(f.infillPercent, 1, ' %')}</dd>
-            <dt className="text-ink-600">Line width</dt><dd className="num">{pair(f.lineWidthMm, 2, ' mm')}</dd>
-            <dt className="text-ink-600">Size X × Y × Z</dt><dd className="num">{f.sizeMm ? `${n(f.sizeMm.x, 1)} × ${n(f.sizeMm.y, 1)} × ${n(f.sizeMm.z, 1)} mm` : '—'}</dd>
+            <dt className="text-ink-600">Sparse infill</dt><dd className="num">{pair(f.infillPercent, 1, '%')}</dd>
+            <dt className="text-ink-600">Line width</dt><dd className="num">{pair(f.lineWidthMm, 2, 'mm')}</dd>
+            <dt className="text-ink-600">Size X × Y × Z</dt><dd className="num">{f.sizeMm ? `${formatNumber(f.sizeMm.x, 1)} × ${formatNumber(f.sizeMm.y, 1)} × ${formatNumber(f.sizeMm.z, 1)} mm` : '—'}</dd>
             <dt className="text-ink-600">Objects</dt><dd className="num">{f.objects ?? '—'}</dd>
-            <dt className="text-ink-600">Filament</dt><dd className="num">{n(f.filamentVolumeMm3, 0, ' mm³')} · {n(f.filamentMassG, 1, ' g')}</dd>
+            <dt className="text-ink-600">Filament</dt><dd className="num">{formatNumber(f.filamentVolumeMm3, 0, 'mm³')} · {formatNumber(f.filamentMassG, 1, 'g')}</dd>
           </dl>
           {f.slicer && <p className="mt-2 text-xs text-ink-500">Sliced with {f.slicer}</p>}
         </section>

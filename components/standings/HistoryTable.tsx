@@ -1,7 +1,7 @@
 /** Verified entries across seasons with their standings rank (entrant and machine pages). */
 import Link from 'next/link';
 import type { HistoryEntry } from '@/lib/standings/views';
-import { formatDate, formatDurationMs } from '@/lib/format';
+import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 
 export function HistoryTable({ entries, show }: { entries: HistoryEntry[]; show: 'machine' | 'entrant' }) {
@@ -22,7 +22,7 @@ export function HistoryTable({ entries, show }: { entries: HistoryEntry[]; show:
             <td><Link className="num" href={`/entries/${e.entry_id}`}>{formatDurationMs(e.time_ms)}</Link></td>
             <td>{show === 'machine' ? <Link href={`/machines/${e.machine.id}`}>{e.machine.name}</Link> : <Link href={`/entrants/${e.entrant.id}`}>{e.entrant.name}</Link>}</td>
             <td>{MATERIALS[e.material as keyof typeof MATERIALS]?.label ?? e.material}</td>
-            <td className="num">{e.peak_flow_mm3s == null ? '—' : e.peak_flow_mm3s.toFixed(1)}</td>
+            <td className="num">{formatNumber(e.peak_flow_mm3s, 1)}</td>
             <td>{formatDate(e.date)}</td>
           </tr>
         ))}

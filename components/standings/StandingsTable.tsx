@@ -12,9 +12,8 @@ import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
 import type { StandingsPage, StandingsRow } from '@/lib/standings/query';
-import { formatDate, formatDurationMs } from '@/lib/format';
+import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
 
-const fixed = (v: number | null, d: number) => (v == null ? '—' : v.toFixed(d));
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
 const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
 
@@ -135,11 +134,11 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
       col.accessor('machine', { header: 'Machine', cell: (c) => <Link href={`/machines/${c.row.original.machine_id}`}>{c.getValue()}</Link> }),
       col.accessor('motion', { header: 'Motion', enableSorting: false, cell: (c) => motionLabel(c.getValue()) }),
       col.accessor('material', { header: 'Material', enableSorting: false, cell: (c) => materialLabel(c.getValue()) }),
-      col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: (c) => <span className="num">{fixed(c.getValue(), 2)}</span> }),
+      col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),
       col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
-      col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: (c) => <span className="num">{fixed(c.getValue(), 1)}</span> }),
-      col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: (c) => <span className="num">{fixed(c.getValue(), 1)}</span> }),
-      col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: (c) => <span className="num">{fixed(c.getValue(), 2)}</span> }),
+      col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
+      col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
+      col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),
       col.accessor('date', { header: 'Submitted', cell: (c) => formatDate(c.getValue()) }),
     ],
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -258,7 +257,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
                           <ul className="space-y-1 text-sm" aria-label={`Other runs of ${row.original.entrant}`}>
                             {runs.map((r) => (
                               <li key={r.entry_id}>
-                                <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {fixed(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
+                                <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {formatNumber(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
                               </li>
                             ))}
                           </ul>

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth/guard';
 import { reviewQueue, QueueFilterSchema, type QueueFilter } from '@/lib/reviews/queue';
 import { QUEUE_FLAG_FILTERS, QUEUE_FLAG_FILTER_LIST } from '@/lib/reviews/flags';
-import { formatDurationMs, formatDateTime } from '@/lib/format';
+import { formatDurationMs, formatDurationS, formatDateTime } from '@/lib/format';
 
 export const metadata = { title: 'Review desk' };
 
@@ -64,7 +64,7 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
                   <td className="num"><Link href={`/judging/entries/${e.id}`}>Review #{e.id}</Link></td>
                   <td>{e.season}</td><td>{e.class}</td><td>{e.entrant}</td>
                   <td className="num">{formatDurationMs(e.claimedTimeMs)}</td>
-                  <td className="num">{e.inspection?.estimatedTimeS != null ? formatDurationMs(e.inspection.estimatedTimeS * 1000) : '—'}</td>
+                  <td className="num">{formatDurationS(e.inspection?.estimatedTimeS)}</td>
                   <td className="space-x-1">{e.flags.map((f) => <span key={f} className={`pill ${FLAG_TONE[f]}`}>{QUEUE_FLAG_FILTERS[f]}</span>)}{!e.inspection && <span className="pill bg-ink-100 text-ink-600">not inspected</span>}</td>
                   <td className="num">{e.verifications.count}/{e.verifications.required}{e.verifications.byMe ? ' (you)' : ''}</td>
                   <td>{formatDateTime(e.submittedAt)}</td>

@@ -2,14 +2,10 @@ import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth/guard';
 import { organizerDashboard } from '@/lib/seasons';
 import { StatePill } from '@/components/StatePill';
-import { formatDate, formatDateTime } from '@/lib/format';
+import { formatDate, formatDateTime, formatDurationS } from '@/lib/format';
 import { ENTRY_STATES } from '@/lib/domain';
 
 export const metadata = { title: 'Organize' };
-
-function waitedFor(h: number) {
-  return h < 48 ? `${Math.round(h)} h` : `${Math.round(h / 24)} days`;
-}
 
 export default async function OrganizePage() {
   await requirePageRole('/organize', 'organizer');
@@ -44,7 +40,7 @@ export default async function OrganizePage() {
               <h3 className="text-sm font-semibold text-ink-700">Oldest entry waiting for review</h3>
               {s.oldestWaiting ? (
                 <p className="text-sm" data-testid="oldest-waiting">
-                  #{s.oldestWaiting.entryId} by {s.oldestWaiting.entrant}, submitted {formatDateTime(s.oldestWaiting.submittedAt, s.timeZone)} — waiting {waitedFor(s.oldestWaiting.waitingH)}
+                  #{s.oldestWaiting.entryId} by {s.oldestWaiting.entrant}, submitted {formatDateTime(s.oldestWaiting.submittedAt, s.timeZone)} — waiting {formatDurationS(s.oldestWaiting.waitingH * 3600)}
                 </p>
               ) : <p className="text-sm text-ink-600">Nothing is waiting.</p>}
             </div>

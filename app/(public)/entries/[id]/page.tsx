@@ -2,13 +2,11 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
 import { FlowChart } from '@/components/charts/FlowChart';
-import { formatDate, formatDateTime, formatDurationMs } from '@/lib/format';
+import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 
 export const metadata = { title: 'Entry' };
-
-const fig = (v: number | null | undefined, d: number, unit: string) => (v == null ? '—' : `${v.toFixed(d)} ${unit}`);
 
 export default async function EntryPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
@@ -51,10 +49,10 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
         <div className="card text-sm">
           <h2 className="mb-2">Inspection figures</h2>
           <dl className="space-y-1">
-          <dt className="font-semibold">Peak flow</dt><dd className="num">{fig(i?.peak_flow_mm3s, 1, 'mm³/s')}</dd>
-          <dt className="font-semibold">95th percentile flow</dt><dd className="num">{fig(i?.p95_flow_mm3s, 1, 'mm³/s')}</dd>
-          <dt className="font-semibold">Layer height</dt><dd className="num">{fig(i?.layer_height_mm, 2, 'mm')}</dd>
-          <dt className="font-semibold">Estimated print time</dt><dd className="num">{i?.estimated_time_s != null ? formatDurationMs(i.estimated_time_s * 1000) : '—'}</dd>
+          <dt className="font-semibold">Peak flow</dt><dd className="num">{formatNumber(i?.peak_flow_mm3s, 1, 'mm³/s')}</dd>
+          <dt className="font-semibold">95th percentile flow</dt><dd className="num">{formatNumber(i?.p95_flow_mm3s, 1, 'mm³/s')}</dd>
+          <dt className="font-semibold">Layer height</dt><dd className="num">{formatNumber(i?.layer_height_mm, 2, 'mm')}</dd>
+          <dt className="font-semibold">Estimated print time</dt><dd className="num">{formatDurationS(i?.estimated_time_s)}</dd>
           {!!i && i.rules.pass + i.rules.fail + i.rules.unknown > 0 && (<><dt className="font-semibold">Rulebook</dt><dd>{i.rules.pass} pass · {i.rules.fail} fail · {i.rules.unknown} not measured</dd></>)}
           </dl>
         </div>

@@ -10,7 +10,7 @@ import { DECISION_LABELS, reasonLabel } from '@/lib/reviews/reasons';
 import { CHECKLIST_ITEMS, CHECK_ANSWER_LABELS, type CheckAnswer, type ChecklistItem } from '@/lib/reviews/checklist';
 import { DECIDABLE_STATES } from '@/lib/reviews/schemas';
 import { MOTION_SYSTEM_LABELS, type MotionSystem, type ReviewDecision } from '@/lib/domain';
-import { formatDurationMs, formatDateTime } from '@/lib/format';
+import { formatDurationMs, formatDurationS, formatDateTime, formatNumber } from '@/lib/format';
 import { StatePill } from '@/components/StatePill';
 import { formatRuleMeasured } from '@/lib/inspection/rules';
 import { PhotoGallery } from '@/components/judging/PhotoGallery';
@@ -20,7 +20,6 @@ import { DecisionForm } from '@/components/judging/DecisionForm';
 
 export const metadata = { title: 'Review an entry' };
 
-const fmt = (v: number | null | undefined, digits = 2, unit = '') => (v == null ? '—' : `${v.toFixed(digits)}${unit ? ` ${unit}` : ''}`);
 const STATUS_TONE: Record<string, string> = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' };
 const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
 
@@ -64,13 +63,13 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
         </div>
         <div className="card">
           <h2>Estimated minimum</h2>
-          <p className="num text-2xl" data-testid="estimated-time">{estS != null ? formatDurationMs(estS * 1000) : '—'}</p>
+          <p className="num text-2xl" data-testid="estimated-time">{formatDurationS(estS)}</p>
           {estS != null && (
             <p className={`text-sm ${claimedS < estS ? 'font-semibold text-alarm-700' : 'text-ink-600'}`}>
-              Claimed is {claimedS >= estS ? `${formatDurationMs((claimedS - estS) * 1000)} slower than` : `${formatDurationMs((estS - claimedS) * 1000)} faster than`} the file allows ({(((claimedS - estS) / estS) * 100).toFixed(1)} %).
+              Claimed is {claimedS >= estS ? `${formatDurationS(claimedS - estS)} slower than` : `${formatDurationS(estS - claimedS)} faster than`} the file allows ({formatNumber(((claimedS - estS) / estS) * 100, 1, '%')}).
             </p>
           )}
-          {insp?.headline.slicerEstimateS != null && <p className="text-xs text-ink-500">Slicer’s own estimate: {formatDurationMs(insp.headline.slicerEstimateS * 1000)}</p>}
+          {insp?.headline.slicerEstimateS != null && <p className="text-xs text-ink-500">Slicer’s own estimate: {formatDurationS(insp.headline.slicerEstimateS)}</p>}
         </div>
         <div className="card">
           <h2>Evidence</h2>
@@ -110,7 +109,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
         {!insp ? <p>This entry has not been inspected yet.</p> : insp.status !== 'done' ? <p>Inspection {insp.status}{insp.error ? `: ${insp.error}` : ''}.</p> : (
           <>
             <p className="num text-sm text-ink-700">
-              Peak flow {fmt(insp.headline.peakFlowMm3s, 1, 'mm³/s')} · 95th percentile {fmt(insp.headline.p95FlowMm3s, 1, 'mm³/s')} · mean {fmt(insp.headline.meanFlowMm3s, 1, 'mm³/s')} · {insp.headline.layers ?? '—'} layers of {fmt(insp.headline.layerHeightMm, 2, 'mm')} · {fmt(insp.headline.massG, 1, 'g')} · {insp.headline.slicer ?? 'unknown slicer'} · engine {insp.engineVersion}
+              Peak flow {formatNumber(insp.headline.peakFlowMm3s, 1, 'mm³/s')} · 95th percentile {formatNumber(insp.headline.p95FlowMm3s, 1, 'mm³/s')} · mean {formatNumber(insp.headline.meanFlowMm3s, 1, 'mm³/s')} · {insp.headline.layers ?? '—'} layers of {formatNumber(insp.headline.layerHeightMm, 2, 'mm')} · {formatNumber(insp.headline.massG, 1, 'g')} · {insp.headline.slicer ?? 'unknown slicer'} · engine {insp.engineVersion}
             </p>
             <div className="overflow-x-auto">
               <h3 className="font-semibold">Rule results</h3>
