@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
 import { FlowChart } from '@/components/charts/FlowChart';
+import { SeverityPill } from '@/components/standings/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
@@ -65,7 +66,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
           )}
           {!!i?.flags.length && (
             <ul className="mt-3 space-y-1">
-              {i.flags.map((f, k) => <li key={k}><span className={`pill ${f.severity === 'blocking' ? 'bg-alarm-100 text-alarm-700' : 'bg-ember-100 text-ember-800'}`}>{f.severity}</span> {f.message}</li>)}
+              {i.flags.map((f, k) => <li key={k}><SeverityPill severity={f.severity} /> {f.message}</li>)}
             </ul>
           )}
         </section>
