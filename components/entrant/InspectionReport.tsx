@@ -4,12 +4,12 @@
  * entries library returns (inspectionJson), so judging and public pages can show it too.
  */
 import { FlowChart } from '@/components/charts/FlowChart';
+import { SeverityPill } from '@/components/SeverityPill';
 import type { InspectionJson } from '@/lib/entries/inspection';
 import { formatRuleMeasured } from '@/lib/inspection/rules';
 import { formatDurationS, formatNumber } from '@/lib/format';
 
 const STATUS_TONE = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' } as const;
-const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
 const SOURCE_LABEL: Record<string, string> = { measured: 'measured from the toolpaths', declared: 'declared by the slicer', default: 'default', claimed: 'claimed', option: 'option' };
 
 function pair(p: { declared: number | null; measured: number | null } | null, digits = 0, unit = '') {
@@ -101,7 +101,7 @@ export function InspectionReport({ inspection, limitMm3s = null, audience = 'ent
         ) : (
           <ul className="space-y-1 text-sm" data-testid="inspection-flags">
             {inspection.flags.filter((x) => x.severity !== 'info').map((x, i) => (
-              <li key={i}><span className={`pill mr-2 ${SEVERITY_TONE[x.severity] ?? ''}`}>{x.severity}</span>{x.message}</li>
+              <li key={i}><SeverityPill severity={x.severity} /> {x.message}</li>
             ))}
           </ul>
         )}

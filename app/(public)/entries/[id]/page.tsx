@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
 import { FlowChart } from '@/components/charts/FlowChart';
-import { SeverityPill } from '@/components/standings/SeverityPill';
+import { SeverityPill } from '@/components/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { publicSeason } from '@/lib/seasonView';
 import { StatePill } from '@/components/StatePill';
-import { SeverityPill } from '@/components/standings/SeverityPill';
+import { SeverityPill } from '@/components/SeverityPill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { formatDateTime } from '@/lib/format';
 import { Markdown } from '@/components/organizer/Markdown';

@@ -16,12 +16,12 @@ import { formatRuleMeasured } from '@/lib/inspection/rules';
 import { PhotoGallery } from '@/components/judging/PhotoGallery';
 import { LayerPreview } from '@/components/judging/LayerPreview';
 import { FlowChart } from '@/components/charts/FlowChart';
+import { SeverityPill } from '@/components/SeverityPill';
 import { DecisionForm } from '@/components/judging/DecisionForm';
 
 export const metadata = { title: 'Review an entry' };
 
 const STATUS_TONE: Record<string, string> = { pass: 'bg-coolant-100 text-coolant-700', fail: 'bg-alarm-100 text-alarm-700', unknown: 'bg-ink-100 text-ink-700' };
-const SEVERITY_TONE: Record<string, string> = { blocking: 'bg-alarm-100 text-alarm-700', advisory: 'bg-ember-100 text-ember-800', info: 'bg-ink-100 text-ink-700' };
 
 async function load(judgeId: number, id: number): Promise<EntryReview> {
   try {
@@ -139,7 +139,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
               <h3 className="font-semibold">Flags</h3>
               {insp.flags.length === 0 ? <p className="text-sm">No flags.</p> : (
                 <ul className="space-y-1 text-sm" data-testid="flags">
-                  {insp.flags.map((f, i) => <li key={i}><span className={`pill ${SEVERITY_TONE[f.severity] ?? ''}`}>{f.severity}</span> {f.message || f.code}</li>)}
+                  {insp.flags.map((f, i) => <li key={i}><SeverityPill severity={f.severity} /> {f.message || f.code}</li>)}
                 </ul>
               )}
             </div>

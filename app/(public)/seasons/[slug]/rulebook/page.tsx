@@ -10,7 +10,7 @@ import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
 import { formatDateTime } from '@/lib/format';
-import { SeverityPill } from '@/components/standings/SeverityPill';
+import { SeverityPill } from '@/components/SeverityPill';
 
 export async function generateMetadata({ params }: { params: Promise<{ slug: string }> }) {
   const { slug } = await params;
