@@ -12,7 +12,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
 import sqlite3 from 'sqlite3';
-import { testEnv } from '../tests/support/server';
+import { testEnv, waitForServer } from '../tests/support/server';
+import { mulberry32 } from '../tests/support/prng';
 
 const ROOT = path.resolve(__dirname, '..');
 
@@ -25,18 +26,6 @@ const MATERIALS = ['pla', 'pla', 'pla', 'petg', 'petg', 'abs', 'asa', 'tpu', 'pa
 const MOTIONS = ['corexy', 'corexy', 'cartesian', 'delta', 'other'];
 const WORDS = ['Kestrel', 'Anvil', 'Heron', 'Spire', 'Wren', 'Comet', 'Lathe', 'Quarry', 'Tern', 'Harbor', 'Ridge', 'Pylon'];
 const STATES = ['verified', 'verified', 'verified', 'verified', 'verified', 'verified', 'verified', 'verified', 'submitted', 'rejected'];
-
-/** Deterministic pseudo-random numbers (mulberry32), so every run builds the same data set. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const stamp = (ms: number) => new Date(ms).toISOString().replace('T', ' ').replace('Z', ' +00:00');
 
@@ -69,7 +58,8 @@ export async function generate(entries: number, port: number, log = console.log)
   await run(db, 'PRAGMA journal_mode = WAL');
   const [season] = await all<{ id: number }>(db, "SELECT id FROM seasons WHERE slug = 'frostbite-sprint'");
   const classes = await all<{ id: number; slug: string }>(db, 'SELECT id, slug FROM classes WHERE season_id = ? ORDER BY display_order', [season.id]);
-  const rand = rng(20261201);
+  // Seeded, so every run builds the same data set.
+  const rand = mulberry32(20261201);
   const now = stamp(Date.now());
   const entrants = Math.max(1, Math.round(entries / 10));
   await run(db, 'BEGIN');
@@ -141,20 +131,8 @@ export async function startApp(gen: Generated, port: number): Promise<Server> {
     env: { ...process.env, ...gen.env, NODE_ENV: 'production' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  let out = '';
-  child.stdout?.on('data', (d) => (out += d));
-  child.stderr?.on('data', (d) => (out += d));
   const url = `http://127.0.0.1:${port}`;
-  const deadline = Date.now() + 60_000;
-  for (;;) {
-    try {
-      if ((await fetch(`${url}/api/v1/seasons`)).ok) break;
-    } catch {
-      /* not up yet */
-    }
-    if (child.exitCode !== null || Date.now() > deadline) throw new Error(`The app did not start:\n${out}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
+  await waitForServer(child, `${url}/api/v1/seasons`, 'The app');
   return {
     url,
     async stop() {

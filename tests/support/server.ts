@@ -41,6 +41,26 @@ export function prepareDatabase(env: Record<string, string>) {
   });
 }
 
+/**
+ * Resolves once `readyUrl` answers 2xx (polled every 250 ms). Throws with everything the child wrote
+ * if it exits first or 60 s pass. Keeps reading the child's output afterwards so its pipes never fill.
+ */
+export async function waitForServer(child: ChildProcess, readyUrl: string, label = 'The server', timeoutMs = 60_000): Promise<void> {
+  let log = '';
+  child.stdout?.on('data', (d) => (log += d));
+  child.stderr?.on('data', (d) => (log += d));
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    try {
+      if ((await fetch(readyUrl)).ok) return;
+    } catch {
+      /* not up yet */
+    }
+    if (child.exitCode !== null || Date.now() > deadline) throw new Error(`${label} did not start:\n${log}`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
+
 export async function startServer(port: number): Promise<TestServer> {
   if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-'));
@@ -51,21 +71,8 @@ export async function startServer(port: number): Promise<TestServer> {
     env: { ...process.env, ...env, NODE_ENV: 'production' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  let log = '';
-  child.stdout?.on('data', (d) => (log += d));
-  child.stderr?.on('data', (d) => (log += d));
   const url = `http://127.0.0.1:${port}`;
-  const deadline = Date.now() + 60_000;
-  for (;;) {
-    try {
-      const res = await fetch(`${url}/api/auth/csrf`);
-      if (res.ok) break;
-    } catch {
-      /* not up yet */
-    }
-    if (child.exitCode !== null || Date.now() > deadline) throw new Error(`The test server did not start:\n${log}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
+  await waitForServer(child, `${url}/api/auth/csrf`, 'The test server');
   return {
     url,
     dbFile: path.join(dataDir, 'hotlap.sqlite'),

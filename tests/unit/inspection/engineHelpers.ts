@@ -52,18 +52,6 @@ export function inspectBytes(bytes: Buffer | string, options: InspectOptions = {
   return inspectStream(Readable.from(chunks), { skipToolpathSettings: true, ...options });
 }
 
-/** Deterministic PRNG (mulberry32) for the fuzz tests. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 /** Every number reachable in a value, with its path (for NaN / Infinity checks). */
 export function numbersIn(value: unknown, path = '$', out: { path: string; value: number }[] = []): { path: string; value: number }[] {
   if (typeof value === 'number') out.push({ path, value });

@@ -9,7 +9,8 @@ import { gunzipSync, gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { InspectionError } from '../../../lib/inspection/reader';
 import { toJsonReport } from '../../../lib/inspection/report';
-import { inspectBytes, mulberry32, numbersIn } from './engineHelpers';
+import { mulberry32 } from '../../support/prng';
+import { inspectBytes, numbersIn } from './engineHelpers';
 
 const fixture = gunzipSync(readFileSync(join(__dirname, '../../fixtures/gcode/prusa-cube20-relative-e.gcode.gz'))).toString('latin1');
 const fixtureLines = fixture.split('\n');
