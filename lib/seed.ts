@@ -10,6 +10,7 @@ import { ContestClass, Entry, Machine, Rule, Season, SeasonJudge, StoredFile, Te
 import { getSequelize, dataDir } from '@/lib/db';
 import { hashPassword } from '@/lib/auth/password';
 import { parseStl } from '@/lib/stl';
+import { testPieceColumns } from '@/lib/seasons/testPiece';
 import { RuleSchema, ruleSentence, type Rule as RuleInput } from '@/lib/inspection/rules';
 import type { Role, EntryState, MotionSystem } from '@/lib/domain';
 
@@ -121,20 +122,7 @@ export async function seedDemo(opts: { log?: (s: string) => void } = {}) {
         },
         { transaction },
       );
-      await TestPiece.create(
-        {
-          seasonId: season.id,
-          storedFileId: file.id,
-          name: 'Beacon',
-          format: stl.format,
-          triangleCount: stl.triangleCount,
-          sizeXMm: stl.sizeMm.x,
-          sizeYMm: stl.sizeMm.y,
-          sizeZMm: stl.sizeMm.z,
-          volumeMm3: stl.volumeMm3,
-        },
-        { transaction },
-      );
+      await TestPiece.create({ seasonId: season.id, storedFileId: file.id, name: 'Beacon', ...testPieceColumns(stl) }, { transaction });
     }
 
     const classes: Record<string, ContestClass> = {};

@@ -35,6 +35,18 @@ export function testPieceJson(tp: TestPiece | null) {
   };
 }
 
+/** The test_pieces columns an STL's measurement fills (the upload here and the demo seed). */
+export function testPieceColumns(stl: StlSummary) {
+  return {
+    format: stl.format,
+    triangleCount: stl.triangleCount,
+    sizeXMm: stl.sizeMm.x,
+    sizeYMm: stl.sizeMm.y,
+    sizeZMm: stl.sizeMm.z,
+    volumeMm3: stl.volumeMm3,
+  };
+}
+
 export async function saveTestPiece(actor: Actor, seasonId: number, upload: UploadResult) {
   try {
     const file = upload.files.file[0];
@@ -60,17 +72,7 @@ export async function saveTestPiece(actor: Actor, seasonId: number, upload: Uplo
           { ownerId: actor.user.id, entryId: null, kind: 'test_piece', originalName: file.originalName, mime: 'model/stl', sizeBytes: file.sizeBytes, sha256: file.sha256, storageKey: key, meta: { format: stl.format, warnings: stl.warnings } },
           { transaction },
         );
-        const values = {
-          seasonId: season.id,
-          storedFileId: stored.id,
-          name,
-          format: stl.format,
-          triangleCount: stl.triangleCount,
-          sizeXMm: stl.sizeMm.x,
-          sizeYMm: stl.sizeMm.y,
-          sizeZMm: stl.sizeMm.z,
-          volumeMm3: stl.volumeMm3,
-        };
+        const values = { seasonId: season.id, storedFileId: stored.id, name, ...testPieceColumns(stl) };
         const existing = await TestPiece.findOne({ where: { seasonId: season.id }, transaction });
         const tp = existing ? await existing.update(values, { transaction }) : await TestPiece.create(values, { transaction });
         await audit('season.test_piece_uploaded', { type: 'season', id: season.id }, {

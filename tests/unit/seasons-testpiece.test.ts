@@ -8,6 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { measureStlFile } from '@/lib/seasons/stlMeasure';
+import { testPieceColumns } from '@/lib/seasons/testPiece';
 import { StlError } from '@/lib/stl';
 import { cuboid, cylinder, toAsciiStl, toBinaryStl } from '@/scripts/fixtures/shapes';
 
@@ -40,6 +41,19 @@ describe('test piece measurement', () => {
       expect(m.sizeMm.y).toBeCloseTo(20, 5);
       expect(m.sizeMm.z).toBeCloseTo(15, 5);
       expect(m.volumeMm3).toBeCloseTo(7500, 2);
+    });
+
+    it(`maps the ${form} box to the test_pieces columns`, async () => {
+      const m = await measureStlFile(write(`box-cols-${form}.stl`, form === 'ascii' ? toAsciiStl(box) : toBinaryStl(box)));
+      const cols = testPieceColumns(m);
+      expect(Object.keys(cols).sort()).toEqual(['format', 'sizeXMm', 'sizeYMm', 'sizeZMm', 'triangleCount', 'volumeMm3']);
+      expect(cols.format).toBe(form);
+      expect(cols.triangleCount).toBe(12);
+      // The same 25 × 20 × 15 mm box, 7500 mm³ (elementary geometry), as columns.
+      expect(cols.sizeXMm).toBeCloseTo(25, 5);
+      expect(cols.sizeYMm).toBeCloseTo(20, 5);
+      expect(cols.sizeZMm).toBeCloseTo(15, 5);
+      expect(cols.volumeMm3).toBeCloseTo(7500, 2);
     });
 
     it(`measures a 64-gon cylinder from ${form} STL`, async () => {
