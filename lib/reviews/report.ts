@@ -25,7 +25,10 @@ export function pick(o: unknown, ...paths: string[]): unknown {
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 const nums = (v: unknown): number[] => (Array.isArray(v) ? v.map((x) => (typeof x === 'number' && Number.isFinite(x) ? x : 0)) : []);
 
-/** Flow over print time for the chart (components/charts/FlowChart): fixed time buckets, peak and mean, mm³/s. */
+/**
+ * Flow over print time for the chart (components/charts/FlowChart): fixed time buckets, peak and mean,
+ * mm³/s. The one reader of flow.time_series; lib/standings/summary.ts thins it for the public API.
+ */
 export function flowSeries(report: unknown): { bucketS: number; maxMm3s: number[]; meanMm3s: number[] } {
   const bucketS = num(pick(report, 'flow.time_series.bucket_s', 'flow.timeSeries.bucketS')) ?? 0;
   if (!(bucketS > 0)) return { bucketS: 1, maxMm3s: [], meanMm3s: [] };

@@ -5,4 +5,4 @@ export * from './freeze';
 export * from './csv';
 export * from './views';
 export * from './overview';
-export { inspectionSummary, flowSeries, type FlowSeries } from './summary';
+export { inspectionSummary, flowSeriesPoints, type FlowSeries } from './summary';

@@ -1,5 +1,6 @@
 /** The inspection in plain words for the public entry page, and the flow series for its chart. */
 import { formatDurationMs } from '@/lib/format';
+import { flowSeries } from '@/lib/reviews/report';
 
 type Json = Record<string, unknown> | null | undefined;
 const obj = (v: unknown): Json => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null);
@@ -11,13 +12,13 @@ export interface FlowSeries {
   points: { t_s: number; max_mm3s: number; mean_mm3s: number }[];
 }
 
-/** The report's flow time series (lib/inspection/report.ts: flow.time_series) as chart points. */
-export function flowSeries(report: Json): FlowSeries | null {
-  const ts = obj(obj(obj(report)?.flow)?.time_series);
-  const bucket = num(ts?.bucket_s);
-  const max = Array.isArray(ts?.max_mm3s) ? (ts!.max_mm3s as unknown[]) : null;
-  const mean = Array.isArray(ts?.mean_mm3s) ? (ts!.mean_mm3s as unknown[]) : null;
-  if (!bucket || bucket <= 0 || !max || !max.length) return null;
+/**
+ * The report's flow time series (read by lib/reviews/report.ts flowSeries) as chart points for the
+ * public API, or null when the report has none.
+ */
+export function flowSeriesPoints(report: Json): FlowSeries | null {
+  const { bucketS, maxMm3s: max, meanMm3s: mean } = flowSeries(report);
+  if (!max.length) return null;
   // A chart needs a few hundred points at most; merge neighbouring buckets, keeping each group's maximum.
   const step = Math.max(1, Math.ceil(max.length / 600));
   const points: FlowSeries['points'] = [];
@@ -26,13 +27,13 @@ export function flowSeries(report: Json): FlowSeries | null {
     let sum = 0;
     let n = 0;
     for (let j = i; j < Math.min(i + step, max.length); j++) {
-      m = Math.max(m, num(max[j]) ?? 0);
-      sum += num(mean?.[j]) ?? 0;
+      m = Math.max(m, max[j]);
+      sum += mean[j] ?? 0;
       n++;
     }
-    points.push({ t_s: Math.round(i * bucket * 10) / 10, max_mm3s: m, mean_mm3s: Math.round((sum / n) * 1000) / 1000 });
+    points.push({ t_s: Math.round(i * bucketS * 10) / 10, max_mm3s: m, mean_mm3s: Math.round((sum / n) * 1000) / 1000 });
   }
-  return { bucket_s: bucket * step, points };
+  return { bucket_s: bucketS * step, points };
 }
 
 /** Sentences a viewer can read without knowing the report's fields. Missing figures are left out. */

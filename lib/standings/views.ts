@@ -11,7 +11,7 @@ import { ruleSentence, RuleSchema } from '@/lib/inspection/rules';
 import { ensureFrozen, isFrozenState } from './freeze';
 import { isoDate, ranksOf, runFields, standingsPage, type ClassRef, type StandingsPage } from './query';
 import type { StandingsQuery } from './params';
-import { inspectionSummary, flowSeries, type FlowSeries } from './summary';
+import { inspectionSummary, flowSeriesPoints, type FlowSeries } from './summary';
 
 const seq = () => getSequelize();
 const select = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>): Promise<T[]> =>
@@ -346,7 +346,7 @@ export async function publicEntry(id: number): Promise<PublicEntry> {
             rules: { pass: count('pass'), fail: count('fail'), unknown: count('unknown') },
             flags: flags.map((f) => ({ code: String(f.code ?? ''), severity: String(f.severity ?? 'info'), message: String(f.message ?? '') })),
             summary: inspectionSummary({ report, claimedTimeMs: r.claimed_time_ms, rules: { pass: count('pass'), fail: count('fail'), unknown: count('unknown') }, flags: flags.length }),
-            flow_series: flowSeries(report),
+            flow_series: flowSeriesPoints(report),
           },
   };
 }

@@ -5,7 +5,7 @@ import { filterRows, sortRows, type StandingsRow } from '@/lib/standings/query';
 import { csvField, parseCsv, standingsCsv } from '@/lib/standings/csv';
 import { etagOf, matchesEtag } from '@/lib/standings/http';
 import { niceStep, sample, timeHistogram } from '@/lib/standings/overview';
-import { flowSeries, inspectionSummary } from '@/lib/standings/summary';
+import { flowSeriesPoints, inspectionSummary } from '@/lib/standings/summary';
 import { HttpError } from '@/lib/errors';
 
 const row = (rank: number, o: Partial<StandingsRow> = {}): StandingsRow => ({
@@ -149,10 +149,15 @@ describe('entry summary', () => {
     expect(inspectionSummary({ report: { flow: 'x', layers: [] } as never, claimedTimeMs: 1000, rules: { pass: 1, fail: 0, unknown: 0 }, flags: 0 })).toEqual(['All 1 rules of the rulebook pass.', 'The inspection raised no flags.']);
   });
   it('thins a long flow series to at most ~600 points, keeping the peak', () => {
-    const f = flowSeries(report)!;
+    const f = flowSeriesPoints(report)!;
     expect(f.points.length).toBeLessThanOrEqual(600);
     expect(f.bucket_s).toBe(6);
     expect(Math.max(...f.points.map((p) => p.max_mm3s))).toBe(28.4);
-    expect(flowSeries({ flow: { time_series: { bucket_s: 0, max_mm3s: [1] } } })).toBeNull();
+    expect(flowSeriesPoints({ flow: { time_series: { bucket_s: 0, max_mm3s: [1] } } })).toBeNull();
+    // The camelCase report object reads the same as the engine's snake_case JSON (lib/reviews/report.ts).
+    expect(flowSeriesPoints({ flow: { timeSeries: { bucketS: 2, maxMm3s: [3, 5], meanMm3s: [1, 2] } } })).toEqual({
+      bucket_s: 2,
+      points: [{ t_s: 0, max_mm3s: 3, mean_mm3s: 1 }, { t_s: 2, max_mm3s: 5, mean_mm3s: 2 }],
+    });
   });
 });
