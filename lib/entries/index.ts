@@ -20,7 +20,7 @@ import { EntryDetailsSchema, parseClaimedTime, type EntryDetails } from './schem
 import { classEligibility } from './eligibility';
 import { checkGcode, checkPhotos, ENTRY_UPLOAD_SPEC, FileWriter, type CheckedGcode, type CheckedPhoto } from './files';
 import { ENGINE_VERSION } from '@/lib/jobs';
-import { currentGcode, inspectionJson, latestInspection, queueInspection, reinspect, resumeInspection } from './inspection';
+import { currentGcodeOf, inspectionJson, latestInspection, queueInspection, reinspect, resumeInspection } from './inspection';
 
 export { ENTRY_UPLOAD_SPEC } from './files';
 
@@ -199,27 +199,38 @@ async function mailEntrant(entry: Entry, subject: string, intro: (where: string)
   await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro(`${season.name} (${cls.name})`), 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro));
 }
 
+/** What the caller has already read for an entry, so submitBlockers does not read it again. */
+export interface SubmitContext {
+  season?: Season;
+  /** All the entry's files: every kind, replaced ones too. */
+  files?: StoredFile[];
+  /** The entry's latest inspection (null: it has none). */
+  inspection?: Inspection | null;
+}
+
 /** What stands between this entry and submitting, as sentences (empty = may submit). */
-/** `loadedSeason`: the entry's season when the caller already has it (saves reading it again). */
-export async function submitBlockers(entry: Entry, loadedSeason?: Season): Promise<string[]> {
+export async function submitBlockers(entry: Entry, loaded: SubmitContext = {}): Promise<string[]> {
   const out: string[] = [];
-  const season = loadedSeason ?? (await Season.findByPk(entry.seasonId))!;
+  const [season, files, insp] = await Promise.all([
+    loaded.season ?? Season.findByPk(entry.seasonId).then((s) => s!),
+    loaded.files ?? StoredFile.findAll({ where: { entryId: entry.id }, attributes: ['id', 'kind', 'meta', 'createdAt'] }),
+    loaded.inspection !== undefined ? loaded.inspection : latestInspection(entry.id),
+  ]);
   if (season.state !== 'open') out.push(`${season.name} is not open for entries.`);
   if (!EDITABLE_STATES.includes(entry.state)) out.push(`The entry is ${entry.state}.`);
-  const gcode = await currentGcode(entry.id);
+  const gcode = currentGcodeOf(files);
   if (!gcode) out.push('Upload the G-code of your run.');
-  const photoCount = (await StoredFile.findAll({ where: { entryId: entry.id, kind: 'photo' }, attributes: ['id', 'meta'] })).filter((f) => !f.meta?.replacedAt).length;
+  const photoCount = files.filter((f) => f.kind === 'photo' && !f.meta?.replacedAt).length;
   if (photoCount < season.photosRequired) out.push(`The season asks for ${season.photosRequired} photos; this entry has ${photoCount}.`);
   if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link to the details.');
-  const insp = await latestInspection(entry.id);
   if (gcode) {
     if (!insp || insp.storedFileId !== gcode.id || insp.status === 'queued' || insp.status === 'running') out.push('The inspection is still running.');
     else if (insp.status === 'failed') out.push(`The inspection failed: ${insp.error ?? 'unknown reason'}. Upload the file again or inspect again.`);
     else if (insp.blockingFailures > 0) out.push(`The inspection found ${insp.blockingFailures} blocking problem${insp.blockingFailures > 1 ? 's' : ''}; fix ${insp.blockingFailures > 1 ? 'them' : 'it'} (see the report) and upload the corrected G-code.`);
   }
   if (entry.state === 'returned' && entry.decidedAt) {
-    const newer = await StoredFile.count({ where: { entryId: entry.id, createdAt: { [Op.gt]: entry.decidedAt } } });
-    if (newer === 0) out.push('The entry was returned: upload the corrected files before submitting it again.');
+    const decidedAt = entry.decidedAt;
+    if (!files.some((f) => f.createdAt > decidedAt)) out.push('The entry was returned: upload the corrected files before submitting it again.');
   }
   return out;
 }
@@ -229,7 +240,7 @@ export async function submitEntry(user: User, id: number) {
   const season = (await Season.findByPk(entry.seasonId))!;
   requireOpen(season);
   if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be submitted; this one is ${entry.state}.`);
-  const blockers = await submitBlockers(entry, season);
+  const blockers = await submitBlockers(entry, { season });
   if (blockers.length) throw unprocessable(blockers[0], { submit: blockers.join(' ') });
   const resubmitted = entry.state === 'returned';
   await entry.update({ state: 'submitted', submittedAt: new Date(), decidedAt: null });
@@ -331,7 +342,7 @@ export async function entryView(user: User, id: number) {
     reviews: reviews.map((r) => ({ id: r.id, decision: r.decision, reasonCodes: r.reasonCodes, note: r.note, createdAt: r.createdAt.toISOString() })),
     canEdit: editable,
     canSubmit: editable,
-    blockers: editable ? await submitBlockers(entry, season!) : [],
+    blockers: editable ? await submitBlockers(entry, { season: season!, files, inspection: current }) : [],
     canWithdraw: WITHDRAWABLE_STATES.includes(entry.state),
   };
 }

@@ -19,10 +19,16 @@ import { rulesForEntry } from './rules';
 
 const jobKey = (inspectionId: number) => `inspection:${inspectionId}`;
 
+/** The current G-code among an entry's files (any kinds, any order): the newest not replaced. */
+export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null {
+  let current: StoredFile | null = null;
+  for (const f of files) if (f.kind === 'gcode' && !f.meta?.replacedAt && (!current || f.id > current.id)) current = f;
+  return current;
+}
+
 /** The entry's current G-code (newest not replaced). */
 export async function currentGcode(entryId: number): Promise<StoredFile | null> {
-  const files = await StoredFile.findAll({ where: { entryId, kind: 'gcode' }, order: [['id', 'DESC']] });
-  return files.find((f) => !f.meta?.replacedAt) ?? null;
+  return currentGcodeOf(await StoredFile.findAll({ where: { entryId, kind: 'gcode' } }));
 }
 
 export async function latestInspection(entryId: number): Promise<Inspection | null> {

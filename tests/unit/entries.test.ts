@@ -1,6 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import { parseClaimedTime, EntryDetailsSchema } from '@/lib/entries/schema';
 import { classEligibility } from '@/lib/entries/eligibility';
+import { currentGcodeOf } from '@/lib/entries/inspection';
 
 describe('claimed time', () => {
   it('reads h:mm:ss.t and shorter forms', () => {
@@ -30,5 +31,15 @@ describe('class eligibility', () => {
     expect(classEligibility({ ...base, motionSystems: ['delta'] as never[] }, machine, 0.4, 'pla')[0]).toMatch(/Delta/);
     expect(classEligibility({ ...base, materialFamilies: ['petg'] }, machine, 0.4, 'pla')[0]).toMatch(/PETG/);
     expect(classEligibility({ ...base, modification: 'stock' }, machine, 0.4, 'pla')[0]).toMatch(/stock/);
+  });
+});
+
+describe('current G-code', () => {
+  it('is the newest G-code not replaced, whatever the order and the other kinds', () => {
+    type Files = Parameters<typeof currentGcodeOf>[0];
+    const f = (id: number, kind: string, replacedAt?: string) => ({ id, kind, meta: replacedAt ? { replacedAt } : {} });
+    const files = [f(3, 'gcode'), f(1, 'gcode', '2026-11-01T10:00:00Z'), f(7, 'photo'), f(5, 'gcode'), f(6, 'gcode', '2026-11-02T10:00:00Z')] as unknown as Files;
+    expect(currentGcodeOf(files)?.id).toBe(5);
+    expect(currentGcodeOf([f(2, 'gcode', '2026-11-01T10:00:00Z'), f(4, 'project')] as unknown as Files)).toBeNull();
   });
 });
