@@ -23,8 +23,8 @@ export const NEXT_STATE: Record<SeasonState, SeasonState | null> = {
   archived: null,
 };
 
-/** Reasons the season cannot move to `to` now; empty when it can. */
-export async function transitionBlockers(season: Season, to: SeasonState): Promise<string[]> {
+/** Reasons the season cannot move to `to` now; empty when it can. `known`: the season's test piece and classes when the caller has read them already. */
+export async function transitionBlockers(season: Season, to: SeasonState, known?: { testPiece: TestPiece | null; classes: readonly ContestClass[] }): Promise<string[]> {
   const next = NEXT_STATE[season.state as SeasonState];
   if (to !== next)
     return [next
@@ -32,8 +32,10 @@ export async function transitionBlockers(season: Season, to: SeasonState): Promi
       : `The season is ${season.state}; nothing follows that state.`];
   const reasons: string[] = [];
   if (to === 'open') {
-    if (!(await TestPiece.count({ where: { seasonId: season.id } }))) reasons.push('it has no test piece yet: upload the STL everyone prints');
-    if (!(await ContestClass.count({ where: { seasonId: season.id } }))) reasons.push('it has no class yet: add at least one class');
+    const hasTestPiece = known ? !!known.testPiece : (await TestPiece.count({ where: { seasonId: season.id } })) > 0;
+    const classCount = known ? known.classes.length : await ContestClass.count({ where: { seasonId: season.id } });
+    if (!hasTestPiece) reasons.push('it has no test piece yet: upload the STL everyone prints');
+    if (!classCount) reasons.push('it has no class yet: add at least one class');
   }
   if (to === 'final') {
     const waiting = await Entry.count({ where: { seasonId: season.id, state: 'submitted' } });

@@ -14,14 +14,16 @@ import { organizerDashboard } from '@/lib/seasons/dashboard';
 export async function organizerSeasonView(seasonId: number) {
   const season = await managedSeason(seasonId);
   const next = NEXT_STATE[season.state as SeasonState];
+  const testPieceRead = TestPiece.findOne({ where: { seasonId } });
+  const classesRead = seasonClasses(seasonId);
   const [testPiece, classes, rules, judges, subscribers, [dashboard], blockers, submittedEntries] = await Promise.all([
-    TestPiece.findOne({ where: { seasonId } }),
-    seasonClasses(seasonId),
+    testPieceRead,
+    classesRead,
     rulebookRules(seasonId),
     seasonJudges(seasonId),
     subscriberCount(seasonId),
     organizerDashboard({ seasonId }),
-    next ? transitionBlockers(season, next) : Promise.resolve([] as string[]),
+    next ? Promise.all([testPieceRead, classesRead]).then(([t, c]) => transitionBlockers(season, next, { testPiece: t, classes: c })) : Promise.resolve([] as string[]),
     submittedEntryCount(seasonId),
   ]);
   return {
