@@ -1,5 +1,6 @@
-/** Everything the organizer's season page and its GET route show, in one plain object. */
-import { TestPiece } from '@/models';
+/** Reading a season for a page: the public view (classes, test piece, rulebook) and the organizer's view. */
+import { Op } from 'sequelize';
+import { Rule, Season, TestPiece } from '@/models';
 import type { SeasonState } from '@/lib/domain';
 import { managedSeason } from '@/lib/seasons/context';
 import { seasonJson } from '@/lib/seasons/editor';
@@ -11,6 +12,19 @@ import { seasonJudges } from '@/lib/seasons/judges';
 import { subscriberCount } from '@/lib/seasons/subscriptions';
 import { organizerDashboard } from '@/lib/seasons/dashboard';
 
+/** Public view of one season (null for a draft or an unknown slug): classes, test piece and rulebook. */
+export async function publicSeason(slug: string) {
+  const season = await Season.findOne({ where: { slug, state: { [Op.ne]: 'draft' } } });
+  if (!season) return null;
+  const [classes, rules, testPiece] = await Promise.all([
+    seasonClasses(season.id),
+    Rule.findAll({ where: { seasonId: season.id }, order: [['classId', 'ASC'], ['position', 'ASC'], ['id', 'ASC']] }),
+    TestPiece.findOne({ where: { seasonId: season.id } }),
+  ]);
+  return { season, classes, rules, testPiece };
+}
+
+/** Everything the organizer's season page and its GET route show, in one plain object. */
 export async function organizerSeasonView(seasonId: number) {
   const season = await managedSeason(seasonId);
   const next = NEXT_STATE[season.state as SeasonState];

@@ -1,6 +1,6 @@
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
-import { publicSeason } from '@/lib/seasonView';
+import { publicSeason } from '@/lib/seasons/view';
 import { StatePill } from '@/components/StatePill';
 import { SeverityPill } from '@/components/SeverityPill';
 import { SafetyNotes } from '@/components/SafetyNotes';

@@ -1,7 +1,7 @@
 /** The read-only public rulebook: the same stored rules the engine checks, as plain sentences. */
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
-import { publicSeason } from '@/lib/seasonView';
+import { publicSeason } from '@/lib/seasons/view';
 import { currentUser } from '@/lib/auth/guard';
 import { isSubscribed } from '@/lib/seasons/subscriptions';
 import { eligibilityText } from '@/lib/seasons/eligibility';
