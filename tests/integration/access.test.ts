@@ -10,7 +10,7 @@ const dbFile = inject('dbFile');
 /** Every protected API route, the role it needs, and a request that would otherwise be valid. */
 const PROTECTED: { method: 'GET' | 'PUT'; path: string; role: Role | 'any'; body?: unknown }[] = [
   { method: 'GET', path: '/api/me', role: 'any' },
-  { method: 'GET', path: '/api/entrant/overview', role: 'entrant' },
+  { method: 'GET', path: '/api/entries', role: 'entrant' },
   { method: 'GET', path: '/api/judging/queue', role: 'judge' },
   { method: 'GET', path: '/api/organizer/seasons', role: 'organizer' },
   { method: 'GET', path: '/api/admin/users', role: 'admin' },
