@@ -10,7 +10,7 @@ import { audit } from '@/lib/audit';
 import { HttpError, notFound } from '@/lib/errors';
 import { exists, localPath, openRead, putBuffer } from '@/lib/storage';
 import { buildPreviewFromFile, PREVIEW_VERSION, type ToolpathPreview } from '@/lib/inspection/preview';
-import { InspectionError } from '@/lib/inspection';
+import { InspectionError } from '@/lib/inspection/reader';
 import { reviewableEntry } from './access';
 import { currentGcode } from '@/lib/entries/inspection';
 
