@@ -4,7 +4,7 @@
  * time (through MotionPlanner). Everything is accumulated in fixed-size structures, so memory does
  * not grow with the file (layer records grow with the layer count only, capped).
  */
-import type { FeatureKind, Segment } from './types';
+import { FEATURE_KINDS, type FeatureKind, type Segment } from './types';
 import type { MotionSink, MachineState } from './parser';
 import { MotionPlanner, type MachineLimits, type PlannedMoveSink } from './planner';
 import { filamentAreaMm2 } from './materials';
@@ -25,20 +25,6 @@ export function crossSectionMm2(lineWidthMm: number, layerHeightMm: number): num
   return (lineWidthMm - h) * h + Math.PI * (h / 2) * (h / 2);
 }
 
-export const FEATURE_KINDS: readonly FeatureKind[] = [
-  'outer-wall',
-  'inner-wall',
-  'overhang-wall',
-  'sparse-infill',
-  'solid-infill',
-  'top-solid',
-  'bottom-solid',
-  'bridge',
-  'skirt',
-  'support',
-  'gap-fill',
-  'other',
-];
 /** Index FEATURE_KINDS.length is "unlabelled". */
 const N_FEATURES = FEATURE_KINDS.length + 1;
 const FEATURE_INDEX = new Map<FeatureKind, number>(FEATURE_KINDS.map((f, i) => [f, i]));

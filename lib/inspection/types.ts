@@ -26,6 +26,22 @@ export type FeatureKind =
   | 'gap-fill'
   | 'other';
 
+/** Every FeatureKind, in the order reports list them. */
+export const FEATURE_KINDS: readonly FeatureKind[] = [
+  'outer-wall',
+  'inner-wall',
+  'overhang-wall',
+  'sparse-infill',
+  'solid-infill',
+  'top-solid',
+  'bottom-solid',
+  'bridge',
+  'skirt',
+  'support',
+  'gap-fill',
+  'other',
+];
+
 /**
  * One straight move after all modal state is resolved. The parser hands the SAME object to every
  * callback (it is overwritten on the next move), so a consumer copies the fields it wants to keep.
