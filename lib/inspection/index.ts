@@ -4,6 +4,7 @@ export { toJsonReport, type InspectionReport, type FeatureReport, type ReportSet
 export { InspectionError, type InspectionErrorCode, MAX_LINE_BYTES } from './reader';
 export { GcodeParser, MachineState, featureFromLabel, type MotionSink, type ParserOptions, type ParserWarning } from './parser';
 export { filamentAreaMm2 } from './materials';
-export { Measurements, lineWidthMm, crossSectionMm2, FEATURE_KINDS } from './measure';
+export { Measurements, lineWidthMm, crossSectionMm2 } from './measure';
+export { FEATURE_KINDS } from './types';
 export { MotionPlanner, trapezoidTimeS, DEFAULT_LIMITS, type MachineLimits } from './planner';
 export type { Segment, SegmentSink, FeatureKind, Flag, SettingsEvidence, Source, Sourced } from './types';
