@@ -16,7 +16,7 @@ import os from 'node:os';
 import path from 'node:path';
 import http from 'node:http';
 import { gunzipSync } from 'node:zlib';
-import { testEnv, prepareDatabase } from '../tests/support/server';
+import { testEnv, prepareDatabase, waitForServer } from '../tests/support/server';
 import { Client } from '../tests/support/client';
 import { DEMO_PASSWORD, DEMO_USERS } from '../lib/seed';
 
@@ -71,15 +71,11 @@ async function main() {
   const server = spawn(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
     cwd: ROOT,
     env: { ...process.env, ...env, NODE_ENV: 'production' },
-    stdio: 'ignore',
+    stdio: ['ignore', 'pipe', 'pipe'],
   });
   const base = `http://127.0.0.1:${port}`;
   try {
-    for (let i = 0; ; i++) {
-      if (await fetch(`${base}/api/auth/csrf`).then((r) => r.ok, () => false)) break;
-      if (i > 240) throw new Error('server did not start');
-      await new Promise((r) => setTimeout(r, 250));
-    }
+    await waitForServer(server, `${base}/api/auth/csrf`);
     const c = new Client(base);
     await c.signIn(DEMO_USERS.find((u) => u.key === 'sasha')!.email, DEMO_PASSWORD);
     await c.get('/me'); // warm the routes so their code is loaded before the baseline

@@ -15,6 +15,7 @@ import type { Flag } from '@/lib/inspection/types';
 import type { RuleResult } from '@/lib/inspection/rules';
 import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
+import { flowSeries } from '@/lib/reviews/report';
 import { rulesForEntry } from './rules';
 
 const jobKey = (inspectionId: number) => `inspection:${inspectionId}`;
@@ -150,11 +151,6 @@ interface ReportShape {
   file?: { name: string | null; bytes: number };
 }
 
-export interface FlowSeries {
-  bucketS: number;
-  maxMm3s: number[];
-  meanMm3s: number[];
-}
 
 /** The stored inspection as the pages show it: rule results, flags, key figures and the flow series. */
 export function inspectionJson(row: Inspection) {
@@ -191,9 +187,7 @@ export function inspectionJson(row: Inspection) {
       filamentMassG: r.filament?.mass_g ?? null,
       slicer: r.slicer?.generator ?? r.slicer?.dialect ?? null,
     },
-    flowSeries: r.flow?.time_series
-      ? ({ bucketS: r.flow.time_series.bucket_s, maxMm3s: r.flow.time_series.max_mm3s, meanMm3s: r.flow.time_series.mean_mm3s } satisfies FlowSeries)
-      : null,
+    flowSeries: r.flow?.time_series ? flowSeries(r) : null,
   };
 }
 export type InspectionJson = ReturnType<typeof inspectionJson>;
