@@ -1,5 +1,5 @@
 /** The inspection in plain words for the public entry page, and the flow series for its chart. */
-import { formatDurationMs } from '@/lib/format';
+import { formatDurationMs, formatDurationS } from '@/lib/format';
 import { flowSeries } from '@/lib/reviews/report';
 
 type Json = Record<string, unknown> | null | undefined;
@@ -66,7 +66,7 @@ export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rule
     const claimedS = a.claimedTimeMs / 1000;
     const ratio = claimedS / est;
     out.push(
-      `Hotlap estimates the file needs ${formatDurationMs(est * 1000)} with acceleration; the claimed time ${formatDurationMs(a.claimedTimeMs)} is ` +
+      `Hotlap estimates the file needs ${formatDurationS(est)} with acceleration; the claimed time ${formatDurationMs(a.claimedTimeMs)} is ` +
         (Math.abs(ratio - 1) < 0.005 ? 'the same.' : `${fmt(Math.abs(ratio - 1) * 100, 1)} % ${ratio < 1 ? 'shorter' : 'longer'}.`),
     );
   }
