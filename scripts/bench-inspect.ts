@@ -77,19 +77,14 @@ async function child(mode: string, file: string): Promise<void> {
   process.stdout.write(`${JSON.stringify(out)}\n`);
 }
 
-/** Runs of each child (--repeat N); the fastest is kept, since a shared machine only ever slows a run down. */
+/** Rounds (--repeat N): every mode runs once per round, so all rows see the same machine; the fastest run of each is kept. */
 let repeat = 1;
 
-function runChild(mode: string, file: string): ChildResult {
-  let best: ChildResult | null = null;
-  let maxRssMb = 0;
-  for (let k = 0; k < repeat; k++) {
-    const r = runChildOnce(mode, file);
-    if (best === null || r.cpuSeconds < best.cpuSeconds) best = r;
-    maxRssMb = Math.max(maxRssMb, r.maxRssMb);
-  }
-  // Memory is reported as the highest peak of all runs, not the fastest run's.
-  return { ...(best as ChildResult), maxRssMb };
+/** Keeps the fastest run by CPU time, with the highest peak RSS of all runs (memory is not a best case). */
+function keepBest(best: ChildResult | undefined, r: ChildResult): ChildResult {
+  if (!best) return r;
+  const rss = Math.max(best.maxRssMb, r.maxRssMb);
+  return r.cpuSeconds < best.cpuSeconds ? { ...r, maxRssMb: rss } : { ...best, maxRssMb: rss };
 }
 
 function runChildOnce(mode: string, file: string): ChildResult {
@@ -121,6 +116,12 @@ function build(dir: string, sizeMb: number): string {
 }
 
 const mb = (b: number) => b / 1e6;
+const ROW: Record<string, string> = {
+  inspect: 'full inspection',
+  engine: 'engine without toolpath settings',
+  parse: 'our reader + parser only (moves ignored)',
+  peer: 'gcode-parser (GCodeLineStream, no-op per line)',
+};
 
 async function main(): Promise<void> {
   const args = process.argv.slice(2);
@@ -135,24 +136,23 @@ async function main(): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
   const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
   console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
-  if (repeat > 1) console.log(`times are from the run with the least CPU time of ${repeat}; peak RSS is the highest of them`);
+  if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; times are from each mode's run with the least CPU time, peak RSS the highest of its runs`);
   try {
     const rows: { what: string; size: number; r: ChildResult }[] = [];
     for (const [i, size] of sizes.entries()) {
       const file = build(dir, size);
       console.log(`built ${file} (${mb(statSync(file).size).toFixed(1)} MB)`);
-      for (const mode of ['inspect', 'engine']) {
-        const r = runChild(mode, file);
-        rows.push({ what: mode === 'inspect' ? 'full inspection' : 'engine without toolpath settings', size, r });
-        console.log(`  ${rows[rows.length - 1].what}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+      // This machine's speed drifts by ±20 % between minutes (shared host), so the modes are
+      // interleaved round by round: the ratio to the peer compares runs made side by side.
+      const modes = i === 0 ? ['inspect', 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
+      const best = new Map<string, ChildResult>();
+      for (let round = 0; round < repeat; round++) {
+        for (const mode of modes) best.set(mode, keepBest(best.get(mode), runChildOnce(mode, file)));
       }
-      if (i === 0) {
-        const rp = runChild('parse', file);
-        rows.push({ what: 'our reader + parser only (moves ignored)', size, r: rp });
-        console.log(`  our reader + parser only: ${(mb(rp.bytes) / rp.seconds).toFixed(1)} MB/s, ${rp.seconds.toFixed(2)} s (${rp.cpuSeconds.toFixed(2)} s CPU), peak RSS ${rp.maxRssMb.toFixed(0)} MB (${rp.detail})`);
-        const r = runChild('peer', file);
-        rows.push({ what: 'gcode-parser (GCodeLineStream, no-op per line)', size, r });
-        console.log(`  gcode-parser: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
+      for (const mode of modes) {
+        const r = best.get(mode)!;
+        rows.push({ what: ROW[mode], size, r });
+        console.log(`  ${ROW[mode]}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
       }
       if (!keep) rmSync(file);
     }
@@ -169,7 +169,7 @@ async function main(): Promise<void> {
       );
     }
     const first = sizes[0];
-    const peer = rows.find((x) => x.what.startsWith('gcode-parser'))!.r;
+    const peer = rows.find((x) => x.what === ROW.peer)!.r;
     const speed = (r: ChildResult) => mb(r.bytes) / r.seconds;
     console.log(
       '\nWhat each row does: the full inspection reads, parses, measures filament, flow, layers and size, plans the print time' +
@@ -177,13 +177,13 @@ async function main(): Promise<void> {
         ' turns each line into an object of its words and numbers (no units, modes, positions, arcs, filament or time), so the like-for-like comparison' +
         ' is the "reader + parser only" row.',
     );
-    for (const what of ['full inspection', 'engine without toolpath settings', 'our reader + parser only (moves ignored)']) {
+    for (const what of [ROW.inspect, ROW.engine, ROW.parse]) {
       const ours = rows.find((x) => x.what === what && x.size === first)!.r;
       const cpuRatio = peer.cpuSeconds / ours.cpuSeconds;
       console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput (${cpuRatio.toFixed(1)}× by CPU time)`);
     }
     if (sizes.length > 1) {
-      for (const what of ['full inspection', 'engine without toolpath settings']) {
+      for (const what of [ROW.inspect, ROW.engine]) {
         const a = rows.find((x) => x.what === what && x.size === sizes[0])!.r;
         const b = rows.find((x) => x.what === what && x.size === sizes[sizes.length - 1])!.r;
         console.log(`${what}: peak RSS ${a.maxRssMb.toFixed(0)} MB at ${sizes[0]} MB → ${b.maxRssMb.toFixed(0)} MB at ${sizes[sizes.length - 1]} MB`);
