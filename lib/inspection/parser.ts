@@ -522,36 +522,48 @@ export class GcodeParser implements LineSink {
   }
 
   /**
-   * Parses [+-]digits[.digits] by hand from char codes into numVal; returns the index after it, or −1 when no
-   * digits. An exponent ("1e308") is read only for a space-separated word whose exponent is followed
-   * by a separator; otherwise 'E' starts the next word, as in Marlin's parser, which strips 'E' so
-   * "X10E5" is X10 E5 (Marlin GCodeParser::value_float).
+   * Parses [+-]digits[.digits][e±dd] by hand from char codes into numVal; returns the index after
+   * it, or −1 when no digits (see readExponent for when an 'e' belongs to the number).
    */
   private readNumber(buf: Buffer, i: number, end: number, spaced: boolean): number {
+    // The common number (sign, up to nine digits, a dot, no exponent) is scanned here; this body
+    // is kept small so V8 inlines it into line(). Longer numbers and exponents continue in
+    // readLongNumber() and readExponent(), which are called rarely.
     let neg = false;
     if (i < end && (buf[i] === MINUS || buf[i] === PLUS)) {
       neg = buf[i] === MINUS;
       i++;
     }
-    // One pass: all digits into an integer mantissa; the dot's position gives the fraction digit
-    // count afterwards, so each digit costs one range test and a multiply-add. One division at the
-    // end is correctly rounded while the mantissa stays below 2^53 (≈ 15 digits). The first nine
-    // digits are summed in int32 arithmetic (exact below 10⁹, and cheaper than a double
-    // multiply-add); longer numbers go on in doubles from the same exact value.
-    let mantInt = 0;
+    // One pass: digits into an integer mantissa; the dot's position gives the fraction digit count
+    // afterwards, so each digit costs one range test and a multiply-add. The first nine digits are
+    // summed in int32 arithmetic (exact below 10⁹, and cheaper than a double multiply-add).
+    let mant = 0;
     let nd = 0;
-    const numStart = i;
     let dotAt = -1;
     while (i < end) {
       const d = buf[i] - D0;
       if (d >= 0 && d <= 9) {
-        if (nd === 9) break;
-        mantInt = (mantInt * 10 + d) | 0;
+        if (nd === 9) return this.readLongNumber(buf, i, end, spaced, neg, dotAt, mant);
+        mant = (mant * 10 + d) | 0;
         nd++;
       } else if (d === DOT - D0 && dotAt < 0) dotAt = i;
       else break;
       i++;
     }
+    if (nd === 0) {
+      this.numVal = NaN;
+      return -1;
+    }
+    // One division of exact integers is correctly rounded (fd ≤ 9 here: fraction digits are digits).
+    const fd = dotAt >= 0 ? i - dotAt - 1 : 0;
+    const v = fd > 0 ? mant / POW10[fd] : mant;
+    this.numVal = neg ? -v : v;
+    if (spaced && i + 1 < end && (buf[i] | 0x20) === 101) return this.readExponent(buf, i, end);
+    return i;
+  }
+
+  /** readNumber() past nine digits: goes on in doubles from the same exact value (exact below 2^53, ≈ 15 digits). */
+  private readLongNumber(buf: Buffer, i: number, end: number, spaced: boolean, neg: boolean, dotAt: number, mantInt: number): number {
     let mant = mantInt;
     while (i < end) {
       const d = buf[i] - D0;
@@ -561,33 +573,35 @@ export class GcodeParser implements LineSink {
       i++;
     }
     const fd = dotAt >= 0 ? i - dotAt - 1 : -1;
-    const digits = dotAt >= 0 ? i - numStart - 1 : i - numStart;
-    let v = fd > 0 ? (fd < POW10.length ? mant / POW10[fd] : mant / Math.pow(10, fd)) : mant;
-    if (digits === 0) {
-      this.numVal = NaN;
-      return -1;
-    }
-    if (spaced && i + 1 < end && (buf[i] | 0x20) === 101) {
-      // Possible exponent.
-      let k = i + 1;
-      let eneg = false;
-      if (buf[k] === MINUS || buf[k] === PLUS) {
-        eneg = buf[k] === MINUS;
-        k++;
-      }
-      let ex = 0;
-      let ed = 0;
-      while (k < end && buf[k] >= D0 && buf[k] <= D9) {
-        if (ex < 10000) ex = ex * 10 + (buf[k] - D0);
-        ed++;
-        k++;
-      }
-      if (ed > 0 && (k >= end || isTerminator(buf[k]))) {
-        v = v * Math.pow(10, eneg ? -ex : ex);
-        i = k;
-      }
-    }
+    const v = fd > 0 ? (fd < POW10.length ? mant / POW10[fd] : mant / Math.pow(10, fd)) : mant;
     this.numVal = neg ? -v : v;
+    if (spaced && i + 1 < end && (buf[i] | 0x20) === 101) return this.readExponent(buf, i, end);
+    return i;
+  }
+
+  /**
+   * An exponent after the number in numVal ("1e308"): read only for a space-separated word whose
+   * exponent is followed by a separator; otherwise 'E' starts the next word, as in Marlin's
+   * parser, which strips 'E' so "X10E5" is X10 E5 (Marlin GCodeParser::value_float).
+   */
+  private readExponent(buf: Buffer, i: number, end: number): number {
+    let k = i + 1;
+    let eneg = false;
+    if (buf[k] === MINUS || buf[k] === PLUS) {
+      eneg = buf[k] === MINUS;
+      k++;
+    }
+    let ex = 0;
+    let ed = 0;
+    while (k < end && buf[k] >= D0 && buf[k] <= D9) {
+      if (ex < 10000) ex = ex * 10 + (buf[k] - D0);
+      ed++;
+      k++;
+    }
+    if (ed > 0 && (k >= end || isTerminator(buf[k]))) {
+      this.numVal = this.numVal * Math.pow(10, eneg ? -ex : ex);
+      return k;
+    }
     return i;
   }
 
