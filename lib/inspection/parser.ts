@@ -1062,16 +1062,17 @@ export class GcodeParser implements LineSink {
     if ((this.mask & (1 << letter)) === 0) return false;
     const v = this.vals[letter];
     if (v >= -maxAbs && v <= maxAbs) return true; // the common case: one range test (false for NaN)
-    if (v !== v) {
-      this.warn('malformed-number', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)} has no valid number; ignored.`);
-      return false;
-    }
-    if (!(Math.abs(v) <= maxAbs)) {
-      this.warn('absurd-value', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)}${v} is out of range; ignored.`);
-      return false;
-    }
-    return true;
+    this.badCoord(letter, maxAbs); // kept out of line so this method stays small enough to inline
+    return false;
   }
+
+  /** Warns about a present axis word that is not a number or out of ±maxAbs. */
+  private badCoord(letter: number, maxAbs: number): void {
+    const v = this.vals[letter];
+    if (v !== v) this.warn('malformed-number', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)} has no valid number; ignored.`);
+    else if (!(Math.abs(v) <= maxAbs)) this.warn('absurd-value', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)}${v} is out of range; ignored.`);
+  }
+
 
   private motion(mode: number): void {
     // Feed (modal, shared by G0 and G1 in printer firmware).

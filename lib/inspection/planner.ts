@@ -316,60 +316,64 @@ export class MotionPlanner {
 
   /** Largest speed² through the corner between the previous move and this one, into maxEntryV2[idx]. */
   private junctionInto(idx: number): void {
-    const v = this.cv;
-    const pv = this.pv;
-    const vcap = v < pv ? v : pv;
     if (this.jerkX !== null) {
-      // Classic jerk (Marlin planner.cpp, non-JD branch): scale the junction speed until no axis jumps
-      // by more than its jerk; opposite-sign components count by the larger magnitude.
-      const j = this.jerkScratch;
-      j[0] = this.pux * vcap;
-      j[1] = this.cux * vcap;
-      j[2] = this.jerkX;
-      j[3] = this.puy * vcap;
-      j[4] = this.cuy * vcap;
-      j[5] = this.jerkY ?? this.jerkX;
-      j[6] = this.puz * vcap;
-      j[7] = this.cuz * vcap;
-      j[8] = this.jerkZ;
-      j[9] = this.pue * vcap;
-      j[10] = this.cue * vcap;
-      j[11] = this.jerkE;
-      let f = 1;
-      for (let k = 0; k < 12; k += 3) {
-        // Speed jump of one axis between exit velocity vExit and entry velocity vEntry.
-        const vExit = j[k];
-        const vEntry = j[k + 1];
-        let jerk: number;
-        if (vExit > vEntry) jerk = vEntry > 0 || vExit < 0 ? vExit - vEntry : Math.max(vExit, -vEntry);
-        else jerk = vEntry < 0 || vExit > 0 ? vEntry - vExit : Math.max(-vExit, vEntry);
-        jerk *= f;
-        if (jerk > j[k + 2]) f = (f * j[k + 2]) / jerk;
-      }
-      const vj = vcap * f;
-      this.maxEntryV2[idx] = vj * vj;
+      this.jerkJunctionInto(idx);
       return;
     }
     // Junction deviation (grbl / Marlin JUNCTION_DEVIATION): v² = a·δ·sin(θ/2) / (1 − sin(θ/2)).
-    const cosTheta = -(this.pux * this.cux + this.puy * this.cuy + this.puz * this.cuz);
+    // Kept short so V8 inlines it into push(); classic jerk has its own method.
+    const v = this.cv;
+    const pv = this.pv;
+    const vcap = v < pv ? v : pv;
     const c2 = vcap * vcap;
-    if (cosTheta < -0.999999) {
-      this.maxEntryV2[idx] = c2; // straight on
-      return;
-    }
-    if (cosTheta > 0.999999) {
-      this.maxEntryV2[idx] = 0; // full reversal
-      return;
-    }
-    const sinHalf = Math.sqrt(0.5 * (1 - cosTheta));
+    const cosTheta = -(this.pux * this.cux + this.puy * this.cuy + this.puz * this.cuz);
     let vj2: number;
-    if (this.scvJd) {
+    if (cosTheta < -0.999999) vj2 = c2; // straight on
+    else if (cosTheta > 0.999999) vj2 = 0; // full reversal
+    else {
+      const sinHalf = Math.sqrt(0.5 * (1 - cosTheta));
       // Klipper: junction_deviation = scv² (√2 − 1) / accel, so v² = scv² (√2 − 1) sin/(1 − sin).
-      vj2 = (this.jd * this.jd * (Math.SQRT2 - 1) * sinHalf) / (1 - sinHalf);
-    } else {
-      vj2 = (this.ca * this.jd * sinHalf) / (1 - sinHalf);
+      vj2 = this.scvJd ? (this.jd * this.jd * (Math.SQRT2 - 1) * sinHalf) / (1 - sinHalf) : (this.ca * this.jd * sinHalf) / (1 - sinHalf);
+      if (vj2 > c2) vj2 = c2;
     }
-    this.maxEntryV2[idx] = vj2 < c2 ? vj2 : c2;
+    this.maxEntryV2[idx] = vj2;
+  }
+
+  /**
+   * Classic jerk (Marlin planner.cpp, non-JD branch): scale the junction speed until no axis jumps
+   * by more than its jerk; opposite-sign components count by the larger magnitude.
+   */
+  private jerkJunctionInto(idx: number): void {
+    const v = this.cv;
+    const pv = this.pv;
+    const vcap = v < pv ? v : pv;
+    const jx = this.jerkX as number;
+    const j = this.jerkScratch;
+    j[0] = this.pux * vcap;
+    j[1] = this.cux * vcap;
+    j[2] = jx;
+    j[3] = this.puy * vcap;
+    j[4] = this.cuy * vcap;
+    j[5] = this.jerkY ?? jx;
+    j[6] = this.puz * vcap;
+    j[7] = this.cuz * vcap;
+    j[8] = this.jerkZ;
+    j[9] = this.pue * vcap;
+    j[10] = this.cue * vcap;
+    j[11] = this.jerkE;
+    let f = 1;
+    for (let k = 0; k < 12; k += 3) {
+      // Speed jump of one axis between exit velocity vExit and entry velocity vEntry.
+      const vExit = j[k];
+      const vEntry = j[k + 1];
+      let jerk: number;
+      if (vExit > vEntry) jerk = vEntry > 0 || vExit < 0 ? vExit - vEntry : Math.max(vExit, -vEntry);
+      else jerk = vEntry < 0 || vExit > 0 ? vEntry - vExit : Math.max(-vExit, vEntry);
+      jerk *= f;
+      if (jerk > j[k + 2]) f = (f * j[k + 2]) / jerk;
+    }
+    const vj = vcap * f;
+    this.maxEntryV2[idx] = vj * vj;
   }
 
   /** Completes the move written at ring slot idx (the tail) and runs the backward pass. */
