@@ -1066,6 +1066,13 @@ export class GcodeParser implements LineSink {
     return false;
   }
 
+  /** Warns about an F word that is not a number or not a usable speed (the feed stays as it was). */
+  private badFeed(): void {
+    const f = this.vals[L_F];
+    if (!(f === f)) this.warn('malformed-number', `Line ${this.lineNo}: F has no valid number; ignored.`);
+    else this.warn('absurd-value', `Line ${this.lineNo}: feed F${f} is not a usable speed; ignored.`);
+  }
+
   /** Warns about a present axis word that is not a number or out of ±maxAbs. */
   private badCoord(letter: number, maxAbs: number): void {
     const v = this.vals[letter];
@@ -1076,14 +1083,12 @@ export class GcodeParser implements LineSink {
 
   private motion(mode: number): void {
     // Feed (modal, shared by G0 and G1 in printer firmware).
-    if (this.has(L_F)) {
-      const f = this.vals[L_F];
-      if (!(f === f)) this.warn('malformed-number', `Line ${this.lineNo}: F has no valid number; ignored.`);
-      else if (!(f * this.unitMm >= MIN_FEED_MM_MIN) || !(f * this.unitMm <= MAX_FEED_MM_MIN))
-        this.warn('absurd-value', `Line ${this.lineNo}: feed F${f} is not a usable speed; ignored.`);
-      else this.feedMmMin = f * this.unitMm;
-    }
     const u = this.unitMm;
+    if (this.has(L_F)) {
+      const f = this.vals[L_F] * u;
+      if (f >= MIN_FEED_MM_MIN && f <= MAX_FEED_MM_MIN) this.feedMmMin = f;
+      else this.badFeed(); // out of line: keeps motion() small
+    }
     const rel = this.axisRelative;
     let tx = this.px;
     let ty = this.py;
