@@ -14,7 +14,7 @@
  * 9.7–11.8 MB per CPU-second against 125–134 for this reader + parser (npm run bench:inspect).
  */
 import type { FeatureKind, Segment, SegmentSink } from './types';
-import type { LineSink } from './reader';
+import { MAX_LINE_BYTES, type LineSink } from './reader';
 
 /** Extra callbacks the time planner uses; optional on any sink. */
 export interface MotionSink extends SegmentSink {
@@ -109,6 +109,9 @@ export interface ParserStats {
 const SPACE = 32;
 const TAB = 9;
 const CR = 13;
+const LF = 10;
+/** Local copy: an imported binding costs a getter call per access under CommonJS interop. */
+const MAX_LINE = MAX_LINE_BYTES;
 const SEMI = 59;
 const LPAREN = 40;
 const RPAREN = 41;
@@ -358,7 +361,6 @@ export class GcodeParser implements LineSink {
   private toolWordFirst = false;
   private firstWord = true;
   private trailingComment: string | null = null;
-  private cutNext = false;
 
   // Number scanner output.
   /** Value of the number readNumber() just scanned (a field, so no boxed double is returned). */
@@ -393,8 +395,7 @@ export class GcodeParser implements LineSink {
 
   longLine(bytes: number): void {
     this.stats.longLines++;
-    this.cutNext = true;
-    this.warn('long-line', `Line ${this.lineNo + 1} is ${bytes} bytes long; only its first 64 KB were read.`, this.lineNo + 1);
+    this.warn('long-line', longLineMessage(this.lineNo + 1, bytes), this.lineNo + 1);
   }
 
   /** Ends the stream: flushes the sink. */
@@ -402,10 +403,13 @@ export class GcodeParser implements LineSink {
     this.sink.end?.();
   }
 
-  line(buf: Buffer, start: number, end: number): void {
+  /**
+   * Parses one line, [start, end) without its line break. Also the worker of lines(): the scan
+   * stops at an LF, whose index it returns (else end).
+   */
+  line(buf: Buffer, start: number, end: number): number {
     this.lineNo++;
     this.stats.lines++;
-    this.cutNext = false;
     this.beginStatement();
     let i = start;
     let stmtStart = start;
@@ -451,7 +455,7 @@ export class GcodeParser implements LineSink {
         if (letter === L_M && this.firstWord && isTextArgMcode(v)) {
           // M117 and friends carry free text: stop parsing words.
           this.storeWord(letter, v);
-          i = end;
+          while (i < end && buf[i] !== LF) i++;
           continue;
         }
         this.storeWord(letter, v);
@@ -461,12 +465,13 @@ export class GcodeParser implements LineSink {
         i++;
         continue;
       }
+      if (c === LF) break;
       if (c === CR) {
         // A CR inside a line is a line break (lone-CR files); a trailing CR of CRLF ends nothing new.
         this.execute();
         this.beginStatement();
         i++;
-        if (i < end) {
+        if (i < end && buf[i] !== LF) {
           this.lineNo++;
           this.stats.lines++;
           stmtStart = i;
@@ -476,14 +481,14 @@ export class GcodeParser implements LineSink {
       if (c === SEMI) {
         // Comment to the end of the line (or to a lone CR).
         let j = i + 1;
-        while (j < end && buf[j] !== CR) j++;
+        while (j < end && buf[j] !== CR && buf[j] !== LF) j++;
         this.handleComment(buf, i + 1, j);
         i = j;
         continue;
       }
       if (c === LPAREN) {
         let j = i + 1;
-        while (j < end && buf[j] !== RPAREN && buf[j] !== CR) j++;
+        while (j < end && buf[j] !== RPAREN && buf[j] !== CR && buf[j] !== LF) j++;
         this.handleComment(buf, i + 1, j);
         i = j < end && buf[j] === RPAREN ? j + 1 : j;
         continue;
@@ -496,6 +501,43 @@ export class GcodeParser implements LineSink {
       i = skipWord(buf, i, end);
     }
     this.execute();
+    return i;
+  }
+
+  /**
+   * Parses the complete lines of [start, end), where end − 1 is an LF, and returns how many there
+   * were. Line breaks are found by the parse itself rather than by the reader searching for each
+   * LF first (Buffer.indexOf cost ~0.1 s per 100 MB in per-line calls). A line longer than
+   * MAX_LINE_BYTES is read to that length and reported as LineSplitter would report it.
+   */
+  lines(buf: Buffer, start: number, end: number): number {
+    let s = start;
+    let n = 0;
+    while (s < end) {
+      const limit = end - s > MAX_LINE ? s + MAX_LINE : end;
+      const lineNo = this.lineNo + 1;
+      const warningsBefore = this.warnings.length;
+      const stop = this.line(buf, s, limit);
+      n++;
+      if (stop < limit || buf[stop] === LF) {
+        s = stop + 1;
+        continue;
+      }
+      // Longer than the limit: the rest up to the LF is dropped, as LineSplitter does.
+      const lf = buf.indexOf(LF, stop);
+      this.noteLongLine(lf - s, lineNo, warningsBefore);
+      s = lf + 1;
+    }
+    return n;
+  }
+
+  /** longLine() after the fact: the warning goes where longLine() would have put it, before the line's own. */
+  private noteLongLine(bytes: number, lineNo: number, at: number): void {
+    this.stats.longLines++;
+    this.stats.warningsTotal++;
+    if (at >= this.maxWarnings) return;
+    this.warnings.splice(at, 0, { code: 'long-line', lineNo, message: longLineMessage(lineNo, bytes) });
+    if (this.warnings.length > this.maxWarnings) this.warnings.pop();
   }
 
   private beginStatement(): void {
@@ -624,7 +666,7 @@ export class GcodeParser implements LineSink {
       }
     }
     // Anything after the checksum up to a comment is ignored.
-    while (j < end && buf[j] !== SEMI && buf[j] !== CR) j++;
+    while (j < end && buf[j] !== SEMI && buf[j] !== CR && buf[j] !== LF) j++;
     return j;
   }
 
@@ -667,14 +709,14 @@ export class GcodeParser implements LineSink {
   /** Klipper-style extended command: NAME KEY=VALUE … */
   private textCommand(buf: Buffer, i: number, end: number): number {
     let j = i;
-    while (j < end && buf[j] !== SPACE && buf[j] !== TAB && buf[j] !== SEMI && buf[j] !== CR) j++;
+    while (j < end && buf[j] !== SPACE && buf[j] !== TAB && buf[j] !== SEMI && buf[j] !== CR && buf[j] !== LF) j++;
     const name = buf.toString('latin1', i, j).toUpperCase();
     this.firstWord = false;
     this.stats.commands++;
     this.stats.textCommands++;
     // Find end of statement (before a comment).
     let k = j;
-    while (k < end && buf[k] !== SEMI && buf[k] !== CR) k++;
+    while (k < end && buf[k] !== SEMI && buf[k] !== CR && buf[k] !== LF) k++;
     if (name === 'SET_VELOCITY_LIMIT') {
       const args = buf.toString('latin1', j, k);
       this.setVelocityLimit(args);
@@ -1273,7 +1315,11 @@ function recordOverride(rec: ParserStats['speedFactor'], percent: number, lineNo
 }
 
 function isTerminator(c: number): boolean {
-  return c === SPACE || c === TAB || c === CR || c === SEMI || c === LPAREN || c === STAR;
+  return c === SPACE || c === TAB || c === CR || c === LF || c === SEMI || c === LPAREN || c === STAR;
+}
+
+function longLineMessage(lineNo: number, bytes: number): string {
+  return `Line ${lineNo} is ${bytes} bytes long; only its first 64 KB were read.`;
 }
 
 function isLetter(c: number): boolean {

@@ -42,6 +42,12 @@ export interface LineSink {
   line(buf: Buffer, start: number, end: number): void;
   /** The NEXT line handed to line() was longer than MAX_LINE_BYTES and has been cut. */
   longLine?(bytes: number): void;
+  /**
+   * Optional: takes a run of complete lines at once, [start, end) with an LF at end − 1, finds
+   * the breaks itself, cuts lines over MAX_LINE_BYTES as line()/longLine() would see them, and
+   * returns the number of lines. The parser implements it to save a search per line.
+   */
+  lines?(buf: Buffer, start: number, end: number): number;
 }
 
 export interface ReadStats {
@@ -82,7 +88,14 @@ export class LineSplitter {
     this.bytes += chunk.length;
     let pos = 0;
     const n = chunk.length;
+    // Index of the chunk's last LF, for handing the complete lines to a block-reading sink.
+    const lastLf = this.sink.lines ? chunk.lastIndexOf(LF) : -1;
     while (pos < n) {
+      if (pos <= lastLf && this.carryLen === 0 && this.dropped === 0) {
+        this.lines += this.sink.lines!(chunk, pos, lastLf + 1);
+        pos = lastLf + 1;
+        continue;
+      }
       let lf = chunk.indexOf(LF, pos);
       if (lf < 0) {
         // No LF left in this chunk: a CR-only file is split on CR. A CR that is the chunk's last
