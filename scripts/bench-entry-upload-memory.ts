@@ -91,7 +91,7 @@ async function main() {
       const r = rssMb(server.pid!);
       if (r !== null) serverPeak = Math.max(serverPeak, r);
       for (const kid of children(server.pid!)) {
-        // The inspection child and its tsx loader child.
+        // The inspection child (and any process it starts).
         for (const p of [kid, ...children(kid)]) childPeak = Math.max(childPeak, rssMb(p) ?? 0);
       }
     }, 50);

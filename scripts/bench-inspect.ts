@@ -23,6 +23,7 @@ import { gunzipSync } from 'node:zlib';
 import { inspectFile } from '../lib/inspection/inspect';
 import { readFileLines } from '../lib/inspection/reader';
 import { GcodeParser } from '../lib/inspection/parser';
+import { tsRunArgs } from '../lib/tsRun';
 
 const ROOT = join(__dirname, '..');
 const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'prusa-beacon-nozzle06-030'].map((n) =>
@@ -88,7 +89,7 @@ function keepBest(best: ChildResult | undefined, r: ChildResult): ChildResult {
 }
 
 function runChildOnce(mode: string, file: string): ChildResult {
-  const r = spawnSync(process.execPath, [join(ROOT, 'node_modules/tsx/dist/cli.mjs'), __filename, '--child', mode, file], {
+  const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), __filename, '--child', mode, file], {
     encoding: 'utf8',
     maxBuffer: 1 << 20,
   });

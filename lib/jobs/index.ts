@@ -5,6 +5,7 @@
  * bundle of the Next.js server shares it.
  */
 import { spawn } from 'node:child_process';
+import { tsRunArgs } from '@/lib/tsRun';
 import path from 'node:path';
 import type { InspectOptions } from '@/lib/inspection';
 
@@ -77,10 +78,9 @@ export class InspectionRunError extends Error {
 /** Runs the inspection engine on `file` in a child process and returns its JSON report. */
 export function inspectInChild(file: string, options: InspectOptions): Promise<Record<string, unknown>> {
   const root = process.cwd();
-  const tsx = path.join(root, 'node_modules', 'tsx', 'dist', 'cli.mjs');
   const worker = path.join(root, 'lib', 'jobs', 'inspect-worker.ts');
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [`--max-old-space-size=${CHILD_HEAP_MB}`, tsx, worker], {
+    const child = spawn(process.execPath, [`--max-old-space-size=${CHILD_HEAP_MB}`, ...tsRunArgs(root), worker], {
       cwd: root,
       env: { PATH: process.env.PATH ?? '', NODE_ENV: 'production' },
       stdio: ['pipe', 'pipe', 'pipe'],

@@ -6,6 +6,7 @@ import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from 'vitest';
 import { InspectionError } from '../../../lib/inspection/reader';
 import { firstLine, runInspectionMain } from '../../../lib/inspection/main';
+import { tsRunArgs } from '../../../lib/tsRun';
 
 const ROOT = join(__dirname, '../../..');
 
@@ -58,7 +59,7 @@ describe('runInspectionMain', () => {
 describe('lib/jobs/inspect-worker.ts', () => {
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-worker-'));
   const run = (stdin: string) => {
-    const r = spawnSync(process.execPath, [join(ROOT, 'node_modules/tsx/dist/cli.mjs'), join(ROOT, 'lib/jobs/inspect-worker.ts')], { input: stdin, encoding: 'utf8', timeout: 120_000 });
+    const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), join(ROOT, 'lib/jobs/inspect-worker.ts')], { input: stdin, encoding: 'utf8', timeout: 120_000 });
     return { code: r.status, stdout: r.stdout, stderr: r.stderr };
   };
 
