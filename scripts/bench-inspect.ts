@@ -191,6 +191,14 @@ async function main(): Promise<void> {
       }
     }
     console.log('Targets: full inspection ≥ 60 MB/s and ≥ 10× the peer; peak RSS < 200 MB and flat from 100 MB to 500 MB.');
+    // The verdict of this run against the targets (flat: within 10 % of the smallest size's peak).
+    const full = rows.filter((x) => x.what === ROW.inspect);
+    const yes = (ok: boolean) => (ok ? 'met' : 'NOT met');
+    const rates = full.map((x) => `${speed(x.r).toFixed(1)} MB/s at ${x.size} MB`).join(', ');
+    const ratio = speed(full[0].r) / speed(peer);
+    const rss = full.map((x) => x.r.maxRssMb);
+    console.log(`This run: ≥ 60 MB/s ${yes(full.every((x) => speed(x.r) >= 60))} (${rates}); ≥ 10× the peer ${yes(ratio >= 10)} (${ratio.toFixed(1)}×);`);
+    console.log(`  peak RSS < 200 MB ${yes(rss.every((r) => r < 200))} and flat ${full.length > 1 ? yes(Math.max(...rss) <= rss[0] * 1.1) : '(needs two sizes)'} (${rss.map((r) => r.toFixed(0)).join(' → ')} MB).`);
   } finally {
     if (!keep) rmSync(dir, { recursive: true, force: true });
   }
