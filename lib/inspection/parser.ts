@@ -394,8 +394,7 @@ export class GcodeParser implements LineSink {
   }
 
   longLine(bytes: number): void {
-    this.stats.longLines++;
-    this.warn('long-line', longLineMessage(this.lineNo + 1, bytes), this.lineNo + 1);
+    this.noteLongLine(bytes, this.lineNo + 1, this.warnings.length);
   }
 
   /** Ends the stream: flushes the sink. */
@@ -531,12 +530,16 @@ export class GcodeParser implements LineSink {
     return n;
   }
 
-  /** longLine() after the fact: the warning goes where longLine() would have put it, before the line's own. */
+  /**
+   * Counts a cut line and files its warning at index `at` of the list (where it belongs in line
+   * order), within the list's cap: at the end for longLine(), before the line's own warnings when
+   * lines() finds the cut after parsing.
+   */
   private noteLongLine(bytes: number, lineNo: number, at: number): void {
     this.stats.longLines++;
     this.stats.warningsTotal++;
     if (at >= this.maxWarnings) return;
-    this.warnings.splice(at, 0, { code: 'long-line', lineNo, message: longLineMessage(lineNo, bytes) });
+    this.warnings.splice(at, 0, { code: 'long-line', lineNo, message: `Line ${lineNo} is ${bytes} bytes long; only its first 64 KB were read.` });
     if (this.warnings.length > this.maxWarnings) this.warnings.pop();
   }
 
@@ -1122,7 +1125,6 @@ export class GcodeParser implements LineSink {
     else if (!(Math.abs(v) <= maxAbs)) this.warn('absurd-value', `Line ${this.lineNo}: ${String.fromCharCode(letter + 65)}${v} is out of range; ignored.`);
   }
 
-
   private motion(mode: number): void {
     // Feed (modal, shared by G0 and G1 in printer firmware).
     const u = this.unitMm;
@@ -1154,7 +1156,8 @@ export class GcodeParser implements LineSink {
       this.arc(mode === 2, tx, ty, tz, de);
       return;
     }
-    // Straight move: the target goes through fields, not arguments (see emit()).
+    // Straight move: the target goes through fields, not arguments (see emit()). Written out
+    // rather than a call to linear(): measured ~3 % slower on the bench stack through linear().
     this.tx = tx;
     this.ty = ty;
     this.tz = tz;
@@ -1318,9 +1321,6 @@ function isTerminator(c: number): boolean {
   return c === SPACE || c === TAB || c === CR || c === LF || c === SEMI || c === LPAREN || c === STAR;
 }
 
-function longLineMessage(lineNo: number, bytes: number): string {
-  return `Line ${lineNo} is ${bytes} bytes long; only its first 64 KB were read.`;
-}
 
 function isLetter(c: number): boolean {
   const l = c | 0x20;
