@@ -11,23 +11,8 @@
  * absolute millimetres and net filament per move.
  */
 
-/** Feature label recovered from slicer annotations (";TYPE:…", ";FEATURE:…"); null when the file has none. */
-export type FeatureKind =
-  | 'outer-wall'
-  | 'inner-wall'
-  | 'overhang-wall'
-  | 'sparse-infill'
-  | 'solid-infill'
-  | 'top-solid'
-  | 'bottom-solid'
-  | 'bridge'
-  | 'skirt'
-  | 'support'
-  | 'gap-fill'
-  | 'other';
-
-/** Every FeatureKind, in the order reports list them. */
-export const FEATURE_KINDS: readonly FeatureKind[] = [
+/** Every feature label, in the order reports list them (one list: FeatureKind is derived from it). */
+export const FEATURE_KINDS = [
   'outer-wall',
   'inner-wall',
   'overhang-wall',
@@ -40,7 +25,10 @@ export const FEATURE_KINDS: readonly FeatureKind[] = [
   'support',
   'gap-fill',
   'other',
-];
+] as const;
+
+/** Feature label recovered from slicer annotations (";TYPE:…", ";FEATURE:…"); null when the file has none. */
+export type FeatureKind = (typeof FEATURE_KINDS)[number];
 
 /**
  * One straight move after all modal state is resolved. The parser hands the SAME object to every
