@@ -10,7 +10,7 @@ import { ContestClass, Entry, Machine, Rule, Season, SeasonJudge, StoredFile, Te
 import { getSequelize, dataDir } from '@/lib/db';
 import { hashPassword } from '@/lib/auth/password';
 import { parseStl } from '@/lib/stl';
-import { testPieceColumns } from '@/lib/seasons/testPiece';
+import { testPieceColumns } from '@/lib/seasons/testPieceColumns';
 import { RuleSchema, ruleSentence, type Rule as RuleInput } from '@/lib/inspection/rules';
 import type { Role, EntryState, MotionSystem } from '@/lib/domain';
 

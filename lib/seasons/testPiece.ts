@@ -15,6 +15,7 @@ import { putFile, removeFile } from '@/lib/storage';
 import type { UploadResult, UploadSpec } from '@/lib/uploads';
 import { TEST_PIECE_MAX_BYTES } from '@/lib/seasons/schemas';
 import { managedSeason, type Actor } from '@/lib/seasons/context';
+import { testPieceColumns } from '@/lib/seasons/testPieceColumns';
 
 export const TEST_PIECE_UPLOAD: UploadSpec = {
   files: { file: { maxBytes: TEST_PIECE_MAX_BYTES, maxCount: 1, required: true, label: 'the test piece STL' } },
@@ -32,18 +33,6 @@ export function testPieceJson(tp: TestPiece | null) {
     sizeYMm: tp.sizeYMm,
     sizeZMm: tp.sizeZMm,
     volumeMm3: tp.volumeMm3,
-  };
-}
-
-/** The test_pieces columns an STL's measurement fills (the upload here and the demo seed). */
-export function testPieceColumns(stl: StlSummary) {
-  return {
-    format: stl.format,
-    triangleCount: stl.triangleCount,
-    sizeXMm: stl.sizeMm.x,
-    sizeYMm: stl.sizeMm.y,
-    sizeZMm: stl.sizeMm.z,
-    volumeMm3: stl.volumeMm3,
   };
 }
 

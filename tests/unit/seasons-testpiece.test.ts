@@ -8,7 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { measureStlFile } from '@/lib/seasons/stlMeasure';
-import { testPieceColumns } from '@/lib/seasons/testPiece';
+import { testPieceColumns } from '@/lib/seasons/testPieceColumns';
 import { StlError } from '@/lib/stl';
 import { cuboid, cylinder, toAsciiStl, toBinaryStl } from '@/scripts/fixtures/shapes';
 
