@@ -151,7 +151,6 @@ interface ReportShape {
   file?: { name: string | null; bytes: number };
 }
 
-
 /** The stored inspection as the pages show it: rule results, flags, key figures and the flow series. */
 export function inspectionJson(row: Inspection) {
   const r = (row.report ?? {}) as ReportShape;

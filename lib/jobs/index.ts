@@ -5,8 +5,8 @@
  * bundle of the Next.js server shares it.
  */
 import { spawn } from 'node:child_process';
-import { tsRunArgs } from '@/lib/tsRun';
 import path from 'node:path';
+import { tsRunArgs } from '@/lib/tsRun';
 import type { InspectOptions } from '@/lib/inspection';
 
 export const ENGINE_VERSION = 'hotlap-inspect-1';
