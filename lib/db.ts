@@ -4,7 +4,7 @@
  */
 import path from 'node:path';
 import fs from 'node:fs';
-import { Sequelize } from 'sequelize';
+import { Sequelize, Transaction } from 'sequelize';
 import sqlite3 from 'sqlite3';
 
 /** Where the app keeps its files: the SQLite database and data/uploads. HOTLAP_DATA_DIR moves it. */
@@ -29,6 +29,11 @@ function createSequelize(): Sequelize {
     logging: false,
     // Several connections (one per transaction) share the file: retry on SQLITE_BUSY too.
     retry: { match: [/SQLITE_BUSY/], max: 5 },
+    // A transaction takes the write lock when it begins. One that began by reading (DEFERRED)
+    // gets SQLITE_BUSY at once, with no wait, when it writes after another connection committed
+    // (WAL snapshot rule, sqlite.org "Write-Ahead Logging"); seen as a 500 under parallel tests.
+    // BEGIN IMMEDIATE waits for the lock through busy_timeout instead.
+    transactionType: Transaction.TYPES.IMMEDIATE,
     hooks: {
       afterConnect: async (connection: unknown) => {
         const db = connection as sqlite3.Database;

@@ -4,7 +4,6 @@
  * when the entry is still in the state the judge saw, so two judges deciding at the same moment
  * leave exactly one of them in effect and the other gets a 409 with the state to reload.
  */
-import { Transaction } from 'sequelize';
 import { ContestClass, Entry, Review, Season, User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
@@ -40,7 +39,7 @@ export async function decide(judgeId: number, entryId: number, input: DecisionIn
   if (CLOSED_SEASON_STATES.includes(season.state)) throw conflict(`The standings of ${season.name} are ${season.state}; decisions can no longer change.`);
   const required = requiredVerifications(season.verificationsRequired);
 
-  const result = await getSequelize().transaction({ type: Transaction.TYPES.IMMEDIATE }, async (transaction) => {
+  const result = await getSequelize().transaction(async (transaction) => {
     const now = new Date();
     // Claim the entry: only succeeds while it is still in the state the judge saw. On databases with
     // row locks this also serializes concurrent deciders on the same entry.
