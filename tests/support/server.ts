@@ -71,6 +71,13 @@ export async function startServer(port: number): Promise<TestServer> {
     env: { ...process.env, ...env, NODE_ENV: 'production' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
+  // HOTLAP_TEST_SERVER_LOG=FILE keeps what the server writes (its errors behind a 500, say).
+  const logFile = process.env.HOTLAP_TEST_SERVER_LOG;
+  if (logFile) {
+    const out = fs.createWriteStream(logFile, { flags: 'a' });
+    child.stdout?.pipe(out);
+    child.stderr?.pipe(out);
+  }
   const url = `http://127.0.0.1:${port}`;
   await waitForServer(child, `${url}/api/auth/csrf`, 'The test server');
   return {
