@@ -689,8 +689,10 @@ export class GcodeParser implements LineSink {
       buf[s + 1] === 69 &&
       buf[s + 2] === 65 &&
       buf[s + 3] === 84 &&
-      buf[s + 7] === 69 &&
-      buf[s + 8] === 58;
+      buf[s + 4] === 85 &&
+      buf[s + 5] === 82 &&
+      buf[s + 6] === 69 &&
+      buf[s + 7] === 58;
     if (!this.wantsComments && !isType && !isFeature && (this.firstWord || this.labelsSeen)) return;
     const text = buf.toString('utf8', s, e);
     if (isType || isFeature) {

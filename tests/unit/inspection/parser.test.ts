@@ -245,6 +245,12 @@ describe('feature labels', () => {
     const v = parse('M83\nG1 X1 E0.1 F600 ; perimeter\nG1 X2 E0.1 ; skirt\nG1 X3 E0.1 ; infill (bridge)\nG1 X4 E0.1 ; infill');
     expect(v.segments.map((s) => s.feature)).toEqual(['inner-wall', 'skirt', 'bridge', 'sparse-infill']);
   });
+
+  it('reads ;FEATURE: labels (the spelling some slicers use instead of ;TYPE:)', () => {
+    const p = parse('M83\n;FEATURE: Outer wall\nG1 X1 E0.1 F600\n;FEATURE:Sparse infill\nG1 X2 E0.1\n;FEATUREX:Inner wall\nG1 X3 E0.1');
+    expect(p.segments.map((s) => s.feature)).toEqual(['outer-wall', 'sparse-infill', 'sparse-infill']);
+    expect(p.parser.stats.featureLabels).toBe(2);
+  });
 });
 
 describe('numbers', () => {
