@@ -6,7 +6,9 @@
  * Builds plain G-code files of the given sizes (MB) in a temp dir by stacking the real slicer
  * fixtures on top of each other (G28 commented out, a Z lift and a G92 Z shift between copies, so
  * every copy prints higher up like one tall part), then, each in its own child process:
- *   - the full inspection (reader, parser, measurements, time planner, declared and toolpath settings);
+ *   - the full inspection (reader, parser, measurements, time planner, declared and toolpath settings)
+ *     with the engine inspections use (native when built, lib/inspection/nativeEngine.ts);
+ *   - the same with the TypeScript engine, the reference (first size only);
  *   - the engine without the toolpath-settings analyzer;
  *   - our reader and parser alone with a sink that ignores every move (the like-for-like row for
  *     the peer: parsing only, though ours still resolves units, modes, offsets and arcs);
@@ -20,9 +22,10 @@ import { createReadStream, mkdtempSync, openSync, readFileSync, rmSync, statSync
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
-import { inspectFile } from '../lib/inspection/inspect';
+import { inspectFile, inspectionEngine } from '../lib/inspection/inspect';
 import { readFileLines } from '../lib/inspection/reader';
 import { GcodeParser } from '../lib/inspection/parser';
+import { nativeEngineLoadError } from '../lib/inspection/nativeEngine';
 import { tsRunArgs } from '../lib/tsRun';
 
 const ROOT = join(__dirname, '..');
@@ -63,7 +66,7 @@ async function child(mode: string, file: string): Promise<void> {
     parser.end();
     detail = `${st.lines} lines, ${parser.stats.moves} moves`;
   } else {
-    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine' });
+    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine', engine: mode === 'inspect-ts' ? 'typescript' : 'auto' });
     detail = `${r.layers.count} layers, ${(r.filament.lengthMm / 1000).toFixed(1)} m filament, est. ${(r.time.estimatedS / 3600).toFixed(1)} h, walls measured ${r.settings.walls.measured}`;
   }
   const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
@@ -117,9 +120,11 @@ function build(dir: string, sizeMb: number): string {
 }
 
 const mb = (b: number) => b / 1e6;
+const ENGINE = inspectionEngine();
 const ROW: Record<string, string> = {
-  inspect: 'full inspection',
-  engine: 'engine without toolpath settings',
+  inspect: `full inspection (${ENGINE} engine)`,
+  'inspect-ts': 'full inspection (typescript engine)',
+  engine: `${ENGINE} engine without toolpath settings`,
   parse: 'our reader + parser only (moves ignored)',
   peer: 'gcode-parser (GCodeLineStream, no-op per line)',
 };
@@ -137,6 +142,7 @@ async function main(): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
   const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
   console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
+  console.log(`Inspection engine: ${ENGINE}${ENGINE === 'typescript' ? ` (native engine not available: ${nativeEngineLoadError() ?? 'HOTLAP_ENGINE=ts'})` : ''}`);
   if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; times are from each mode's run with the least CPU time, peak RSS the highest of its runs`);
   try {
     const rows: { what: string; size: number; r: ChildResult }[] = [];
@@ -145,7 +151,7 @@ async function main(): Promise<void> {
       console.log(`built ${file} (${mb(statSync(file).size).toFixed(1)} MB)`);
       // This machine's speed drifts by ±20 % between minutes (shared host), so the modes are
       // interleaved round by round: the ratio to the peer compares runs made side by side.
-      const modes = i === 0 ? ['inspect', 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
+      const modes = i === 0 ? ['inspect', ...(ENGINE === 'native' ? ['inspect-ts'] : []), 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
       const best = new Map<string, ChildResult>();
       for (let round = 0; round < repeat; round++) {
         for (const mode of modes) best.set(mode, keepBest(best.get(mode), runChildOnce(mode, file)));
@@ -158,10 +164,10 @@ async function main(): Promise<void> {
       if (!keep) rmSync(file);
     }
     console.log('\nSummary');
-    console.log('what'.padEnd(50), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'MB/CPU-s'.padStart(9), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
+    console.log('what'.padEnd(52), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'MB/CPU-s'.padStart(9), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
     for (const { what, size, r } of rows) {
       console.log(
-        what.padEnd(50),
+        what.padEnd(52),
         String(size).padStart(8),
         (mb(r.bytes) / r.seconds).toFixed(1).padStart(8),
         (mb(r.bytes) / r.cpuSeconds).toFixed(1).padStart(9),
@@ -178,8 +184,9 @@ async function main(): Promise<void> {
         ' turns each line into an object of its words and numbers (no units, modes, positions, arcs, filament or time), so the like-for-like comparison' +
         ' is the "reader + parser only" row.',
     );
-    for (const what of [ROW.inspect, ROW.engine, ROW.parse]) {
-      const ours = rows.find((x) => x.what === what && x.size === first)!.r;
+    for (const what of [ROW.inspect, ROW['inspect-ts'], ROW.engine, ROW.parse]) {
+      const ours = rows.find((x) => x.what === what && x.size === first)?.r;
+      if (!ours) continue;
       const cpuRatio = peer.cpuSeconds / ours.cpuSeconds;
       console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput (${cpuRatio.toFixed(1)}× by CPU time)`);
     }

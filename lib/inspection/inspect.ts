@@ -11,7 +11,7 @@
 import { basename } from 'node:path';
 import type { Readable } from 'node:stream';
 import type { Flag, Segment, SegmentSink } from './types';
-import { readFileLines, readStreamLines, type ReadStats } from './reader';
+import { readFileLines, readStreamLines, type LineSink, type ReadStats } from './reader';
 import { GcodeParser, MachineState, type MotionSink, type ParserOptions } from './parser';
 import { Measurements, type MeasureResult } from './measure';
 import { DEFAULT_LIMITS, type MachineLimits } from './planner';
@@ -22,6 +22,7 @@ import { createToolpathSettingsAnalyzer, type MeasuredSettings, type ToolpathSet
 import { evaluateRules, settingsMismatchFlags, type Rule } from './rules';
 import type { MetricContext, MetricReport } from './metrics';
 import { checkPlausibility, type PlausibilityClaims } from './plausibility';
+import { loadNativeEngine, nativeEngineLoadError, NativeLineSink, type EngineOutput } from './nativeEngine';
 
 export interface InspectOptions {
   /** Filament diameter, mm (default 1.75). */
@@ -41,6 +42,8 @@ export interface InspectOptions {
   ruleContext?: MetricContext;
   /** Entrant's claims for the plausibility checks. */
   claims?: PlausibilityClaims;
+  /** Which engine runs the per-move stages (default 'auto': native when built; HOTLAP_ENGINE overrides 'auto'). */
+  engine?: EngineChoice;
   /** Skip the toolpath settings analysis (faster; settings.*.measured stay null except layer heights). */
   skipToolpathSettings?: boolean;
 }
@@ -87,50 +90,94 @@ class Fanout implements MotionSink {
   }
 }
 
-interface Pipeline {
-  parser: GcodeParser;
-  measure: Measurements;
+/** Which implementation runs the per-move stages; both give the same report. */
+export type EngineChoice = 'auto' | 'native' | 'typescript';
+
+/** One inspection in progress: the reader feeds `sink`; `finish` ends the stream. */
+interface Run {
+  sink: LineSink;
+  finish(): EngineOutput;
+  /** The reader failed: release what the run holds. */
+  abort(): void;
   declared: DeclaredSettingsReader;
-  toolpath: ToolpathSettingsAnalyzer | null;
   diameterMm: number;
 }
 
-function buildPipeline(options: InspectOptions): Pipeline {
+/** HOTLAP_ENGINE=ts (or typescript) / native overrides 'auto'. */
+function engineFromEnv(): EngineChoice | undefined {
+  const v = process.env.HOTLAP_ENGINE;
+  if (v === 'ts' || v === 'typescript') return 'typescript';
+  if (v === 'native') return 'native';
+  return undefined;
+}
+
+/** The name of the engine an inspection with these options runs. */
+export function inspectionEngine(options: Pick<InspectOptions, 'engine' | 'sinks'> = {}): 'native' | 'typescript' {
+  const want = options.engine ?? engineFromEnv() ?? 'auto';
+  // Extra sinks are TypeScript objects fed per move: the native engine has no such hook.
+  const sinks = (options.sinks?.length ?? 0) > 0;
+  if (want === 'native' && sinks) throw new Error('The native inspection engine takes no extra sinks; use engine "typescript".');
+  if (want === 'typescript' || sinks) return 'typescript';
+  if (loadNativeEngine()) return 'native';
+  if (want === 'native') throw new Error(`The native inspection engine is not built (${nativeEngineLoadError()}); run npm run build:native.`);
+  return 'typescript';
+}
+
+function startRun(options: InspectOptions): Run {
   const diameterMm = options.filamentDiameterMm ?? DEFAULT_FILAMENT_DIAMETER_MM;
   if (!(diameterMm > 0 && diameterMm < 10)) throw new RangeError(`Filament diameter ${diameterMm} mm is not plausible (expected e.g. 1.75 or 2.85).`);
-  const machine = new MachineState();
   const limits: MachineLimits = { ...DEFAULT_LIMITS, ...(options.limits ?? {}) };
-  const measure = new Measurements({ filamentDiameterMm: diameterMm, limits }, machine);
   const declared = createDeclaredSettingsReader();
+  if (inspectionEngine(options) === 'native') {
+    const sink = new NativeLineSink(
+      loadNativeEngine()!,
+      { filamentDiameterMm: diameterMm, limits, parser: options.parser ?? {}, toolpath: !options.skipToolpathSettings },
+      declared,
+    );
+    return { sink, finish: () => sink.finish(), abort: () => sink.close(), declared, diameterMm };
+  }
+  const machine = new MachineState();
+  const measure = new Measurements({ filamentDiameterMm: diameterMm, limits }, machine);
   const toolpath = options.skipToolpathSettings ? null : createToolpathSettingsAnalyzer({ filamentDiameterMm: diameterMm });
   const fan = new Fanout(measure, toolpath, declared, options.sinks ?? []);
   const parser = new GcodeParser(fan, options.parser ?? {}, machine);
-  return { parser, measure, declared, toolpath, diameterMm };
+  const finish = (): EngineOutput => {
+    parser.end();
+    return { stats: parser.stats, warnings: parser.warnings, machine, measure: measure.result(), toolpath: toolpath ? toolpath.result() : null };
+  };
+  return { sink: parser, finish, abort: () => {}, declared, diameterMm };
+}
+
+async function readAll(run: Run, read: () => Promise<ReadStats>): Promise<ReadStats> {
+  try {
+    return await read();
+  } catch (err) {
+    run.abort();
+    throw err;
+  }
 }
 
 /** Inspects a .gcode or .gcode.gz file. Throws InspectionError for input it cannot read. */
 export async function inspectFile(path: string, options: InspectOptions = {}): Promise<InspectionReport> {
-  const p = buildPipeline(options);
-  const stats = await readFileLines(path, p.parser);
-  p.parser.end();
-  return buildReport(p, stats, options, options.name ?? basename(path));
+  const run = startRun(options);
+  const stats = await readAll(run, () => readFileLines(path, run.sink));
+  return buildReport(run, run.finish(), stats, options, options.name ?? basename(path));
 }
 
 /** Inspects a byte stream (plain or gzip). Throws InspectionError for input it cannot read. */
 export async function inspectStream(input: Readable, options: InspectOptions = {}): Promise<InspectionReport> {
-  const p = buildPipeline(options);
-  const stats = await readStreamLines(input, p.parser);
-  p.parser.end();
-  return buildReport(p, stats, options, options.name ?? null);
+  const run = startRun(options);
+  const stats = await readAll(run, () => readStreamLines(input, run.sink));
+  return buildReport(run, run.finish(), stats, options, options.name ?? null);
 }
 
 function pair(declared: number | null | undefined, measured: number | null | undefined, detail?: string) {
   return { declared: declared ?? null, measured: measured ?? null, ...(detail ? { detail } : {}) };
 }
 
-function buildReport(p: Pipeline, stats: ReadStats, options: InspectOptions, name: string | null): InspectionReport {
-  const m: MeasureResult = p.measure.result();
-  const ps = p.parser.stats;
+function buildReport(p: Run, out: EngineOutput, stats: ReadStats, options: InspectOptions, name: string | null): InspectionReport {
+  const m: MeasureResult = out.measure;
+  const ps = out.stats;
   const d: DeclaredSettings = p.declared.result();
   const warnings: Flag[] = [];
 
@@ -150,8 +197,8 @@ function buildReport(p: Pipeline, stats: ReadStats, options: InspectOptions, nam
       message: `The file declares ${declaredDia} mm filament but volumes were computed for ${p.diameterMm} mm; run again with the filament diameter option set to ${declaredDia}.`,
     });
   }
-  for (const w of p.parser.warnings) warnings.push({ code: w.code, severity: 'info', message: w.message });
-  const hidden = ps.warningsTotal - p.parser.warnings.length;
+  for (const w of out.warnings) warnings.push({ code: w.code, severity: 'info', message: w.message });
+  const hidden = ps.warningsTotal - out.warnings.length;
   if (hidden > 0) warnings.push({ code: 'more_warnings', severity: 'info', message: `${hidden} more parser warnings of the same kinds were not listed.` });
   if (ps.unknownCommandCount > 0) {
     const top = [...ps.unknownCommands.entries()].sort((a, b) => b[1] - a[1]).slice(0, 8).map(([k, n]) => `${k} ×${n}`);
@@ -184,13 +231,13 @@ function buildReport(p: Pipeline, stats: ReadStats, options: InspectOptions, nam
     warnings.push({ code: 'several_tools', severity: 'info', message: `The file uses ${ps.toolsUsed.size} tools; filament is summed over all of them.` });
   }
 
-  const settings = settingsEvidence(d, p.toolpath ? p.toolpath.result() : null, m);
-  if (p.toolpath) {
-    for (const w of p.toolpath.result().warnings) warnings.push({ code: 'toolpath_settings', severity: 'info', message: w });
+  const settings = settingsEvidence(d, out.toolpath, m);
+  if (out.toolpath) {
+    for (const w of out.toolpath.warnings) warnings.push({ code: 'toolpath_settings', severity: 'info', message: w });
   }
   warnings.push(...settingsMismatchFlags(settings));
 
-  const mach = p.parser.machine;
+  const mach = out.machine;
   const report: InspectionReport = {
     file: { name, bytes: stats.bytesIn, textBytes: stats.bytesText, gzip: stats.gzip, lines: ps.lines },
     slicer: { dialect: d.dialect, generator: d.generator },
