@@ -799,6 +799,8 @@ export class GcodeParser implements LineSink {
         // Modal motion: axis words alone repeat the current motion mode (NISTIR 6556 §3.5.1 "motion mode").
         this.stats.commands++;
         this.motion(this.motionMode);
+      } else if (this.mask !== 0) {
+        this.noCommand();
       }
       return;
     }
@@ -815,6 +817,13 @@ export class GcodeParser implements LineSink {
       this.motion(motion);
     }
     for (let k = 0; k < nM; k++) this.mCode(this.mCodes[k]);
+  }
+
+  /** Words with no G, M or T command and no motion mode to repeat (e.g. "Q77"): they do nothing. */
+  private noCommand(): void {
+    let letters = '';
+    for (let l = 0; l < 26; l++) if (this.mask & (1 << l)) letters += String.fromCharCode(65 + l);
+    this.warn('no-command', `Line ${this.lineNo}: ${letters.length > 1 ? 'words' : 'word'} ${letters} without a G, M or T command (or a motion mode to repeat); ignored.`);
   }
 
   private gCode(g: number): void {

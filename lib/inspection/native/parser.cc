@@ -1124,6 +1124,16 @@ void Parser::noNumber(int letter) {
     warn("malformed-number", "Line " + jsNumber(lineNo_) + ": " + letterName(letter) + " has no valid number; ignored.");
 }
 
+// Words with no G, M or T command and no motion mode to repeat (e.g. "Q77"): they do nothing.
+void Parser::noCommand() {
+  if (!warnSlot()) return;
+  std::string letters;
+  for (int l = 0; l < 26; l++)
+    if (mask_ & (1u << l)) letters += static_cast<char>(65 + l);
+  warn("no-command", "Line " + jsNumber(lineNo_) + ": " + (letters.size() > 1 ? "words " : "word ") + letters +
+                         " without a G, M or T command (or a motion mode to repeat); ignored.");
+}
+
 void Parser::execute() {
   const int nG = nG_;
   const int nM = nM_;
@@ -1137,6 +1147,8 @@ void Parser::execute() {
       // Modal motion: axis words alone repeat the current motion mode (NISTIR 6556 §3.5.1 "motion mode").
       stats_.commands++;
       motion(motionMode_);
+    } else if (mask_ != 0) {
+      noCommand();
     }
     return;
   }

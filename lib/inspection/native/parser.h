@@ -187,6 +187,7 @@ class Parser {
   size_t lineImpl(const uint8_t* buf, size_t start, size_t end);
   bool warnSlot();
   HOTLAP_COLD void warn(const char* code, std::string message);
+  HOTLAP_COLD void noCommand();
   HOTLAP_COLD void noteLongLine(double bytes, double lineNo, size_t at);
   void beginStatement();
   void storeWord(int letter, double v);

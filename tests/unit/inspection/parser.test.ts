@@ -305,4 +305,14 @@ describe('bad words', () => {
     expect(p.parser.stats.unknownCommands.get('PRINT_START')).toBe(1);
     expect(p.parser.stats.unknownCommandCount).toBe(4);
   });
+
+  it('words with no command are ignored with a warning; axis words alone repeat the motion mode (NISTIR 6556 §3.5.1)', () => {
+    const p = parse('X5 Y5\nG1 X1 F600\nX2\nQ77\nS255 P1\nN10 *93\n');
+    expect(p.segments.map((s) => s.x1)).toEqual([1, 2]);
+    expect(p.parser.warnings.filter((w) => w.code === 'no-command').map((w) => [w.lineNo, w.message])).toEqual([
+      [1, 'Line 1: words XY without a G, M or T command (or a motion mode to repeat); ignored.'],
+      [4, 'Line 4: word Q without a G, M or T command (or a motion mode to repeat); ignored.'],
+      [5, 'Line 5: words PS without a G, M or T command (or a motion mode to repeat); ignored.'],
+    ]);
+  });
 });
