@@ -24,7 +24,7 @@ const gyp = nodeGyp();
 const required = process.env.HOTLAP_REQUIRE_NATIVE === '1';
 let ok = false;
 if (gyp) {
-  const r = spawnSync(process.execPath, [gyp, 'rebuild', '--jobs=max'], { stdio: 'inherit' });
+  const r = spawnSync(process.execPath, [gyp, 'rebuild', '--jobs=max', '--loglevel=warn'], { stdio: 'inherit' });
   ok = r.status === 0;
 }
 if (!ok) {
