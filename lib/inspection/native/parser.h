@@ -115,7 +115,7 @@ class Parser {
   void longLine(double bytes);
   // As GcodeParser.end(): flushes the sink.
   void end();
-  // {"stats":…, "warnings":[…], "machine":{…}} as /work/native-dev/dump.ts writes OUT.parser.json
+  // {"stats":…, "warnings":[…], "machine":{…}}: the TypeScript parser's stats, warnings and machine
   // (unknownCommands as [[name, count], …], toolsUsed and machine.setBy as arrays).
   void toJson(Json& j) const;
 
