@@ -1,7 +1,8 @@
 # Native twin of the inspection engine's per-move work (lib/inspection/native/; DEVELOPERS.md, "Native engine").
 # Built by `npm install` / `npm ci` through scripts/build-native.mjs; when it cannot be built the
-# TypeScript engine runs instead, with the same report. -O2, not -O3: -O3 measured ~3x slower on
-# the bench stack. -ffp-contract=off: no fused multiply-add, so the numbers match the TypeScript's.
+# TypeScript engine runs instead, with the same report. -O2 in place of node-gyp's -O3: -O3 was no
+# faster on the bench stack. -ffp-contract=off: no fused multiply-add, so the numbers match the
+# TypeScript's. (An -O3 tried via cflags_cc alone is removed again by "cflags_cc!" below.)
 {
   "targets": [
     {
