@@ -39,8 +39,8 @@ struct Event {
 // published in batches to keep the two cores from trading the cache line on every move.
 //
 // A side with nothing to do yields a few times, then sleeps on a condition variable until the
-// other side publishes: timed sleeps were tried and last far longer than asked on this virtual
-// machine, which left the ring idle for long stretches (wall time 0.5–1.8 s instead of ~0.5 s).
+// other side publishes, so it wakes as soon as there is work and burns no CPU while it waits (a
+// fixed 50 µs sleep-and-poll before it: same bench time, small files 5–6 ms instead of 3 ms).
 class Pipe {
  public:
   static constexpr size_t kSize = 8192;  // a power of two
