@@ -96,6 +96,12 @@ function revive(_key: string, v: unknown): unknown {
 }
 
 /**
+ * By first byte, the comments the declared-settings reader can use; the engine keeps only those.
+ * A first byte ≥ 0x80 decodes to a non-ASCII first character, which never matters either.
+ */
+const COMMENT_FIRST_BYTES = Uint8Array.from({ length: 256 }, (_, b) => (commentMayMatter(b) ? 1 : 0));
+
+/**
  * The native engine as the reader's LineSink. Comments come back in batches after each call and go
  * to the declared-settings reader, in file order.
  */
@@ -104,7 +110,7 @@ export class NativeLineSink implements LineSink {
   private readonly declared: DeclaredSettingsReader;
 
   constructor(mod: NativeModule, options: NativeRunOptions, declared: DeclaredSettingsReader) {
-    this.engine = new mod.Engine(options);
+    this.engine = new mod.Engine({ ...options, commentFirstBytes: COMMENT_FIRST_BYTES });
     this.declared = declared;
   }
 
@@ -126,12 +132,10 @@ export class NativeLineSink implements LineSink {
   private drain(): void {
     const c = this.engine.takeComments();
     if (c === null) return;
-    const bytes = c.bytes;
     let from = 0;
     for (let i = 0; i < c.ends.length; i++) {
       const to = c.ends[i];
-      // A first byte ≥ 0x80 decodes to a non-ASCII first character, which never matters either.
-      if (commentMayMatter(bytes[from])) this.declared.comment(bytes.toString('utf8', from, to), c.lineNos[i]);
+      this.declared.comment(c.bytes.toString('utf8', from, to), c.lineNos[i]);
       from = to;
     }
   }

@@ -3,7 +3,7 @@
 // reader feeds, and runs the parser, measurements, time planner and toolpath settings analysis in
 // C++. lib/inspection/nativeEngine.ts is its only caller.
 //
-//   const e = new Engine({ filamentDiameterMm, limits, parser, toolpath })
+//   const e = new Engine({ filamentDiameterMm, limits, parser, toolpath, commentFirstBytes })
 //   e.lines(buf, start, end) → lines · e.line(buf, start, end) · e.longLine(bytes)
 //   e.takeComments() → null | { bytes: Buffer, ends: Uint32Array, lineNos: Float64Array }
 //   e.end() · e.result() → JSON text { parser, measure, toolpath } · e.close() (frees it all)
@@ -131,7 +131,9 @@ class Pipe {
 // JavaScript (the declared-settings reader), in order, as bytes.
 class Fanout final : public MotionSink {
  public:
-  Fanout(const MachineState& machine, Pipe& pipe) : machine_(machine), pipe_(pipe) {}
+  Fanout(const MachineState& machine, Pipe& pipe) : machine_(machine), pipe_(pipe) {
+    for (bool& k : keepComment) k = true;
+  }
   void segment(const Segment& s) override {
     sendLimits();
     Event& e = pipe_.slot();
@@ -140,6 +142,7 @@ class Fanout final : public MotionSink {
     pipe_.commit();
   }
   void comment(const char* text, size_t len, double lineNo) override {
+    if (len == 0 || !keepComment[static_cast<uint8_t>(text[0])]) return;
     commentBytes.append(text, len);
     commentEnds.push_back(static_cast<uint32_t>(commentBytes.size()));
     commentLines.push_back(lineNo);
@@ -161,6 +164,8 @@ class Fanout final : public MotionSink {
   std::string commentBytes;
   std::vector<uint32_t> commentEnds;
   std::vector<double> commentLines;
+  // By first byte: whether JavaScript wants the comment (options.commentFirstBytes; default all).
+  bool keepComment[256];
 
  private:
   const MachineState& machine_;
@@ -246,6 +251,11 @@ class Engine : public Napi::ObjectWrap<Engine> {
     if (withToolpath) toolpath_ = std::make_unique<ToolpathSettingsAnalyzer>(diameter);
     pipe_ = std::make_unique<Pipe>();
     fanout_ = std::make_unique<Fanout>(machine_, *pipe_);
+    if (o.Get("commentFirstBytes").IsTypedArray()) {
+      auto keep = o.Get("commentFirstBytes").As<Napi::Uint8Array>();
+      if (keep.ElementLength() == 256)
+        for (size_t b = 0; b < 256; b++) fanout_->keepComment[b] = keep[b] != 0;
+    }
     parser_ = std::make_unique<Parser>(*fanout_, po, machine_);
     worker_ = std::thread([this] { work(); });
     Napi::MemoryManagement::AdjustExternalMemory(env, kExternalBytes);
