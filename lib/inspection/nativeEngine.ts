@@ -44,8 +44,8 @@ interface NativeModule {
   version: number;
 }
 
-/** Where node-gyp puts the addon (binding.gyp target hotlap_inspection). */
-export const NATIVE_ADDON_PATH = join(__dirname, '..', '..', 'build', 'Release', 'hotlap_inspection.node');
+/** Where node-gyp puts the addon (binding.gyp target hotlap_inspection); HOTLAP_NATIVE_ADDON overrides (sanitizer builds). */
+export const NATIVE_ADDON_PATH = process.env.HOTLAP_NATIVE_ADDON || join(__dirname, '..', '..', 'build', 'Release', 'hotlap_inspection.node');
 
 let loaded: NativeModule | null | undefined;
 let loadError: string | null = null;
