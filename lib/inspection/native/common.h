@@ -24,6 +24,12 @@ constexpr int kFeatureNone = -1;
 inline const char* const kFeatureNames[kFeatureCount] = {
     "outer-wall", "inner-wall", "overhang-wall", "sparse-infill", "solid-infill", "top-solid",
     "bottom-solid", "bridge", "skirt", "support", "gap-fill", "other"};
+// Indices into kFeatureNames.
+enum Feature : int {
+  F_OUTER_WALL, F_INNER_WALL, F_OVERHANG_WALL, F_SPARSE_INFILL, F_SOLID_INFILL, F_TOP_SOLID,
+  F_BOTTOM_SOLID, F_BRIDGE, F_SKIRT, F_SUPPORT, F_GAP_FILL, F_OTHER
+};
+static_assert(F_OTHER + 1 == kFeatureCount, "one index per feature name");
 
 // One straight move after all modal state is resolved (types.ts Segment). The parser hands the same
 // object to every callback and overwrites it on the next move.
@@ -94,6 +100,47 @@ inline double jsMin(double a, double b) {
   if (std::isnan(a) || std::isnan(b)) return NAN;
   if (a == 0 && b == 0) return std::signbit(a) ? a : b;
   return a < b ? a : b;
+}
+
+// Math.hypot of two numbers as V8 computes it (scaled by the larger magnitude, Kahan-summed
+// squares), which is not glibc's hypot (the two differ in the last bit).
+inline double jsHypot(double a, double b) {
+  bool nan = false;
+  double abs0 = 0, abs1 = 0, max = 0;
+  if (std::isnan(a)) nan = true;
+  else {
+    abs0 = std::fabs(a);
+    if (abs0 > max) max = abs0;
+  }
+  if (std::isnan(b)) nan = true;
+  else {
+    abs1 = std::fabs(b);
+    if (abs1 > max) max = abs1;
+  }
+  if (max == INFINITY) return INFINITY;
+  if (nan) return NAN;
+  if (max == 0) return 0;
+  double sum = 0, compensation = 0;
+  double n = abs0 / max;
+  double summand = n * n - compensation;
+  double preliminary = sum + summand;
+  compensation = (preliminary - sum) - summand;
+  sum = preliminary;
+  n = abs1 / max;
+  summand = n * n - compensation;
+  preliminary = sum + summand;
+  compensation = (preliminary - sum) - summand;
+  sum = preliminary;
+  return std::sqrt(sum) * max;
+}
+
+// ECMAScript ToInt32 (what `x | 0` does): truncate, wrap modulo 2³², NaN and ±Infinity → 0.
+inline int32_t jsToInt32(double x) {
+  if (x > -2147483649.0 && x < 2147483648.0) return static_cast<int32_t>(x);
+  if (!std::isfinite(x)) return 0;
+  double m = std::fmod(std::trunc(x), 4294967296.0);
+  if (m < 0) m += 4294967296.0;
+  return static_cast<int32_t>(static_cast<uint32_t>(m));
 }
 
 // ECMAScript Number::toString(x) (ECMA-262 §6.1.6.1.20): what `${x}` prints in a message.

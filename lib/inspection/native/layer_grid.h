@@ -27,37 +27,6 @@ constexpr uint8_t kGap = 5;
 // Upper bound on grid cells (1024²) — MAX_GRID_CELLS.
 constexpr int kMaxGridCells = 1024 * 1024;
 
-// Math.hypot of two numbers as V8 computes it (scaled by the larger magnitude, Kahan-summed
-// squares), which is not glibc's hypot.
-inline double jsHypot(double a, double b) {
-  bool nan = false;
-  double abs0 = 0, abs1 = 0, max = 0;
-  if (std::isnan(a)) nan = true;
-  else {
-    abs0 = std::fabs(a);
-    if (abs0 > max) max = abs0;
-  }
-  if (std::isnan(b)) nan = true;
-  else {
-    abs1 = std::fabs(b);
-    if (abs1 > max) max = abs1;
-  }
-  if (max == INFINITY) return INFINITY;
-  if (nan) return NAN;
-  if (max == 0) return 0;
-  double sum = 0, compensation = 0;
-  double n = abs0 / max;
-  double summand = n * n - compensation;
-  double preliminary = sum + summand;
-  compensation = (preliminary - sum) - summand;
-  sum = preliminary;
-  n = abs1 / max;
-  summand = n * n - compensation;
-  preliminary = sum + summand;
-  compensation = (preliminary - sum) - summand;
-  sum = preliminary;
-  return std::sqrt(sum) * max;
-}
 
 class LayerGrid {
  public:

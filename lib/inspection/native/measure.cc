@@ -13,9 +13,6 @@ constexpr uint8_t kCellPreamble = 1;
 constexpr uint8_t kCellFirst = 2;
 constexpr uint8_t kCellLater = 4;
 
-// Feature indices of "skirt" and "support" in kFeatureNames.
-constexpr int kFeatureSkirt = 8;
-constexpr int kFeatureSupport = 9;
 
 // Map<number, …> key: SameValueZero (−0 is +0, NaN is one key).
 inline uint64_t keyBits(double k) {
@@ -235,7 +232,7 @@ void Measurements::extrusion(const Segment& s) {
           if (w < fWMin_[fi]) fWMin_[fi] = w;
           if (w > fWMax_[fi]) fWMax_[fi] = w;
         }
-        if (f != kFeatureSkirt) {
+        if (f != F_SKIRT) {
           int32_t b = jsToInt32(w / kWidthBinMm);
           if (b >= kWidthBins) b = kWidthBins - 1;
           widthHist_[b] += L;
@@ -246,7 +243,7 @@ void Measurements::extrusion(const Segment& s) {
   }
   // Geometry.
   growBox(boxAll_, s);
-  const bool excluded = f == kFeatureSkirt || f == kFeatureSupport;
+  const bool excluded = f == F_SKIRT || f == F_SUPPORT;
   if (f != kFeatureNone && !excluded) growBox(boxLabelled_, s);
   if (excluded || li < 0) return;
   uint8_t bit;

@@ -30,14 +30,6 @@ inline double crossSectionMm2(double lineWidthMm, double layerHeightMm) {
   return (lineWidthMm - h) * h + M_PI * (h / 2) * (h / 2);
 }
 
-// ECMAScript ToInt32 (what `x | 0` does): truncate, wrap modulo 2³², NaN and ±Infinity → 0.
-inline int32_t jsToInt32(double x) {
-  if (x > -2147483649.0 && x < 2147483648.0) return static_cast<int32_t>(x);
-  if (!std::isfinite(x)) return 0;
-  double m = std::fmod(std::trunc(x), 4294967296.0);
-  if (m < 0) m += 4294967296.0;
-  return static_cast<int32_t>(static_cast<uint32_t>(m));
-}
 
 // Flow histogram: fixed bins of 0.05 mm³/s up to 250 mm³/s plus one overflow bin.
 constexpr double kFlowBinMm3s = 0.05;

@@ -10,7 +10,7 @@
 // Floating point: plain + − × ÷ and sqrt as in JavaScript, so results are bit-identical, except in
 // arc(): Math.atan2 / Math.acos / Math.cos / Math.sin become std::atan2 / acos / cos / sin, which
 // may differ from V8's by one ulp (chord points of G2/G3 only; the arc's end point is exact).
-// Math.hypot is V8's own algorithm (v8Hypot below, bit-identical) and Math.pow(10, n) is a table of
+// Math.hypot is V8's own algorithm (jsHypot in common.h, bit-identical), Math.pow(10, n) a table of
 // V8's values (jsPow10), because glibc's pow differs from V8's for some n.
 #include "parser.h"
 
@@ -80,11 +80,6 @@ constexpr double kPow10Small[10] = {1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1
 // MachineState::mark() takes a std::string: built once, not per command.
 const std::string kMarkM201 = "M201", kMarkM203 = "M203", kMarkM204 = "M204", kMarkM205 = "M205",
                   kMarkSetVelocityLimit = "SET_VELOCITY_LIMIT";
-
-// FEATURE_KINDS indices.
-constexpr int F_OUTER_WALL = 0, F_INNER_WALL = 1, F_OVERHANG_WALL = 2, F_SPARSE_INFILL = 3, F_SOLID_INFILL = 4,
-              F_TOP_SOLID = 5, F_BOTTOM_SOLID = 6, F_BRIDGE = 7, F_SKIRT = 8, F_SUPPORT = 9, F_GAP_FILL = 10,
-              F_OTHER = 11;
 
 // Math.pow(10, n) in V8 for n = −323 … 308 (bit patterns); 10^n is 0 below and Infinity above.
 const uint64_t kPow10Bits[] = {
@@ -248,30 +243,6 @@ const uint64_t kPow10Bits[] = {
     0x7f423a516e82d9baull, 0x7f76c8e5ca239029ull, 0x7fac7b1f3cac7433ull, 0x7fe1ccf385ebc8a0ull,
 };
 
-// Math.hypot(a, b) as V8 computes it (builtins: normalise by the larger magnitude, Kahan-summed
-// squares, sqrt, scale back), so the result is the same double.
-double v8Hypot(double a, double b) {
-  double x = std::fabs(a), y = std::fabs(b);
-  if (std::isnan(a) || std::isnan(b)) {
-    if (std::isinf(x) || std::isinf(y)) return INFINITY;
-    return NAN;
-  }
-  double max = 0;
-  if (x > max) max = x;
-  if (y > max) max = y;
-  if (max == INFINITY) return INFINITY;
-  if (max == 0) return 0;
-  double sum = 0, compensation = 0;
-  const double v[2] = {x, y};
-  for (double e : v) {
-    double n = e / max;
-    double summand = n * n - compensation;
-    double preliminary = sum + summand;
-    compensation = (preliminary - sum) - summand;
-    sum = preliminary;
-  }
-  return std::sqrt(sum) * max;
-}
 
 bool isTerminator(uint8_t c) {
   return c == SPACE || c == TAB || c == CR || c == LF || c == SEMI || c == LPAREN || c == STAR;
@@ -1640,7 +1611,7 @@ void Parser::arc(bool cw, double tx, double ty, double tz, double de) {
     cx = sx + i * u;
     cy = sy + j * u;
   }
-  const double r = v8Hypot(sx - cx, sy - cy);
+  const double r = jsHypot(sx - cx, sy - cy);
   const double a0 = std::atan2(sy - cy, sx - cx);  // Math.atan2: may differ by one ulp
   const double a1 = std::atan2(ty - cy, tx - cx);
   const double TWO_PI = 2 * M_PI;
@@ -1653,7 +1624,7 @@ void Parser::arc(bool cw, double tx, double ty, double tz, double de) {
   double n = std::ceil(sweep / maxStep);
   if (!(n >= 1)) n = 1;
   if (n > MAX_ARC_CHORDS) n = MAX_ARC_CHORDS;
-  const double r1 = v8Hypot(tx - cx, ty - cy);
+  const double r1 = jsHypot(tx - cx, ty - cy);
   const double z0 = pz_;
   const double dir = cw ? -1 : 1;
   const double dePer = de / n;

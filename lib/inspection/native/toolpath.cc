@@ -619,7 +619,7 @@ void ToolpathSettingsAnalyzer::segment(const Segment& s) {
   chainOf_[nSeg_] = nChains_ - 1;
   // Feature labels are kept only to cross-check the measurement afterwards, never to make it.
   const int f = s.feature;
-  wallLabel_[nSeg_] = f == 0 || f == 1 || f == 2 ? 1 : 0;  // outer-wall, inner-wall, overhang-wall
+  wallLabel_[nSeg_] = f == F_OUTER_WALL || f == F_INNER_WALL || f == F_OVERHANG_WALL ? 1 : 0;
   nSeg_++;
   stVol_ += areaMm2 * lenXY;
   if (s.x0 < stMinX_) stMinX_ = s.x0;
