@@ -171,13 +171,15 @@ class Fanout final : public MotionSink {
   const MachineState& machine_;
   Pipe& pipe_;
   MotionLimits sent_;
-  // The planner reads the accelerations on every move and the other limits when the version
-  // changes (parser.ts MachineState.version), so those four say whether the worker needs a copy.
+  int sentAccelWrites_ = 0;
+  // The worker needs a copy when the limits changed: every change bumps the version except M204's
+  // accelerations, which bump accelWrites (slicers repeat M204 per feature, mostly unchanged).
   void sendLimits() {
     const MachineState& m = machine_;
+    if (m.version == sent_.version && m.accelWrites == sentAccelWrites_) return;
+    sentAccelWrites_ = m.accelWrites;
     if (m.version == sent_.version && m.accelPrintMms2 == sent_.accelPrintMms2 && m.accelTravelMms2 == sent_.accelTravelMms2 &&
-        m.accelRetractMms2 == sent_.accelRetractMms2 && m.accelToDecelMms2 == sent_.accelToDecelMms2 &&
-        m.minimumCruiseRatio == sent_.minimumCruiseRatio)
+        m.accelRetractMms2 == sent_.accelRetractMms2)
       return;
     sent_ = m;
     Event& e = pipe_.slot();

@@ -67,6 +67,9 @@ struct MotionLimits {
 
 // parser.ts MachineState: the limits and which commands set them.
 struct MachineState : MotionLimits {
+  // C++ only: bumped by every M204 (which sets accelerations without a version bump), so the
+  // pipeline in addon.cc checks two counters per move instead of comparing the limits.
+  int accelWrites = 0;
   // Insertion-ordered set of the command families that set limits.
   std::vector<std::string> setBy;
   std::string lastMark;

@@ -1320,6 +1320,7 @@ void Parser::m204() {
   if (double v = limit("M204", L_P, MIN_ACCEL, MAX_LIMIT); v == v) m.accelPrintMms2 = v;
   if (double v = limit("M204", L_R, MIN_ACCEL, MAX_LIMIT); v == v) m.accelRetractMms2 = v;
   if (double v = limit("M204", L_T, MIN_ACCEL, MAX_LIMIT); v == v) m.accelTravelMms2 = v;
+  m.accelWrites++;
   // Accelerations are read by the planner on every move, so no version bump (slicers send M204 per feature).
   m.mark(kMarkM204);
 }
