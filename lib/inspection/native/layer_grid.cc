@@ -3,6 +3,7 @@
 #include "layer_grid.h"
 
 #include <algorithm>
+#include <cstring>
 
 namespace hotlap {
 
@@ -26,9 +27,11 @@ void LayerGrid::reset(double ox, double oy, double c, int nxArg, int nyArg) {
     loopId.assign(n, 0);
     queue_.assign(n, 0);
   } else {
-    std::fill(label.begin(), label.begin() + n, 0);
-    std::fill(volume.begin(), volume.begin() + n, 0.0f);
-    std::fill(loopId.begin(), loopId.begin() + n, 0);
+    // label.fill(0), volume.fill(0), loopId.fill(0) over the first n cells. memset: all-zero bytes
+    // are 0 for uint8_t / int32_t and +0.0f for float (std::fill on float / int32 ran as a loop).
+    std::memset(label.data(), 0, n * sizeof(uint8_t));
+    std::memset(volume.data(), 0, n * sizeof(float));
+    std::memset(loopId.data(), 0, n * sizeof(int32_t));
   }
 }
 
@@ -73,18 +76,35 @@ void LayerGrid::paint(double x0, double y0, double x1, double y1, double rMm, do
     const double fgy1 = jsMin(nyD - 1, std::floor((std::max(ay, by) + rMm - originY) / c));
     if (!(fgx0 <= fgx1) || !(fgy0 <= fgy1)) continue;
     const int gx0 = (int)fgx0, gx1 = (int)fgx1, gy0 = (int)fgy0, gy1 = (int)fgy1;
+    // Per column: cx = originX + (gx + 0.5)·c and (cx − ax)·ex; per row: cy and (cy − ay)·ey. The
+    // TypeScript computes them per cell; each is a separately rounded double operation, so
+    // computing them once and reusing them gives the same t, qx, qy.
+    const int w = gx1 - gx0 + 1;
+    if (colBuf_.size() < 2 * (size_t)w) colBuf_.resize(2 * (size_t)w + 64);
+    double* colCx = colBuf_.data();
+    double* colTx = colCx + w;
+    for (int i = 0; i < w; i++) {
+      const double cx = originX + (gx0 + i + 0.5) * c;
+      colCx[i] = cx;
+      colTx[i] = (cx - ax) * ex;
+    }
+    const bool l2pos = l2 > 0;
     for (int gy = gy0; gy <= gy1; gy++) {
       const double cy = originY + (gy + 0.5) * c;
-      const size_t row = (size_t)gy * (size_t)nx;
-      for (int gx = gx0; gx <= gx1; gx++) {
-        const double cx = originX + (gx + 0.5) * c;
-        double t = l2 > 0 ? ((cx - ax) * ex + (cy - ay) * ey) / l2 : 0;
+      const double ty = (cy - ay) * ey;
+      const size_t row = (size_t)gy * (size_t)nx + (size_t)gx0;
+      for (int i = 0; i < w; i++) {
+        // A cell already painted by this loop (or by any loop, for other paint) would not change.
+        if (labp[row + i] == kPaintLoop && (!loop || idp[row + i] == loopNo + 1)) continue;
+        const double cx = colCx[i];
+        // t = l2 > 0 ? ((cx − ax)·ex + (cy − ay)·ey) / l2 : 0
+        double t = l2pos ? (colTx[i] + ty) / l2 : 0;
         if (t < 0) t = 0;
         else if (t > 1) t = 1;
         const double qx = ax + ex * t - cx;
         const double qy = ay + ey * t - cy;
         if (qx * qx + qy * qy <= r2) {
-          const size_t k = row + gx;
+          const size_t k = row + i;
           // A loop label wins over other paint: holes are recognised by their loop border.
           if (labp[k] != kPaintLoop) labp[k] = lab;
           if (loop) idp[k] = loopNo + 1;
@@ -162,7 +182,12 @@ void LayerGrid::classify(double holeMinThicknessMm) {
   const uint8_t TMP = 250;
   const int end = (nyL - 1) * nxL;
   for (int s = nxL; s < end; s++) {
-    if (lab[s] != kCellEmpty) continue;
+    // `if (lab[s] !== EMPTY) continue;` — jumps to the next empty cell with memchr (same cells).
+    if (lab[s] != kCellEmpty) {
+      const void* z = std::memchr(lab + s, kCellEmpty, (size_t)(end - s));
+      if (z == nullptr) break;
+      s = (int)(static_cast<const uint8_t*>(z) - lab);
+    }
     qh = 0;
     qt = 0;
     lab[s] = TMP;
@@ -172,24 +197,29 @@ void LayerGrid::classify(double holeMinThicknessMm) {
     // Majority vote (Boyer–Moore) over the loop numbers on the border.
     int32_t voteId = 0;
     long long vote = 0;
+    // One neighbour m of the TypeScript `for (let d = 0; d < 4; d++)` loop body.
+    auto visit = [&](int m) {
+      const uint8_t l = lab[m];
+      if (l == kCellEmpty) {
+        lab[m] = TMP;
+        q[qt++] = m;
+      } else if (l == kPaintLoop) {
+        borderLoop++;
+        const int32_t id = ids[m];
+        if (vote == 0) {
+          voteId = id;
+          vote = 1;
+        } else if (id == voteId) vote++;
+        else vote--;
+      } else if (l == kPaintOther) borderOther++;
+    };
     while (qh < qt) {
       const int k = q[qh++];
-      for (int d = 0; d < 4; d++) {
-        const int m = d == 0 ? k - 1 : d == 1 ? k + 1 : d == 2 ? k - nxL : k + nxL;
-        const uint8_t l = lab[m];
-        if (l == kCellEmpty) {
-          lab[m] = TMP;
-          q[qt++] = m;
-        } else if (l == kPaintLoop) {
-          borderLoop++;
-          const int32_t id = ids[m];
-          if (vote == 0) {
-            voteId = id;
-            vote = 1;
-          } else if (id == voteId) vote++;
-          else vote--;
-        } else if (l == kPaintOther) borderOther++;
-      }
+      // d = 0…3: k − 1, k + 1, k − nx, k + nx (unrolled, same order).
+      visit(k - 1);
+      visit(k + 1);
+      visit(k - nxL);
+      visit(k + nxL);
     }
     const double areaMm2 = (double)qt * cellMm * cellMm;
     const double borderMm = (double)(borderLoop + borderOther) * cellMm;
@@ -209,12 +239,24 @@ void LayerGrid::distanceTransform() {
   const uint8_t* lab = label.data();
   uint16_t* d_ = dist.data();
   const int BIG = 65000;
-  for (int k = 0, n = nxL * nyL; k < n; k++) d_[k] = lab[k] == kOutside || lab[k] == kHole ? 0 : BIG;
+  // dist[k] = lab[k] === OUTSIDE || lab[k] === HOLE ? 0 : BIG for every cell. Done row by row inside
+  // the forward pass below (each cell right before the pass reads it: same values, one sweep less):
+  // the first row, then per row its two end cells and its interior, then the last row.
+  // OUTSIDE and HOLE (3 and 4) are tested as one unsigned compare.
+  static_assert(kHole == kOutside + 1, "OUTSIDE and HOLE are adjacent labels");
+  auto init = [&](int k) { d_[k] = (uint8_t)(lab[k] - kOutside) < 2 ? 0 : BIG; };
+  for (int k = 0; k < nxL; k++) init(k);
   // The outer ring is kOutside (0), so interior cells have all 8 neighbours in range.
   for (int y = 1; y < nyL - 1; y++) {
+    init(y * nxL);
+    init(y * nxL + nxL - 1);
     for (int k = y * nxL + 1, e = y * nxL + nxL - 1; k < e; k++) {
-      int d = d_[k];
-      if (d == 0) continue;
+      // `let d = dist[k]; if (d === 0) continue;` with dist[k] initialised here.
+      if ((uint8_t)(lab[k] - kOutside) < 2) {
+        d_[k] = 0;
+        continue;
+      }
+      int d = BIG;
       const int u = k - nxL;
       int t = d_[k - 1] + kDSide;
       if (t < d) d = t;
@@ -227,6 +269,8 @@ void LayerGrid::distanceTransform() {
       d_[k] = (uint16_t)d;
     }
   }
+  if (nyL > 1)
+    for (int k = (nyL - 1) * nxL; k < nyL * nxL; k++) init(k);
   for (int y = nyL - 2; y >= 1; y--) {
     for (int k = y * nxL + nxL - 2, e = y * nxL; k > e; k--) {
       int d = d_[k];

@@ -64,6 +64,8 @@ class LayerGrid {
 
  private:
   std::vector<int32_t> queue_;
+  // paint(): per-column scratch of one piece (cell centre x and (cx − ax)·ex).
+  std::vector<double> colBuf_;
 };
 
 }  // namespace hotlap

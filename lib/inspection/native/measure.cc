@@ -28,19 +28,26 @@ void emptyBox(double* b) {
   b[3] = b[4] = b[5] = -INFINITY;
 }
 
-inline void growBox(double* b, const Segment& s) {
-  const double xa = s.x0 < s.x1 ? s.x0 : s.x1;
-  const double xb = s.x0 < s.x1 ? s.x1 : s.x0;
-  const double ya = s.y0 < s.y1 ? s.y0 : s.y1;
-  const double yb = s.y0 < s.y1 ? s.y1 : s.y0;
-  const double za = s.z0 < s.z1 ? s.z0 : s.z1;
-  const double zb = s.z0 < s.z1 ? s.z1 : s.z0;
-  if (xa < b[0]) b[0] = xa;
-  if (ya < b[1]) b[1] = ya;
-  if (za < b[2]) b[2] = za;
-  if (xb > b[3]) b[3] = xb;
-  if (yb > b[4]) b[4] = yb;
-  if (zb > b[5]) b[5] = zb;
+// growBox(b, s). The segment's extent (xa…zb) is the same for every box a move grows, so it is
+// computed once per move (SegExtent) and applied to each box (same comparisons, same values).
+struct SegExtent {
+  double xa, ya, za, xb, yb, zb;
+  explicit SegExtent(const Segment& s)
+      : xa(s.x0 < s.x1 ? s.x0 : s.x1),
+        ya(s.y0 < s.y1 ? s.y0 : s.y1),
+        za(s.z0 < s.z1 ? s.z0 : s.z1),
+        xb(s.x0 < s.x1 ? s.x1 : s.x0),
+        yb(s.y0 < s.y1 ? s.y1 : s.y0),
+        zb(s.z0 < s.z1 ? s.z1 : s.z0) {}
+};
+
+inline void growBox(double* b, const SegExtent& e) {
+  if (e.xa < b[0]) b[0] = e.xa;
+  if (e.ya < b[1]) b[1] = e.ya;
+  if (e.za < b[2]) b[2] = e.za;
+  if (e.xb > b[3]) b[3] = e.xb;
+  if (e.yb > b[4]) b[4] = e.yb;
+  if (e.zb > b[5]) b[5] = e.zb;
 }
 
 // boxOrNull: false when the box is empty.
@@ -242,20 +249,21 @@ void Measurements::extrusion(const Segment& s) {
     }
   }
   // Geometry.
-  growBox(boxAll_, s);
+  const SegExtent ext(s);
+  growBox(boxAll_, ext);
   const bool excluded = f == F_SKIRT || f == F_SUPPORT;
-  if (f != kFeatureNone && !excluded) growBox(boxLabelled_, s);
+  if (f != kFeatureNone && !excluded) growBox(boxLabelled_, ext);
   if (excluded || li < 0) return;
   uint8_t bit;
   if (!preambleDecided_ && li == 0) {
     bit = kCellPreamble;
-    growBox(boxPre_, s);
+    growBox(boxPre_, ext);
   } else if (li == stackStart_) {
     bit = kCellFirst;
-    growBox(boxFirst_, s);
+    growBox(boxFirst_, ext);
   } else {
     bit = kCellLater;
-    growBox(boxLater_, s);
+    growBox(boxLater_, ext);
   }
   mark(s, bit);
 }

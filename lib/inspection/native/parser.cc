@@ -244,13 +244,44 @@ const uint64_t kPow10Bits[] = {
 };
 
 
-bool isTerminator(uint8_t c) {
-  return c == SPACE || c == TAB || c == CR || c == LF || c == SEMI || c == LPAREN || c == STAR;
+// Byte classes of the word loop in lineImpl() (C++ only, for speed: one table load replaces the
+// TypeScript's chains of comparisons; each class is exactly one of its tests). A letter's class
+// is its index 0..25, as (c | 0x20) − 97 gives it; isTerminator() is K_BLANK … K_STAR and
+// isLetter() is a class below 26, so "!isTerminator(c) && !isLetter(c)" is K_OTHER.
+constexpr uint8_t K_BLANK = 26;  // SPACE, TAB
+constexpr uint8_t K_LF = 27;
+constexpr uint8_t K_CR = 28;
+constexpr uint8_t K_SEMI = 29;
+constexpr uint8_t K_LPAREN = 30;
+constexpr uint8_t K_STAR = 31;
+constexpr uint8_t K_OTHER = 32;
+
+struct ByteClasses {
+  uint8_t k[256];
+};
+
+constexpr ByteClasses makeByteClasses() {
+  ByteClasses t{};
+  for (int c = 0; c < 256; c++) {
+    const int l = (c | 0x20) - 97;
+    t.k[c] = l >= 0 && l <= 25 ? static_cast<uint8_t>(l)
+             : c == SPACE || c == TAB ? K_BLANK
+             : c == LF               ? K_LF
+             : c == CR               ? K_CR
+             : c == SEMI             ? K_SEMI
+             : c == LPAREN           ? K_LPAREN
+             : c == STAR             ? K_STAR
+                                     : K_OTHER;
+  }
+  return t;
 }
 
-bool isLetter(uint8_t c) {
-  int l = c | 0x20;
-  return l >= 97 && l <= 122;
+constexpr ByteClasses kByteClass = makeByteClasses();
+
+inline int byteClass(uint8_t c) { return kByteClass.k[c]; }
+
+bool isTerminator(uint8_t c) {
+  return c == SPACE || c == TAB || c == CR || c == LF || c == SEMI || c == LPAREN || c == STAR;
 }
 
 size_t skipWord(const uint8_t* buf, size_t i, size_t end) {
@@ -263,7 +294,13 @@ bool isInteger(double v) { return std::isfinite(v) && std::floor(v) == v; }
 
 // A double that is a whole number in [0, 100000) as an int, else −1 (for switches over G/M codes,
 // which JavaScript compares with ===; −0 is 0).
-int codeInt(double v) { return v >= 0 && v < 100000 && std::floor(v) == v ? static_cast<int>(v) : -1; }
+// (C++: for v in [0, 100000) the int conversion is exact when v is whole, so comparing it back
+// tests std::floor(v) == v without a call to floor.)
+int codeInt(double v) {
+  if (!(v >= 0 && v < 100000)) return -1;
+  const int i = static_cast<int>(v);
+  return static_cast<double>(i) == v ? i : -1;
+}
 
 // Appends latin1 text (each byte one character, Buffer#toString('latin1')) as UTF-8.
 void appendLatin1(std::string& out, const uint8_t* p, size_t n) {
@@ -439,8 +476,14 @@ int featureFromVerboseComment(const uint8_t* p, size_t n, std::string& key) {
 }
 
 // M-codes whose argument is free text; the rest of the line is not parsed as words.
+// (C++: a switch over codeInt(m), the same set: each code is a whole number, −0 is 0, NaN is −1.)
 bool isTextArgMcode(double m) {
-  return m == 117 || m == 118 || m == 23 || m == 28 || m == 29 || m == 30 || m == 32 || m == 928 || m == 33;
+  switch (codeInt(m)) {
+    case 117: case 118: case 23: case 28: case 29: case 30: case 32: case 928: case 33:
+      return true;
+    default:
+      return false;
+  }
 }
 
 // G/M codes understood as having no effect on measurements or time.
@@ -717,27 +760,26 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
   size_t stmtStart = start;
   while (i < end) {
     const uint8_t c = buf[i];
-    // Letters first: they start most words, so the common case takes one test.
-    const int letter = (c | 0x20) - 97;  // lower-case, 0..25 for a letter
-    if (letter >= 0 && letter <= 25) {
+    // Letters first: they start most words, so the common case takes one test. (C++: the class
+    // table gives (c | 0x20) − 97 for a letter, and the other tests below, in one load.)
+    const int cls = byteClass(c);
+    if (cls <= 25) {
+      const int letter = cls;  // lower-case, 0..25 for a letter
       // A first word that is a name, not a letter + number, is a text command (Klipper style).
       if (firstWord_ && i + 1 < end) {
         const uint8_t n1 = buf[i + 1];
-        const int n1l = n1 | 0x20;
-        if (n1 == UNDERSCORE || (n1l >= 97 && n1l <= 122)) {
+        if (n1 == UNDERSCORE || byteClass(n1) <= 25) {
           i = textCommand(buf, i, end);
           continue;
         }
       }
       const size_t wordAt = i;
       i++;
-      const size_t j =
-          readNumber(buf, i, end, wordAt == start || buf[wordAt - 1] == SPACE || buf[wordAt - 1] == TAB);
-      const double v = numVal_;
+      size_t j = readNumber(buf, i, end);
       if (j == kNone) {
         // Letter without a number, e.g. "G28 X Y": present, no value. Bad text right after it is malformed.
         const uint8_t nc = i < end ? buf[i] : SPACE;
-        if (!isTerminator(nc) && !isLetter(nc)) {
+        if (byteClass(nc) == K_OTHER) {
           if (warnSlot())
             warn("malformed-number", "Line " + jsNumber(lineNo_) + ": '" + letterName(letter) +
                                          "' is not followed by a valid number; word ignored.");
@@ -748,7 +790,15 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
         continue;
       }
       const uint8_t nc = j < end ? buf[j] : SPACE;
-      if (!isTerminator(nc) && !isLetter(nc)) {
+      const int ncls = byteClass(nc);
+      if (ncls <= 25) {
+        // readNumber()'s exponent test, `spaced && i + 1 < end && (buf[i] | 0x20) === 101`, made
+        // here (C++ only: the word's `spaced` is worked out only when an 'e' follows the digits).
+        // After an exponent the next byte is a terminator, else the 'e' starts the next word:
+        // either way the word is well formed.
+        if ((nc | 0x20) == 101 && j + 1 < end && (wordAt == start || buf[wordAt - 1] == SPACE || buf[wordAt - 1] == TAB))
+          j = readExponent(buf, j, end);
+      } else if (ncls == K_OTHER) {
         if (warnSlot()) {
           std::string m = "Line " + jsNumber(lineNo_) + ": malformed number '";
           size_t to = skipWord(buf, j, end);
@@ -760,6 +810,7 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
         i = skipWord(buf, j, end);
         continue;
       }
+      const double v = numVal_;
       i = j;
       if (letter == L_M && firstWord_ && isTextArgMcode(v)) {
         // M117 and friends carry free text: stop parsing words.
@@ -770,12 +821,12 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
       storeWord(letter, v);
       continue;
     }
-    if (c == SPACE || c == TAB) {
+    if (cls == K_BLANK) {  // SPACE or TAB
       i++;
       continue;
     }
-    if (c == LF) break;
-    if (c == CR) {
+    if (cls == K_LF) break;
+    if (cls == K_CR) {
       // A CR inside a line is a line break (lone-CR files); a trailing CR of CRLF ends nothing new.
       execute();
       beginStatement();
@@ -787,7 +838,7 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
       }
       continue;
     }
-    if (c == SEMI) {
+    if (cls == K_SEMI) {
       // Comment to the end of the line (or to a lone CR).
       size_t j = i + 1;
       while (j < end && buf[j] != CR && buf[j] != LF) j++;
@@ -795,14 +846,14 @@ size_t Parser::lineImpl(const uint8_t* buf, size_t start, size_t end) {
       i = j;
       continue;
     }
-    if (c == LPAREN) {
+    if (cls == K_LPAREN) {
       size_t j = i + 1;
       while (j < end && buf[j] != RPAREN && buf[j] != CR && buf[j] != LF) j++;
       handleComment(buf, i + 1, j);
       i = j < end && buf[j] == RPAREN ? j + 1 : j;
       continue;
     }
-    if (c == STAR) {
+    if (cls == K_STAR) {
       i = checksum(buf, stmtStart, i, end);
       continue;
     }
@@ -882,9 +933,58 @@ inline void Parser::storeWord(int letter, double v) {
   firstWord_ = false;
 }
 
-// Parses [+-]digits[.digits][e±dd] into numVal_; returns the index after it, or kNone when no
-// digits. The first nine digits are summed in int32 (exact), then readLongNumber() goes on in doubles.
-inline size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end, bool spaced) {
+// Parses [+-]digits[.digits] into numVal_; returns the index after it, or kNone when no digits.
+// C++ only, same value: the TypeScript's single loop (a digit or the first dot per step, the
+// first nine digits summed in int32, then readLongNumber() in doubles) is split into an
+// integer-digit loop and a fraction-digit loop, so a digit costs one range test; they scan the
+// same bytes. Numbers of more than nine digits are scanned again by readNumberTs(), the
+// TypeScript loop itself (the sum here may have wrapped, it is then unused). The exponent test
+// made at the end of the TypeScript readNumber()/readLongNumber() is made by the caller,
+// lineImpl(), when a letter follows the digits (it is false otherwise).
+HOTLAP_INLINE size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end) {
+  const size_t at = i;
+  bool neg = false;
+  if (i < end && (buf[i] == MINUS || buf[i] == PLUS)) {
+    neg = buf[i] == MINUS;
+    i++;
+  }
+  uint32_t mant = 0;
+  const size_t intAt = i;
+  while (i < end) {
+    const uint32_t d = static_cast<uint32_t>(buf[i]) - D0;
+    if (d > 9) break;
+    mant = mant * 10 + d;
+    i++;
+  }
+  size_t nd = i - intAt;
+  size_t fd = 0;
+  if (i < end && buf[i] == DOT) {
+    i++;
+    const size_t fracAt = i;
+    while (i < end) {
+      const uint32_t d = static_cast<uint32_t>(buf[i]) - D0;
+      if (d > 9) break;
+      mant = mant * 10 + d;
+      i++;
+    }
+    fd = i - fracAt;
+    nd += fd;
+  }
+  if (nd > 9) return readNumberTs(buf, at, end);
+  if (nd == 0) {
+    numVal_ = NAN;
+    return kNone;
+  }
+  // One division of exact integers is correctly rounded (fd ≤ 9 here: fraction digits are digits).
+  const double m = static_cast<int32_t>(mant);
+  const double v = fd > 0 ? m / kPow10Small[fd] : m;
+  numVal_ = neg ? -v : v;
+  return i;
+}
+
+// The TypeScript readNumber() loop, for numbers of more than nine digits: the first nine digits
+// are summed in int32 (exact), then readLongNumber() goes on in doubles.
+size_t Parser::readNumberTs(const uint8_t* buf, size_t i, size_t end) {
   bool neg = false;
   if (i < end && (buf[i] == MINUS || buf[i] == PLUS)) {
     neg = buf[i] == MINUS;
@@ -896,7 +996,7 @@ inline size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end, bool 
   while (i < end) {
     const int d = buf[i] - D0;
     if (d >= 0 && d <= 9) {
-      if (nd == 9) return readLongNumber(buf, i, end, spaced, neg, dotAt, mant);
+      if (nd == 9) return readLongNumber(buf, i, end, neg, dotAt, mant);
       mant = mant * 10 + d;
       nd++;
     } else if (d == DOT - D0 && dotAt < 0) {
@@ -906,21 +1006,19 @@ inline size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end, bool 
     }
     i++;
   }
+  // Not reached with nine digits or fewer (readNumber() handles those); kept as in TypeScript.
   if (nd == 0) {
     numVal_ = NAN;
     return kNone;
   }
-  // One division of exact integers is correctly rounded (fd ≤ 9 here: fraction digits are digits).
   const ptrdiff_t fd = dotAt >= 0 ? static_cast<ptrdiff_t>(i) - dotAt - 1 : 0;
   const double v = fd > 0 ? mant / kPow10Small[fd] : mant;
   numVal_ = neg ? -v : v;
-  if (spaced && i + 1 < end && (buf[i] | 0x20) == 101) return readExponent(buf, i, end);
   return i;
 }
 
 // readNumber() past nine digits: goes on in doubles from the same exact value.
-size_t Parser::readLongNumber(const uint8_t* buf, size_t i, size_t end, bool spaced, bool neg, ptrdiff_t dotAt,
-                              double mant) {
+size_t Parser::readLongNumber(const uint8_t* buf, size_t i, size_t end, bool neg, ptrdiff_t dotAt, double mant) {
   while (i < end) {
     const int d = buf[i] - D0;
     if (d >= 0 && d <= 9) mant = mant * 10 + d;
@@ -931,7 +1029,6 @@ size_t Parser::readLongNumber(const uint8_t* buf, size_t i, size_t end, bool spa
   const ptrdiff_t fd = dotAt >= 0 ? static_cast<ptrdiff_t>(i) - dotAt - 1 : -1;
   const double v = fd > 0 ? mant / jsPow10(static_cast<double>(fd)) : mant;
   numVal_ = neg ? -v : v;
-  if (spaced && i + 1 < end && (buf[i] | 0x20) == 101) return readExponent(buf, i, end);
   return i;
 }
 
@@ -1103,39 +1200,6 @@ void Parser::noCommand() {
     if (mask_ & (1u << l)) letters += static_cast<char>(65 + l);
   warn("no-command", "Line " + jsNumber(lineNo_) + ": " + (letters.size() > 1 ? "words " : "word ") + letters +
                          " without a G, M or T command (or a motion mode to repeat); ignored.");
-}
-
-void Parser::execute() {
-  const int nG = nG_;
-  const int nM = nM_;
-  if (nG == 0 && nM == 0) {
-    if (toolWordFirst_) {
-      stats_.commands++;
-      toolChange(vals_[L_T]);
-      return;
-    }
-    if ((mask_ & (AXES_MASK | BIT(L_F))) != 0 && motionMode_ >= 0) {
-      // Modal motion: axis words alone repeat the current motion mode (NISTIR 6556 §3.5.1 "motion mode").
-      stats_.commands++;
-      motion(motionMode_);
-    } else if (mask_ != 0) {
-      noCommand();
-    }
-    return;
-  }
-  stats_.commands++;
-  // Non-motion G codes first (units, distance mode), motion last (NISTIR 6556 §3.8 "order of execution").
-  double mot = -1;
-  for (int k = 0; k < nG; k++) {
-    const double g = gCodes_[k];
-    if (g == 0 || g == 1 || g == 2 || g == 3) mot = g;
-    else gCode(g);
-  }
-  if (mot >= 0) {
-    motionMode_ = mot;
-    motion(mot);
-  }
-  for (int k = 0; k < nM; k++) mCode(mCodes_[k]);
 }
 
 void Parser::gCode(double g) {
@@ -1439,7 +1503,7 @@ void Parser::emitStationaryE(double eMm, double feedMms) {
 
 // True when the axis word is present with a finite value within ±maxAbs (read it from vals_);
 // a present but bad word gives a warning.
-bool Parser::coordOk(int letter, double maxAbs) {
+HOTLAP_INLINE bool Parser::coordOk(int letter, double maxAbs) {
   if ((mask_ & (1u << letter)) == 0) return false;
   const double v = vals_[letter];
   if (v >= -maxAbs && v <= maxAbs) return true;  // the common case: one range test (false for NaN)
@@ -1468,7 +1532,7 @@ void Parser::badCoord(int letter, double maxAbs) {
   }
 }
 
-void Parser::motion(double mode) {
+HOTLAP_INLINE void Parser::motion(double mode) {
   // Feed (modal, shared by G0 and G1 in printer firmware).
   const double u = unitMm_;
   if (has(L_F)) {
@@ -1516,7 +1580,7 @@ void Parser::linear(double tx, double ty, double tz, double de) {
 }
 
 // Emits the straight move to the target fields.
-void Parser::emit() {
+HOTLAP_INLINE void Parser::emit() {
   const double tx = tx_;
   const double ty = ty_;
   const double tz = tz_;
@@ -1545,6 +1609,41 @@ void Parser::emit() {
   pz_ = tz;
   stats_.moves++;
   sink_.segment(s);
+}
+
+// (C++: defined after motion() and emit(), which are inlined into it.)
+void Parser::execute() {
+  const int nG = nG_;
+  const int nM = nM_;
+  if (nG == 0 && nM == 0) {
+    if (toolWordFirst_) {
+      stats_.commands++;
+      toolChange(vals_[L_T]);
+      return;
+    }
+    if ((mask_ & (AXES_MASK | BIT(L_F))) != 0 && motionMode_ >= 0) {
+      // Modal motion: axis words alone repeat the current motion mode (NISTIR 6556 §3.5.1 "motion mode").
+      stats_.commands++;
+      motion(motionMode_);
+    } else if (mask_ != 0) {
+      noCommand();
+    }
+    return;
+  }
+  stats_.commands++;
+  // Non-motion G codes first (units, distance mode), motion last (NISTIR 6556 §3.8 "order of execution").
+  double mot = -1;
+  for (int k = 0; k < nG; k++) {
+    const double g = gCodes_[k];
+    // (C++: G1, the most common, is tested first; same set as g === 0 || 1 || 2 || 3.)
+    if (g == 1 || g == 0 || g == 2 || g == 3) mot = g;
+    else gCode(g);
+  }
+  if (mot >= 0) {
+    motionMode_ = mot;
+    motion(mot);
+  }
+  for (int k = 0; k < nM; k++) mCode(mCodes_[k]);
 }
 
 // G2 (clockwise) / G3 (counter-clockwise) in the XY plane, centre from I/J (offsets from the start,

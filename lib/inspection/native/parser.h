@@ -44,6 +44,13 @@
 #define HOTLAP_COLD
 #endif
 
+// Small helpers of the per-word loop that must be inlined into it.
+#if defined(__GNUC__)
+#define HOTLAP_INLINE inline __attribute__((always_inline))
+#else
+#define HOTLAP_INLINE inline
+#endif
+
 namespace hotlap {
 
 // parser.ts ParserOptions, with the defaults GcodeParser's constructor applies.
@@ -191,8 +198,9 @@ class Parser {
   HOTLAP_COLD void noteLongLine(double bytes, double lineNo, size_t at);
   void beginStatement();
   void storeWord(int letter, double v);
-  size_t readNumber(const uint8_t* buf, size_t i, size_t end, bool spaced);
-  size_t readLongNumber(const uint8_t* buf, size_t i, size_t end, bool spaced, bool neg, ptrdiff_t dotAt, double mant);
+  size_t readNumber(const uint8_t* buf, size_t i, size_t end);
+  size_t readNumberTs(const uint8_t* buf, size_t i, size_t end);
+  size_t readLongNumber(const uint8_t* buf, size_t i, size_t end, bool neg, ptrdiff_t dotAt, double mant);
   size_t readExponent(const uint8_t* buf, size_t i, size_t end);
   size_t checksum(const uint8_t* buf, size_t stmtStart, size_t star, size_t end);
   void handleComment(const uint8_t* buf, size_t s, size_t e);

@@ -151,19 +151,21 @@ inline double PlannerCorner::jerkJunctionV2(const PlannerLimits& l) const {
   const double v = cv;
   const double vcap = v < pv ? v : pv;
   const double jx = *l.jerkX;
-  const double j[12] = {pux * vcap, cux * vcap, jx, puy * vcap, cuy * vcap, l.jerkY ? *l.jerkY : jx,
-                        puz * vcap, cuz * vcap, l.jerkZ, pue * vcap, cue * vcap, l.jerkE};
+  // The TypeScript fills jerkScratch[12] (exit, entry, limit per axis X, Y, Z, E) and loops over
+  // it; here the four axes are unrolled in the same order with the same operations.
   double f = 1;
-  for (int k = 0; k < 12; k += 3) {
+  auto axis = [&f](double vExit, double vEntry, double limit) {
     // Speed jump of one axis between exit velocity vExit and entry velocity vEntry.
-    const double vExit = j[k];
-    const double vEntry = j[k + 1];
     double jerk;
     if (vExit > vEntry) jerk = vEntry > 0 || vExit < 0 ? vExit - vEntry : jsMax(vExit, -vEntry);
     else jerk = vEntry < 0 || vExit > 0 ? vEntry - vExit : jsMax(-vExit, vEntry);
     jerk *= f;
-    if (jerk > j[k + 2]) f = (f * j[k + 2]) / jerk;
-  }
+    if (jerk > limit) f = (f * limit) / jerk;
+  };
+  axis(pux * vcap, cux * vcap, jx);
+  axis(puy * vcap, cuy * vcap, l.jerkY ? *l.jerkY : jx);
+  axis(puz * vcap, cuz * vcap, l.jerkZ);
+  axis(pue * vcap, cue * vcap, l.jerkE);
   const double vj = vcap * f;
   return vj * vj;
 }
