@@ -1,7 +1,7 @@
 /**
  * Benchmark of the inspection engine (a script that prints figures; nothing here is a test).
  *
- *   npm run bench:inspect [-- --sizes 100,500] [--repeat 3] [--keep]
+ *   npm run bench:inspect [-- --sizes 100,500] [--repeat 3] [--keep]   (these are the defaults, but --keep)
  *
  * Builds plain G-code files of the given sizes (MB) in a temp dir by stacking the real slicer
  * fixtures on top of each other (G28 commented out, a Z lift and a G92 Z shift between copies, so
@@ -81,14 +81,17 @@ async function child(mode: string, file: string): Promise<void> {
   process.stdout.write(`${JSON.stringify(out)}\n`);
 }
 
-/** Rounds (--repeat N): every mode runs once per round, so all rows see the same machine; the fastest run of each is kept. */
-let repeat = 1;
+/**
+ * Rounds (--repeat N, default 3): every mode runs once per round, so all rows see the same machine
+ * side by side. Each row reports its median run by wall time (the throughput is wall time); a single
+ * run is at the mercy of this shared machine's slow spells, which hit the short runs hardest.
+ */
+let repeat = 3;
 
-/** Keeps the fastest run by CPU time, with the highest peak RSS of all runs (memory is not a best case). */
-function keepBest(best: ChildResult | undefined, r: ChildResult): ChildResult {
-  if (!best) return r;
-  const rss = Math.max(best.maxRssMb, r.maxRssMb);
-  return r.cpuSeconds < best.cpuSeconds ? { ...r, maxRssMb: rss } : { ...best, maxRssMb: rss };
+/** The run with the median wall time (the slower middle one for an even count), with the highest peak RSS of all runs (memory is not a best case). */
+function medianRun(runs: ChildResult[]): ChildResult {
+  const sorted = [...runs].sort((a, b) => a.seconds - b.seconds);
+  return { ...sorted[Math.floor(sorted.length / 2)], maxRssMb: Math.max(...runs.map((r) => r.maxRssMb)) };
 }
 
 function runChildOnce(mode: string, file: string): ChildResult {
@@ -160,7 +163,7 @@ async function main(): Promise<void> {
   const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
   console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
   console.log(`Inspection engine: ${ENGINE}${ENGINE === 'typescript' ? ` (native engine not available: ${nativeEngineLoadError() ?? 'HOTLAP_ENGINE=ts'})` : ''}`);
-  if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; times are from each mode's run with the least CPU time, peak RSS the highest of its runs`);
+  if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; each row is its median run by wall time, peak RSS the highest of its runs`);
   try {
     const rows: { what: string; size: number; r: ChildResult }[] = [];
     for (const [i, size] of sizes.entries()) {
@@ -169,12 +172,12 @@ async function main(): Promise<void> {
       // This machine's speed drifts by ±20 % between minutes (shared host), so the modes are
       // interleaved round by round: the ratio to the peer compares runs made side by side.
       const modes = i === 0 ? ['inspect', ...(ENGINE === 'native' ? ['inspect-ts'] : []), 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
-      const best = new Map<string, ChildResult>();
+      const runs = new Map<string, ChildResult[]>(modes.map((m) => [m, []]));
       for (let round = 0; round < repeat; round++) {
-        for (const mode of modes) best.set(mode, keepBest(best.get(mode), runChildOnce(mode, file)));
+        for (const mode of modes) runs.get(mode)!.push(runChildOnce(mode, file));
       }
       for (const mode of modes) {
-        const r = best.get(mode)!;
+        const r = medianRun(runs.get(mode)!);
         rows.push({ what: ROW[mode], size, r });
         console.log(`  ${ROW[mode]}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
       }
