@@ -9,11 +9,14 @@
 //   e.end() · e.result() → JSON text { parser, measure, toolpath } · e.close() (frees it all)
 #include <napi.h>
 
+#include <algorithm>
 #include <atomic>
+#include <cstring>
 #include <condition_variable>
 #include <memory>
 #include <mutex>
 #include <thread>
+#include <type_traits>
 
 #include "common.h"
 #include "measure.h"
@@ -26,10 +29,14 @@ namespace {
 using namespace hotlap;
 
 struct Event {
+  // kLimits is followed by kLimitSlots slots that hold the MotionLimits as bytes (limits change
+  // rarely: a ring of limits beside the events would hold 2.7 MB for them).
   enum Type : uint8_t { kSegment, kDwell, kLimits, kEnd } type;
   Segment s;
   double timeS, lineNo;
 };
+static_assert(std::is_trivially_copyable_v<MotionLimits>, "limits travel as bytes");
+constexpr size_t kLimitSlots = (sizeof(MotionLimits) + sizeof(Event) - 1) / sizeof(Event);
 
 // Two threads, one pipeline: the parser runs on the JavaScript thread inside lines(), and hands
 // every event (move, dwell, limits change, end) through this single-producer single-consumer ring
@@ -54,7 +61,6 @@ class Pipe {
     }
     return ring_[head_ & (kSize - 1)];
   }
-  MotionLimits& limitsSlot() { return limits_[head_ & (kSize - 1)]; }
   void commit() {
     if ((++head_ & (kBatch - 1)) == 0) publish();
   }
@@ -75,7 +81,7 @@ class Pipe {
       }
       for (; tail != head; tail++) {
         const size_t i = tail & (kSize - 1);
-        if (!handle(ring_[i], limits_[i])) {
+        if (!handle(ring_[i])) {
           release(tail + 1);
           return;
         }
@@ -115,7 +121,6 @@ class Pipe {
     wakeup_.notify_all();
   }
   Event ring_[kSize];
-  MotionLimits limits_[kSize];
   size_t head_ = 0;
   size_t cachedTail_ = 0;
   alignas(64) std::atomic<size_t> published_{0};
@@ -182,10 +187,13 @@ class Fanout final : public MotionSink {
         m.accelRetractMms2 == sent_.accelRetractMms2)
       return;
     sent_ = m;
-    Event& e = pipe_.slot();
-    e.type = Event::kLimits;
-    pipe_.limitsSlot() = m;
+    pipe_.slot().type = Event::kLimits;
     pipe_.commit();
+    const auto* bytes = reinterpret_cast<const unsigned char*>(static_cast<const MotionLimits*>(&m));
+    for (size_t k = 0; k < kLimitSlots; k++) {
+      std::memcpy(static_cast<void*>(&pipe_.slot()), bytes + k * sizeof(Event), std::min(sizeof(Event), sizeof(MotionLimits) - k * sizeof(Event)));
+      pipe_.commit();
+    }
   }
 };
 
@@ -281,7 +289,14 @@ class Engine : public Napi::ObjectWrap<Engine> {
   void work() {
     Measurements& m = *measure_;
     ToolpathSettingsAnalyzer* t = toolpath_.get();
-    pipe_->consume([&](const Event& e, const MotionLimits& l) {
+    size_t limitSlots = 0;  // slots of a MotionLimits still to come
+    auto* limits = reinterpret_cast<unsigned char*>(static_cast<MotionLimits*>(&workerMachine_));
+    pipe_->consume([&](const Event& e) {
+      if (limitSlots > 0) {
+        const size_t k = kLimitSlots - limitSlots--;
+        std::memcpy(limits + k * sizeof(Event), &e, std::min(sizeof(Event), sizeof(MotionLimits) - k * sizeof(Event)));
+        return true;
+      }
       switch (e.type) {
         case Event::kSegment:
           m.segment(e.s);
@@ -291,7 +306,7 @@ class Engine : public Napi::ObjectWrap<Engine> {
           m.dwell(e.timeS, e.lineNo);
           return true;
         case Event::kLimits:
-          static_cast<MotionLimits&>(workerMachine_) = l;
+          limitSlots = kLimitSlots;
           return true;
         case Event::kEnd:
           m.end();
