@@ -140,18 +140,22 @@ function warmPageCache(path: string): void {
 }
 
 const mb = (b: number) => b / 1e6;
-const ENGINE = inspectionEngine();
-const ROW: Record<string, string> = {
-  inspect: `full inspection (${ENGINE} engine)`,
-  'inspect-ts': 'full inspection (typescript engine)',
-  engine: `${ENGINE} engine without toolpath settings`,
-  parse: 'our reader + parser only (moves ignored)',
-  peer: 'gcode-parser (GCodeLineStream, no-op per line)',
-};
+/** The row labels, for the engine this machine runs (asked in the parent only: a child loads what its mode needs). */
+function rowLabels(engine: string): Record<string, string> {
+  return {
+    inspect: `full inspection (${engine} engine)`,
+    'inspect-ts': 'full inspection (typescript engine)',
+    engine: `${engine} engine without toolpath settings`,
+    parse: 'our reader + parser only (moves ignored)',
+    peer: 'gcode-parser (GCodeLineStream, no-op per line)',
+  };
+}
 
 async function main(): Promise<void> {
   const args = process.argv.slice(2);
   if (args[0] === '--child') return child(args[1], args[2]);
+  const ENGINE = inspectionEngine();
+  const ROW = rowLabels(ENGINE);
   const si = args.indexOf('--sizes');
   const sizes = (si >= 0 ? args[si + 1] : '100,500').split(',').map(Number);
   if (sizes.some((s) => !(s > 0))) throw new Error('--sizes takes sizes in MB, e.g. --sizes 100,500');
