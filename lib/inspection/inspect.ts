@@ -116,7 +116,8 @@ function engineFromEnv(): EngineChoice | undefined {
 
 /** The name of the engine an inspection with these options runs. */
 export function inspectionEngine(options: Pick<InspectOptions, 'engine' | 'sinks'> = {}): 'native' | 'typescript' {
-  const want = options.engine ?? engineFromEnv() ?? 'auto';
+  // 'auto' (given or by default) is what HOTLAP_ENGINE overrides.
+  const want = (options.engine === 'auto' ? undefined : options.engine) ?? engineFromEnv() ?? 'auto';
   // Extra sinks are TypeScript objects fed per move: the native engine has no such hook.
   const sinks = (options.sinks?.length ?? 0) > 0;
   if (want === 'native' && sinks) throw new Error('The native inspection engine takes no extra sinks; use engine "typescript".');

@@ -11,8 +11,8 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
-import { describe, expect, it } from 'vitest';
-import { inspectFile, type InspectOptions } from '../../../lib/inspection/inspect';
+import { afterEach, describe, expect, it } from 'vitest';
+import { inspectFile, inspectionEngine, type InspectOptions } from '../../../lib/inspection/inspect';
 import { loadNativeEngine, nativeEngineLoadError } from '../../../lib/inspection/nativeEngine';
 import { InspectionError } from '../../../lib/inspection/reader';
 import { toJsonReport } from '../../../lib/inspection/report';
@@ -145,5 +145,27 @@ describe.skipIf(!built && !required)('native engine = TypeScript engine', () => 
       outcomes[await sameReport((engine) => inspectBytes(bytes, { engine, skipToolpathSettings: false }, 1 + Math.floor(rnd() * 70000)), 1e-9)]++;
     }
     expect(outcomes.report).toBeGreaterThan(40);
+  });
+});
+
+describe('engine choice', () => {
+  const saved = process.env.HOTLAP_ENGINE;
+  afterEach(() => {
+    if (saved === undefined) delete process.env.HOTLAP_ENGINE;
+    else process.env.HOTLAP_ENGINE = saved;
+  });
+
+  it("HOTLAP_ENGINE=ts overrides 'auto', given or by default, but not an explicit engine", () => {
+    process.env.HOTLAP_ENGINE = 'ts';
+    expect(inspectionEngine()).toBe('typescript');
+    expect(inspectionEngine({ engine: 'auto' })).toBe('typescript');
+    if (built) expect(inspectionEngine({ engine: 'native' })).toBe('native');
+  });
+
+  it('extra sinks need the TypeScript engine', () => {
+    delete process.env.HOTLAP_ENGINE;
+    const sink = { segment() {} };
+    expect(inspectionEngine({ sinks: [sink] })).toBe('typescript');
+    expect(() => inspectionEngine({ engine: 'native', sinks: [sink] })).toThrow(/no extra sinks/);
   });
 });
