@@ -8,6 +8,7 @@ import { FEATURE_KINDS, type FeatureKind, type Segment } from './types';
 import type { MotionSink, MachineState } from './parser';
 import { MotionPlanner, type MachineLimits, type PlannedMoveSink } from './planner';
 import { filamentAreaMm2 } from './materials';
+import * as C from './engineConstants';
 
 /**
  * Line width from an extrusion cross-section A at layer height h, modelling the bead as a rectangle
@@ -32,28 +33,19 @@ function featureIndex(f: FeatureKind | null): number {
   return f === null ? N_FEATURES - 1 : (FEATURE_INDEX.get(f) as number);
 }
 
-/** Flow histogram: fixed bins of 0.05 mm³/s up to 250 mm³/s plus one overflow bin. */
-export const FLOW_BIN_MM3S = 0.05;
-const FLOW_BINS = 5000;
-/** Chart time series: at most this many buckets; the bucket length doubles as the print runs longer. */
-export const TIME_SERIES_POINTS = 600;
-/** Objects grid: 1 mm cells over ±1024 mm. */
-const GRID_CELL_MM = 1;
-const GRID_N = 2048;
-const GRID_ORIGIN_MM = -1024;
-/**
- * Per-layer records kept (z, height, time, volume, and a Z→layer map for revisits). 20 000 layers is
- * a 4 m tall part at 0.2 mm, far beyond any test piece; past it layers are only counted, so memory
- * stays flat on absurdly tall (or artificially stacked) files.
- */
-const MAX_LAYERS = 20000;
+// Bins, grid and caps (engineConstants.ts), as module constants (no getter call per access).
+export const FLOW_BIN_MM3S = C.FLOW_BIN_MM3S;
+const FLOW_BINS = C.FLOW_BINS;
+export const TIME_SERIES_POINTS = C.TIME_SERIES_POINTS;
+const GRID_CELL_MM = C.GRID_CELL_MM;
+const GRID_N = C.GRID_N;
+const GRID_ORIGIN_MM = C.GRID_ORIGIN_MM;
+const MAX_LAYERS = C.MEASURE_MAX_LAYERS;
 /** Layer index used for moves on layers beyond MAX_LAYERS (their time and count are kept in totals). */
 const OVERFLOW_LAYER = MAX_LAYERS;
-/** Line-width histogram: 0.005 mm bins up to 5 mm. */
-const WIDTH_BIN_MM = 0.005;
-const WIDTH_BINS = 1000;
-/** Z values closer than this (mm) are the same layer. */
-const Z_KEY_PER_MM = 1000;
+const WIDTH_BIN_MM = C.WIDTH_BIN_MM;
+const WIDTH_BINS = C.WIDTH_BINS;
+const Z_KEY_PER_MM = C.Z_KEY_PER_MM;
 
 export interface MeasureOptions {
   filamentDiameterMm: number;

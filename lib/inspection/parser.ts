@@ -15,6 +15,7 @@
  */
 import type { FeatureKind, Segment, SegmentSink } from './types';
 import { MAX_LINE_BYTES, type LineSink } from './reader';
+import * as C from './engineConstants';
 
 /** Extra callbacks the time planner uses; optional on any sink. */
 export interface MotionSink extends SegmentSink {
@@ -144,21 +145,17 @@ const AXES_MASK = BIT(L_X) | BIT(L_Y) | BIT(L_Z) | BIT(L_E);
 const POW10 = new Float64Array(23);
 for (let i = 0; i < POW10.length; i++) POW10[i] = Math.pow(10, i);
 
-/** Largest sane magnitudes; beyond them a word is rejected as absurd. */
-const MAX_COORD_MM = 1e5;
-const MAX_E_MM = 1e8;
-const MAX_FEED_MM_MIN = 1e6;
-/** Slowest usable feed, mm/min; anything slower is treated as a typo (and would overflow times). */
-const MIN_FEED_MM_MIN = 0.01;
-const MAX_LIMIT = 1e7;
-/** Smallest usable acceleration, mm/s². */
-const MIN_ACCEL = 1;
-/** Smallest usable max-feed limit, mm/s. */
-const MIN_FEED_LIMIT_MMS = 0.01;
-/** Most chords one arc may be split into (bounds work on absurd radii). */
-const MAX_ARC_CHORDS = 10000;
-
-const MAX_TOOLS = 16;
+// Sanity caps (engineConstants.ts), as module constants: an imported binding costs a getter call
+// per access under CommonJS interop.
+const MAX_COORD_MM = C.PARSER_MAX_COORD_MM;
+const MAX_E_MM = C.MAX_E_MM;
+const MAX_FEED_MM_MIN = C.MAX_FEED_MM_MIN;
+const MIN_FEED_MM_MIN = C.MIN_FEED_MM_MIN;
+const MAX_LIMIT = C.MAX_LIMIT;
+const MIN_ACCEL = C.MIN_ACCEL;
+const MIN_FEED_LIMIT_MMS = C.MIN_FEED_LIMIT_MMS;
+const MAX_ARC_CHORDS = C.MAX_ARC_CHORDS;
+const MAX_TOOLS = C.MAX_TOOLS;
 
 /**
  * Maps a slicer ";TYPE:" label (PrusaSlicer, Slic3r, CuraEngine dialects) to a FeatureKind; null for

@@ -16,6 +16,7 @@
  */
 import type { Segment } from './types';
 import type { MachineState } from './parser';
+import * as C from './engineConstants';
 
 /** Limits used when neither the file nor the options set them. */
 export interface MachineLimits {
@@ -71,8 +72,7 @@ export interface PlannedMoveSink {
   planned(timeS: number, flowMm3s: number, layerIndex: number): void;
 }
 
-/** Moves in the look-ahead window; 128 is in the range firmware uses (Marlin BLOCK_BUFFER_SIZE 16–64, Klipper ~2 s). */
-const RING = 128;
+const RING = C.PLANNER_RING;
 const MASK = RING - 1;
 
 /**

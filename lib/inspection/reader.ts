@@ -13,8 +13,9 @@ import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import { createGunzip } from 'node:zlib';
 
-/** Longest line kept; the rest of a longer line is dropped with a warning. */
-export const MAX_LINE_BYTES = 64 * 1024;
+import { MAX_LINE_BYTES } from './engineConstants';
+
+export { MAX_LINE_BYTES };
 /** Read size for plain files (one reused buffer) and for compressed input and its inflated chunks. */
 const CHUNK_BYTES = 1024 * 1024;
 

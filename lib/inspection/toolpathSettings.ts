@@ -32,6 +32,7 @@ import { filamentAreaMm2 } from './materials';
 import { LayerGrid, MAX_GRID_CELLS } from './toolpath/layerGrid';
 import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
 import { LayerTable, layerHasFigures, type LayerRow } from './toolpath/layerTable';
+import * as C from './engineConstants';
 
 export interface MeasuredFigure {
   value: number | null;
@@ -74,37 +75,23 @@ export interface ToolpathSettingsOptions {
   onLayer?: (layer: Readonly<LayerRecord>, loopBands: readonly number[]) => void;
 }
 
-/** Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source). */
-const STANDARD_NOZZLES_MM = [0.2, 0.25, 0.3, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2];
+const STANDARD_NOZZLES_MM = C.STANDARD_NOZZLES_MM;
 /**
  * Fallback width when a layer gives none: slicer defaults put wall lines at 100 % (CuraEngine) to
  * 112.5 % (PrusaSlicer) of the nozzle (common practice, no source).
  */
 const WIDTH_PER_NOZZLE = 1.1;
 
-/** A block counts as solid at ≥ 75 % volume fraction (solid infill is ~100 %, contest sparse ≤ 50 %). */
-const SOLID_FRACTION = 0.75;
-/** Most segments kept for one layer (5 floats each); beyond this the layer is analysed in part. */
-const MAX_LAYER_SEGMENTS = 400_000;
-/** Most layer records kept. */
-const MAX_LAYERS = 200_000;
-const Z_EPS_MM = 0.0015;
-/** Coordinates beyond ±10 m are not a printer's (bad input); such moves are ignored. */
-const MAX_COORD_MM = 10_000;
-/**
- * Grid cells across one line width. The fixtures and a sweep of 33 further slices give the same
- * figures at 1.6 and 2 (cell ≈ 0.28 mm for 0.45 mm lines); 1.6 costs 36 % fewer cells.
- */
-const CELLS_PER_WIDTH = 1.6;
-/**
- * Default work budget: 6 M cells (~0.3 s of CPU here) covers the 36 × 39 × 40 mm Beacon in full at
- * 0.2 mm layers (4.7 M cells); a quarter cell per extruding move keeps large files near parser
- * speed. Callers wanting every layer analysed pass Infinity.
- */
-const DEFAULT_BUDGET_BASE_CELLS = 6_000_000;
-const DEFAULT_BUDGET_CELLS_PER_SEGMENT = 0.25;
-/** Consecutive layers analysed per window once sampling. */
-const SAMPLE_WINDOW_LAYERS = 24;
+// Caps and tunables (engineConstants.ts), as module constants (no getter call per access).
+const SOLID_FRACTION = C.SOLID_FRACTION;
+const MAX_LAYER_SEGMENTS = C.MAX_LAYER_SEGMENTS;
+const MAX_LAYERS = C.TOOLPATH_MAX_LAYERS;
+const Z_EPS_MM = C.Z_EPS_MM;
+const MAX_COORD_MM = C.TOOLPATH_MAX_COORD_MM;
+const CELLS_PER_WIDTH = C.CELLS_PER_WIDTH;
+const DEFAULT_BUDGET_BASE_CELLS = C.DEFAULT_BUDGET_BASE_CELLS;
+const DEFAULT_BUDGET_CELLS_PER_SEGMENT = C.DEFAULT_BUDGET_CELLS_PER_SEGMENT;
+const SAMPLE_WINDOW_LAYERS = C.SAMPLE_WINDOW_LAYERS;
 // Local copies: imported bindings cost a getter call per access under CommonJS interop.
 const S_EMPTY = B_EMPTY;
 const S_SOLID = B_SOLID;

@@ -1,5 +1,6 @@
 // Mirrors lib/inspection/toolpath/columns.ts (ColumnTracker).
 #include "columns.h"
+#include "engine_constants.h"
 
 namespace hotlap {
 
@@ -7,10 +8,9 @@ namespace {
 constexpr int FROM_AIR = 1;
 constexpr int FROM_SPARSE = 2;
 constexpr int FROM_OTHER = 3;
-// Longest run of empty layers read as combined infill (a slicer combines at most ~10 layers).
-constexpr long long kMaxInfillGap = 9;
-// Cap on tracked columns (a 400 × 400 mm bed at 2 mm blocks is 40 000).
-constexpr size_t kMaxColumns = 250000;
+// engineConstants.ts MAX_INFILL_GAP, MAX_COLUMNS.
+constexpr long long kMaxInfillGap = engine::MAX_INFILL_GAP;
+constexpr size_t kMaxColumns = engine::MAX_COLUMNS;
 }  // namespace
 
 void ColumnTracker::set(long long key, int state) {

@@ -15,6 +15,8 @@
 #include <string_view>
 #include <vector>
 
+#include "engine_constants.h"
+
 namespace hotlap {
 
 // FEATURE_KINDS in lib/inspection/types.ts, same order. A Segment's feature is an index into it, or

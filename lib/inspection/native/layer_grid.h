@@ -24,8 +24,8 @@ constexpr uint8_t kOutside = 3;
 constexpr uint8_t kHole = 4;
 constexpr uint8_t kGap = 5;
 
-// Upper bound on grid cells (1024²) — MAX_GRID_CELLS.
-constexpr int kMaxGridCells = 1024 * 1024;
+// Upper bound on grid cells (engineConstants.ts MAX_GRID_CELLS).
+constexpr int kMaxGridCells = engine::MAX_GRID_CELLS;
 
 
 class LayerGrid {

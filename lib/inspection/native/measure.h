@@ -31,24 +31,19 @@ inline double crossSectionMm2(double lineWidthMm, double layerHeightMm) {
 }
 
 
-// Flow histogram: fixed bins of 0.05 mm³/s up to 250 mm³/s plus one overflow bin.
-constexpr double kFlowBinMm3s = 0.05;
-constexpr int kFlowBins = 5000;
-// Chart time series: at most this many buckets; the bucket length doubles as the print runs longer.
-constexpr int kTimeSeriesPoints = 600;
-// Objects grid: 1 mm cells over ±1024 mm.
-constexpr double kGridCellMm = 1;
-constexpr int kGridN = 2048;
-constexpr double kGridOriginMm = -1024;
-// Per-layer records kept (20 000 layers is a 4 m tall part at 0.2 mm); past it layers are only counted.
-constexpr int kMaxLayers = 20000;
+// Bins, grid and caps (engineConstants.ts).
+constexpr double kFlowBinMm3s = engine::FLOW_BIN_MM3S;
+constexpr int kFlowBins = engine::FLOW_BINS;
+constexpr int kTimeSeriesPoints = engine::TIME_SERIES_POINTS;
+constexpr double kGridCellMm = engine::GRID_CELL_MM;
+constexpr int kGridN = engine::GRID_N;
+constexpr double kGridOriginMm = engine::GRID_ORIGIN_MM;
+constexpr int kMaxLayers = engine::MEASURE_MAX_LAYERS;
 // Layer index used for moves on layers beyond kMaxLayers (their time and count are kept in totals).
 constexpr int kOverflowLayer = kMaxLayers;
-// Line-width histogram: 0.005 mm bins up to 5 mm.
-constexpr double kWidthBinMm = 0.005;
-constexpr int kWidthBins = 1000;
-// Z values closer than this (mm) are the same layer.
-constexpr double kZKeyPerMm = 1000;
+constexpr double kWidthBinMm = engine::WIDTH_BIN_MM;
+constexpr int kWidthBins = engine::WIDTH_BINS;
+constexpr double kZKeyPerMm = engine::Z_KEY_PER_MM;
 // Index kFeatureCount is "unlabelled".
 constexpr int kNFeatures = kFeatureCount + 1;
 

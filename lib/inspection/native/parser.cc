@@ -37,7 +37,7 @@ constexpr uint8_t D0 = 48;
 constexpr uint8_t D9 = 57;
 constexpr uint8_t UNDERSCORE = 95;
 // reader.ts MAX_LINE_BYTES: longest line kept.
-constexpr size_t MAX_LINE = 64 * 1024;
+constexpr size_t MAX_LINE = engine::MAX_LINE_BYTES;
 
 constexpr int L_B = 1;
 constexpr int L_E = 4;
@@ -58,19 +58,15 @@ constexpr int L_Z = 25;
 constexpr uint32_t BIT(int l) { return 1u << l; }
 constexpr uint32_t AXES_MASK = BIT(L_X) | BIT(L_Y) | BIT(L_Z) | BIT(L_E);
 
-// Largest sane magnitudes; beyond them a word is rejected as absurd.
-constexpr double MAX_COORD_MM = 1e5;
-constexpr double MAX_E_MM = 1e8;
-constexpr double MAX_FEED_MM_MIN = 1e6;
-// Slowest usable feed, mm/min; anything slower is treated as a typo (and would overflow times).
-constexpr double MIN_FEED_MM_MIN = 0.01;
-constexpr double MAX_LIMIT = 1e7;
-// Smallest usable acceleration, mm/s².
-constexpr double MIN_ACCEL = 1;
-// Smallest usable max-feed limit, mm/s.
-constexpr double MIN_FEED_LIMIT_MMS = 0.01;
-// Most chords one arc may be split into (bounds work on absurd radii).
-constexpr double MAX_ARC_CHORDS = 10000;
+// Sanity caps (engineConstants.ts).
+constexpr double MAX_COORD_MM = engine::PARSER_MAX_COORD_MM;
+using engine::MAX_ARC_CHORDS;
+using engine::MAX_E_MM;
+using engine::MAX_FEED_MM_MIN;
+using engine::MAX_LIMIT;
+using engine::MIN_ACCEL;
+using engine::MIN_FEED_LIMIT_MMS;
+using engine::MIN_FEED_MM_MIN;
 
 constexpr size_t kNone = static_cast<size_t>(-1);
 

@@ -133,7 +133,7 @@ class Parser {
   bool featureLabelsSeen() const { return labelsSeen_; }
 
  private:
-  static constexpr int kMaxTools = 16;
+  static constexpr int kMaxTools = engine::MAX_TOOLS;
 
   MotionSink& sink_;
   MachineState& machine_;

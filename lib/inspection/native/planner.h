@@ -91,7 +91,7 @@ struct PlannerLimits {
 };
 
 // Moves in the look-ahead window; 128 as in planner.ts (RING).
-constexpr int kPlannerRing = 128;
+constexpr int kPlannerRing = engine::PLANNER_RING;
 constexpr int kPlannerMask = kPlannerRing - 1;
 
 // Corner helpers of planner.ts that do not depend on the sink (defined below).

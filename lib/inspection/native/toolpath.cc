@@ -10,26 +10,17 @@ namespace hotlap {
 
 namespace {
 
-// Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source).
-constexpr double STANDARD_NOZZLES_MM[] = {0.2, 0.25, 0.3, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2};
-// Fallback width: slicer defaults put wall lines at 100–112.5 % of the nozzle (no nozzle hint here).
-// constexpr double WIDTH_PER_NOZZLE = 1.1;  (only used with opts.nozzleMm, not ported)
-// A block counts as solid at ≥ 75 % volume fraction.
-constexpr double SOLID_FRACTION = 0.75;
-// Most segments kept for one layer (5 floats each); beyond this the layer is analysed in part.
-constexpr int MAX_LAYER_SEGMENTS = 400000;
-// Most layer records kept.
-constexpr size_t MAX_LAYERS = 200000;
-constexpr double Z_EPS_MM = 0.0015;
-// Coordinates beyond ±10 m are not a printer's (bad input); such moves are ignored.
-constexpr double MAX_COORD_MM = 10000;
-// Grid cells across one line width.
-constexpr double CELLS_PER_WIDTH = 1.6;
-// Default work budget: 6 M cells, plus a quarter cell per extruding move.
-constexpr double DEFAULT_BUDGET_BASE_CELLS = 6000000;
-constexpr double DEFAULT_BUDGET_CELLS_PER_SEGMENT = 0.25;
-// Consecutive layers analysed per window once sampling.
-constexpr double SAMPLE_WINDOW_LAYERS = 24;
+// Caps and tunables (engineConstants.ts). WIDTH_PER_NOZZLE is only used with a nozzle hint, not ported.
+using engine::CELLS_PER_WIDTH;
+using engine::DEFAULT_BUDGET_BASE_CELLS;
+using engine::DEFAULT_BUDGET_CELLS_PER_SEGMENT;
+using engine::MAX_LAYER_SEGMENTS;
+using engine::SAMPLE_WINDOW_LAYERS;
+using engine::SOLID_FRACTION;
+using engine::STANDARD_NOZZLES_MM;
+using engine::Z_EPS_MM;
+constexpr size_t MAX_LAYERS = engine::TOOLPATH_MAX_LAYERS;
+constexpr double MAX_COORD_MM = engine::TOOLPATH_MAX_COORD_MM;
 constexpr int HIST = 600;
 
 // JSON.stringify writes −0 as 0.

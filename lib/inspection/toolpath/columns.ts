@@ -11,6 +11,7 @@
  * geometry never puts air directly on sparse infill (a top surface gets solid layers first), so a
  * short EMPTY gap (≤ MAX_INFILL_GAP layers) between SPARSE and SOLID is read as that sparse infill.
  */
+import * as C from '../engineConstants';
 
 export const B_EMPTY = 0;
 export const B_SOLID = 1;
@@ -21,8 +22,7 @@ const FROM_AIR = 1;
 const FROM_SPARSE = 2;
 const FROM_OTHER = 3;
 
-/** Longest run of empty layers read as combined infill (a slicer combines at most ~10 layers). */
-const MAX_INFILL_GAP = 9;
+const MAX_INFILL_GAP = C.MAX_INFILL_GAP;
 
 interface Column {
   /** State on layer lastLayer (the last layer the block was not EMPTY). */
@@ -34,8 +34,7 @@ interface Column {
   pendingBottom: number;
 }
 
-/** Cap on tracked columns (a 400 × 400 mm bed at 2 mm blocks is 40 000). */
-const MAX_COLUMNS = 250_000;
+const MAX_COLUMNS = C.MAX_COLUMNS;
 
 export class ColumnTracker {
   private cols = new Map<number, Column>();

@@ -9,6 +9,7 @@
  *   GAP — empty but enclosed otherwise: the space between sparse-infill lines, inside the part.
  * The part's filled region F is every cell that is neither OUTSIDE nor HOLE.
  */
+import * as C from '../engineConstants';
 
 export const EMPTY = 0;
 export const PAINT_LOOP = 1;
@@ -17,8 +18,7 @@ export const OUTSIDE = 3;
 export const HOLE = 4;
 export const GAP = 5;
 
-/** Upper bound on grid cells (1024²): 1 MB of labels, 4 MB of volume, 2 MB of distance. */
-export const MAX_GRID_CELLS = 1024 * 1024;
+export const MAX_GRID_CELLS = C.MAX_GRID_CELLS;
 
 /** Chamfer distance weights (3 for a side step, 4 for a diagonal; Borgefors 1986, "3-4 chamfer"). */
 const D_SIDE = 3;
