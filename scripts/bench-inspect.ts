@@ -1,7 +1,7 @@
 /**
  * Benchmark of the inspection engine (a script that prints figures; nothing here is a test).
  *
- *   npm run bench:inspect [-- --sizes 100,500] [--repeat 3] [--keep]   (these are the defaults, but --keep)
+ *   npm run bench:inspect [-- --sizes 100,500] [--repeat 5] [--keep]   (these are the defaults, but --keep)
  *
  * Builds plain G-code files of the given sizes (MB) in a temp dir by stacking the real slicer
  * fixtures on top of each other (G28 commented out, a Z lift and a G92 Z shift between copies, so
@@ -82,11 +82,11 @@ async function child(mode: string, file: string): Promise<void> {
 }
 
 /**
- * Rounds (--repeat N, default 3): every mode runs once per round, so all rows see the same machine
+ * Rounds (--repeat N, default 5): every mode runs once per round, so all rows see the same machine
  * side by side. Each row reports its median run by wall time (the throughput is wall time); a single
  * run is at the mercy of this shared machine's slow spells, which hit the short runs hardest.
  */
-let repeat = 3;
+let repeat = 5;
 
 /** The run with the median wall time (the slower middle one for an even count), with the highest peak RSS of all runs (memory is not a best case). */
 function medianRun(runs: ChildResult[]): ChildResult {
