@@ -7,8 +7,8 @@
  * Why native code rather than the TypeScript engine alone: the benchmark target is the full
  * inspection at ≥ 10× the throughput of the most-used npm G-code parser (gcode-parser). Tuned as
  * far as measurements allowed, the TypeScript engine reached 4.3–5.2× (67–80 MB/s on the 100 MB
- * bench stack, the peer 14–17 MB/s in the same runs); this engine does 12.1–12.4× (228–248 MB/s,
- * 0.40–0.44 s per 100 MB with the analyzers on a second thread; npm run bench:inspect, 2026-12-02).
+ * bench stack, the peer 14–17 MB/s in the same runs); this engine does 10.9–12.4× (210–248 MB/s,
+ * 0.40–0.48 s per 100 MB with the analyzers on a second thread; npm run bench:inspect, 2026-12-02).
  *
  * The TypeScript engine stays the reference and the fallback (no compiler at install, or
  * HOTLAP_ENGINE=ts): tests/unit/inspection/native.test.ts checks both give the same report.
