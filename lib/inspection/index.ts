@@ -1,7 +1,8 @@
 /** Public entry points of the inspection engine (framework-free). */
 export { inspectFile, inspectStream, DEFAULT_FILAMENT_DIAMETER_MM, type InspectOptions } from './inspect';
 export { toJsonReport, type InspectionReport, type FeatureReport, type ReportSettings } from './report';
-export { InspectionError, type InspectionErrorCode, MAX_LINE_BYTES } from './reader';
+export { InspectionError, type InspectionErrorCode } from './reader';
+export { MAX_LINE_BYTES } from './engineConstants';
 export { GcodeParser, MachineState, featureFromLabel, type MotionSink, type ParserOptions, type ParserWarning } from './parser';
 export { filamentAreaMm2 } from './materials';
 export { Measurements, lineWidthMm, crossSectionMm2 } from './measure';

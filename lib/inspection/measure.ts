@@ -34,9 +34,9 @@ function featureIndex(f: FeatureKind | null): number {
 }
 
 // Bins, grid and caps (engineConstants.ts), as module constants (no getter call per access).
-export const FLOW_BIN_MM3S = C.FLOW_BIN_MM3S;
+const FLOW_BIN_MM3S = C.FLOW_BIN_MM3S;
 const FLOW_BINS = C.FLOW_BINS;
-export const TIME_SERIES_POINTS = C.TIME_SERIES_POINTS;
+const TIME_SERIES_POINTS = C.TIME_SERIES_POINTS;
 const GRID_CELL_MM = C.GRID_CELL_MM;
 const GRID_N = C.GRID_N;
 const GRID_ORIGIN_MM = C.GRID_ORIGIN_MM;

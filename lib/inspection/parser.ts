@@ -14,7 +14,7 @@
  * 9.7–11.8 MB per CPU-second against 125–134 for this reader + parser (npm run bench:inspect).
  */
 import type { FeatureKind, Segment, SegmentSink } from './types';
-import { MAX_LINE_BYTES, type LineSink } from './reader';
+import type { LineSink } from './reader';
 import * as C from './engineConstants';
 
 /** Extra callbacks the time planner uses; optional on any sink. */
@@ -112,7 +112,7 @@ const TAB = 9;
 const CR = 13;
 const LF = 10;
 /** Local copy: an imported binding costs a getter call per access under CommonJS interop. */
-const MAX_LINE = MAX_LINE_BYTES;
+const MAX_LINE = C.MAX_LINE_BYTES;
 const SEMI = 59;
 const LPAREN = 40;
 const RPAREN = 41;

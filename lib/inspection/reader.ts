@@ -15,7 +15,6 @@ import { createGunzip } from 'node:zlib';
 
 import { MAX_LINE_BYTES } from './engineConstants';
 
-export { MAX_LINE_BYTES };
 /** Read size for plain files (one reused buffer) and for compressed input and its inflated chunks. */
 const CHUNK_BYTES = 1024 * 1024;
 

@@ -29,7 +29,7 @@
  */
 import type { Segment, SegmentSink } from './types';
 import { filamentAreaMm2 } from './materials';
-import { LayerGrid, MAX_GRID_CELLS } from './toolpath/layerGrid';
+import { LayerGrid } from './toolpath/layerGrid';
 import { B_EDGE, B_EMPTY, B_SOLID, B_SPARSE, ColumnTracker } from './toolpath/columns';
 import { LayerTable, layerHasFigures, type LayerRow } from './toolpath/layerTable';
 import * as C from './engineConstants';
@@ -76,6 +76,7 @@ export interface ToolpathSettingsOptions {
 }
 
 const STANDARD_NOZZLES_MM = C.STANDARD_NOZZLES_MM;
+const MAX_GRID_CELLS = C.MAX_GRID_CELLS;
 /**
  * Fallback width when a layer gives none: slicer defaults put wall lines at 100 % (CuraEngine) to
  * 112.5 % (PrusaSlicer) of the nozzle (common practice, no source).

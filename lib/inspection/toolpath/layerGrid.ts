@@ -1,6 +1,6 @@
 /**
  * One layer's extrusion rasterised on a square grid, reused from layer to layer so memory stays at
- * one grid (capped at MAX_GRID_CELLS) however large the file.
+ * one grid (capped at engineConstants.ts MAX_GRID_CELLS) however large the file.
  *
  * Cell labels after `classify()`:
  *   PAINT_LOOP / PAINT_OTHER — covered by an extrusion that is part of a closed loop / anything else,
@@ -9,7 +9,6 @@
  *   GAP — empty but enclosed otherwise: the space between sparse-infill lines, inside the part.
  * The part's filled region F is every cell that is neither OUTSIDE nor HOLE.
  */
-import * as C from '../engineConstants';
 
 export const EMPTY = 0;
 export const PAINT_LOOP = 1;
@@ -17,8 +16,6 @@ export const PAINT_OTHER = 2;
 export const OUTSIDE = 3;
 export const HOLE = 4;
 export const GAP = 5;
-
-export const MAX_GRID_CELLS = C.MAX_GRID_CELLS;
 
 /** Chamfer distance weights (3 for a side step, 4 for a diagonal; Borgefors 1986, "3-4 chamfer"). */
 const D_SIDE = 3;

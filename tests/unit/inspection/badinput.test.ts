@@ -5,7 +5,8 @@ import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { inspectFile } from '../../../lib/inspection/inspect';
-import { InspectionError, LineSplitter, MAX_LINE_BYTES } from '../../../lib/inspection/reader';
+import { MAX_LINE_BYTES } from '../../../lib/inspection/engineConstants';
+import { InspectionError, LineSplitter } from '../../../lib/inspection/reader';
 import { inspectBytes } from './engineHelpers';
 
 const dir = mkdtempSync(join(tmpdir(), 'hotlap-bad-'));

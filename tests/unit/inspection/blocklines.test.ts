@@ -10,7 +10,8 @@ import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { GcodeParser, MachineState } from '../../../lib/inspection/parser';
-import { LineSplitter, MAX_LINE_BYTES } from '../../../lib/inspection/reader';
+import { MAX_LINE_BYTES } from '../../../lib/inspection/engineConstants';
+import { LineSplitter } from '../../../lib/inspection/reader';
 import { mulberry32 } from '../../support/prng';
 
 const GCODE = join(__dirname, '../../fixtures/gcode');
