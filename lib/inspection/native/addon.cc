@@ -11,8 +11,8 @@
 
 #include <algorithm>
 #include <atomic>
-#include <cstring>
 #include <condition_variable>
+#include <cstring>
 #include <memory>
 #include <mutex>
 #include <thread>
@@ -37,6 +37,8 @@ struct Event {
 };
 static_assert(std::is_trivially_copyable_v<MotionLimits>, "limits travel as bytes");
 constexpr size_t kLimitSlots = (sizeof(MotionLimits) + sizeof(Event) - 1) / sizeof(Event);
+// Bytes of the MotionLimits carried by limits slot k (0 … kLimitSlots − 1), from byte k · sizeof(Event).
+constexpr size_t limitBytesInSlot(size_t k) { return std::min(sizeof(Event), sizeof(MotionLimits) - k * sizeof(Event)); }
 
 // Two threads, one pipeline: the parser runs on the JavaScript thread inside lines(), and hands
 // every event (move, dwell, limits change, end) through this single-producer single-consumer ring
@@ -191,7 +193,7 @@ class Fanout final : public MotionSink {
     pipe_.commit();
     const auto* bytes = reinterpret_cast<const unsigned char*>(static_cast<const MotionLimits*>(&m));
     for (size_t k = 0; k < kLimitSlots; k++) {
-      std::memcpy(static_cast<void*>(&pipe_.slot()), bytes + k * sizeof(Event), std::min(sizeof(Event), sizeof(MotionLimits) - k * sizeof(Event)));
+      std::memcpy(static_cast<void*>(&pipe_.slot()), bytes + k * sizeof(Event), limitBytesInSlot(k));
       pipe_.commit();
     }
   }
@@ -294,7 +296,7 @@ class Engine : public Napi::ObjectWrap<Engine> {
     pipe_->consume([&](const Event& e) {
       if (limitSlots > 0) {
         const size_t k = kLimitSlots - limitSlots--;
-        std::memcpy(limits + k * sizeof(Event), &e, std::min(sizeof(Event), sizeof(MotionLimits) - k * sizeof(Event)));
+        std::memcpy(limits + k * sizeof(Event), &e, limitBytesInSlot(k));
         return true;
       }
       switch (e.type) {

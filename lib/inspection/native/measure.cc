@@ -13,7 +13,6 @@ constexpr uint8_t kCellPreamble = 1;
 constexpr uint8_t kCellFirst = 2;
 constexpr uint8_t kCellLater = 4;
 
-
 // Map<number, …> key: SameValueZero (−0 is +0, NaN is one key).
 inline uint64_t keyBits(double k) {
   if (k == 0) return 0;

@@ -30,7 +30,6 @@ inline double crossSectionMm2(double lineWidthMm, double layerHeightMm) {
   return (lineWidthMm - h) * h + M_PI * (h / 2) * (h / 2);
 }
 
-
 // Bins, grid and caps (engineConstants.ts).
 constexpr double kFlowBinMm3s = engine::FLOW_BIN_MM3S;
 constexpr int kFlowBins = engine::FLOW_BINS;

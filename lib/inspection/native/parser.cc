@@ -239,11 +239,10 @@ const uint64_t kPow10Bits[] = {
     0x7f423a516e82d9baull, 0x7f76c8e5ca239029ull, 0x7fac7b1f3cac7433ull, 0x7fe1ccf385ebc8a0ull,
 };
 
-
 // Byte classes of the word loop in lineImpl() (C++ only, for speed: one table load replaces the
 // TypeScript's chains of comparisons; each class is exactly one of its tests). A letter's class
-// is its index 0..25, as (c | 0x20) − 97 gives it; isTerminator() is K_BLANK … K_STAR and
-// isLetter() is a class below 26, so "!isTerminator(c) && !isLetter(c)" is K_OTHER.
+// is its index 0..25, as (c | 0x20) − 97 gives it; isTerminator() is K_BLANK … K_STAR, so a byte
+// that is neither a terminator nor a letter is K_OTHER.
 constexpr uint8_t K_BLANK = 26;  // SPACE, TAB
 constexpr uint8_t K_LF = 27;
 constexpr uint8_t K_CR = 28;
@@ -276,8 +275,10 @@ constexpr ByteClasses kByteClass = makeByteClasses();
 
 inline int byteClass(uint8_t c) { return kByteClass.k[c]; }
 
+// SPACE, TAB, CR, LF, ';', '(' or '*'.
 bool isTerminator(uint8_t c) {
-  return c == SPACE || c == TAB || c == CR || c == LF || c == SEMI || c == LPAREN || c == STAR;
+  const int k = byteClass(c);
+  return k >= K_BLANK && k <= K_STAR;
 }
 
 size_t skipWord(const uint8_t* buf, size_t i, size_t end) {
@@ -929,6 +930,18 @@ inline void Parser::storeWord(int letter, double v) {
   firstWord_ = false;
 }
 
+// Adds the run of ASCII digits at buf[i…] to mant (mant · 10 + digit each; past nine digits the
+// sum wraps and the caller discards it); returns the index after the run.
+static HOTLAP_INLINE size_t addDigits(const uint8_t* buf, size_t i, size_t end, uint32_t& mant) {
+  while (i < end) {
+    const uint32_t d = static_cast<uint32_t>(buf[i]) - D0;
+    if (d > 9) break;
+    mant = mant * 10 + d;
+    i++;
+  }
+  return i;
+}
+
 // Parses [+-]digits[.digits] into numVal_; returns the index after it, or kNone when no digits.
 // C++ only, same value: the TypeScript's single loop (a digit or the first dot per step, the
 // first nine digits summed in int32, then readLongNumber() in doubles) is split into an
@@ -938,35 +951,23 @@ inline void Parser::storeWord(int letter, double v) {
 // made at the end of the TypeScript readNumber()/readLongNumber() is made by the caller,
 // lineImpl(), when a letter follows the digits (it is false otherwise).
 HOTLAP_INLINE size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end) {
-  const size_t at = i;
   bool neg = false;
   if (i < end && (buf[i] == MINUS || buf[i] == PLUS)) {
     neg = buf[i] == MINUS;
     i++;
   }
+  const size_t digitsAt = i;
   uint32_t mant = 0;
-  const size_t intAt = i;
-  while (i < end) {
-    const uint32_t d = static_cast<uint32_t>(buf[i]) - D0;
-    if (d > 9) break;
-    mant = mant * 10 + d;
-    i++;
-  }
-  size_t nd = i - intAt;
+  i = addDigits(buf, i, end, mant);
+  size_t nd = i - digitsAt;
   size_t fd = 0;
   if (i < end && buf[i] == DOT) {
-    i++;
-    const size_t fracAt = i;
-    while (i < end) {
-      const uint32_t d = static_cast<uint32_t>(buf[i]) - D0;
-      if (d > 9) break;
-      mant = mant * 10 + d;
-      i++;
-    }
+    const size_t fracAt = i + 1;
+    i = addDigits(buf, fracAt, end, mant);
     fd = i - fracAt;
     nd += fd;
   }
-  if (nd > 9) return readNumberTs(buf, at, end);
+  if (nd > 9) return readNumberTs(buf, digitsAt, end, neg);
   if (nd == 0) {
     numVal_ = NAN;
     return kNone;
@@ -978,14 +979,9 @@ HOTLAP_INLINE size_t Parser::readNumber(const uint8_t* buf, size_t i, size_t end
   return i;
 }
 
-// The TypeScript readNumber() loop, for numbers of more than nine digits: the first nine digits
-// are summed in int32 (exact), then readLongNumber() goes on in doubles.
-size_t Parser::readNumberTs(const uint8_t* buf, size_t i, size_t end) {
-  bool neg = false;
-  if (i < end && (buf[i] == MINUS || buf[i] == PLUS)) {
-    neg = buf[i] == MINUS;
-    i++;
-  }
+// The TypeScript readNumber() loop, for numbers of more than nine digits (i is past the sign): the
+// first nine digits are summed in int32 (exact), then readLongNumber() goes on in doubles.
+size_t Parser::readNumberTs(const uint8_t* buf, size_t i, size_t end, bool neg) {
   int32_t mant = 0;
   int nd = 0;
   ptrdiff_t dotAt = -1;
@@ -1002,15 +998,8 @@ size_t Parser::readNumberTs(const uint8_t* buf, size_t i, size_t end) {
     }
     i++;
   }
-  // Not reached with nine digits or fewer (readNumber() handles those); kept as in TypeScript.
-  if (nd == 0) {
-    numVal_ = NAN;
-    return kNone;
-  }
-  const ptrdiff_t fd = dotAt >= 0 ? static_cast<ptrdiff_t>(i) - dotAt - 1 : 0;
-  const double v = fd > 0 ? mant / kPow10Small[fd] : mant;
-  numVal_ = neg ? -v : v;
-  return i;
+  // Not reached: readNumber() counted more than nine digits, so the loop returns at the tenth.
+  return readLongNumber(buf, i, end, neg, dotAt, mant);
 }
 
 // readNumber() past nine digits: goes on in doubles from the same exact value.

@@ -199,7 +199,7 @@ class Parser {
   void beginStatement();
   void storeWord(int letter, double v);
   size_t readNumber(const uint8_t* buf, size_t i, size_t end);
-  size_t readNumberTs(const uint8_t* buf, size_t i, size_t end);
+  size_t readNumberTs(const uint8_t* buf, size_t i, size_t end, bool neg);
   size_t readLongNumber(const uint8_t* buf, size_t i, size_t end, bool neg, ptrdiff_t dotAt, double mant);
   size_t readExponent(const uint8_t* buf, size_t i, size_t end);
   size_t checksum(const uint8_t* buf, size_t stmtStart, size_t star, size_t end);
