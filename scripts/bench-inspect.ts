@@ -18,7 +18,7 @@
  * (process.resourceUsage().maxRSS). On a shared machine the CPU-time figures are the ones to compare.
  */
 import { spawnSync } from 'node:child_process';
-import { closeSync, createReadStream, fsyncSync, mkdtempSync, openSync, readFileSync, readSync, rmSync, statSync, writeSync } from 'node:fs';
+import { closeSync, createReadStream, fsyncSync, mkdtempSync, openSync, readFileSync, rmSync, statSync, writeSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
@@ -118,25 +118,13 @@ function build(dir: string, sizeMb: number): string {
     writeSync(fd, c);
     written += c.length;
   }
-  // Every mode must find the file in the same state: on disk (no write-back of its dirty pages
-  // while the first child reads it) and in the page cache. Without this the first mode measured
-  // (the full inspection) paid for the write-back: 0.74 s on a fresh 100 MB stack, 0.44–0.50 s
-  // on the same file read again (2026-12-02, this machine).
+  // Every mode must find the file in the same state: on disk, with no write-back of its dirty
+  // pages while the first child reads it (the written pages stay in the page cache). Without this
+  // the first mode measured (the full inspection) paid for the write-back: 0.74 s on a fresh
+  // 100 MB stack, 0.44–0.50 s on the same file read again (2026-12-02, this machine).
   fsyncSync(fd);
   closeSync(fd);
-  warmPageCache(path);
   return path;
-}
-
-/** Reads the whole file once, untimed, so it is in the page cache for every mode. */
-function warmPageCache(path: string): void {
-  const fd = openSync(path, 'r');
-  const buf = Buffer.allocUnsafe(1 << 20);
-  try {
-    while (readSync(fd, buf, 0, buf.length, null) > 0);
-  } finally {
-    closeSync(fd);
-  }
 }
 
 const mb = (b: number) => b / 1e6;
