@@ -21,17 +21,20 @@ import { AuditEvent } from './AuditEvent';
 import { SentMail } from './SentMail';
 import { SeasonSubscription } from './SeasonSubscription';
 import { JudgeInvitation } from './JudgeInvitation';
+import { SeasonOrganizer } from './SeasonOrganizer';
+import { EntryReinspection } from './EntryReinspection';
+import { GcodeFingerprint } from './GcodeFingerprint';
 
 export {
   User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
-  SeasonSubscription, JudgeInvitation,
+  SeasonSubscription, JudgeInvitation, SeasonOrganizer, EntryReinspection, GcodeFingerprint,
 };
 
 const ALL = [
   User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
-  SeasonSubscription, JudgeInvitation,
+  SeasonSubscription, JudgeInvitation, SeasonOrganizer, EntryReinspection, GcodeFingerprint,
 ];
 
 function associate() {
