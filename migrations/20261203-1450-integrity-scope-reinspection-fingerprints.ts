@@ -1,5 +1,5 @@
 /**
- * Integrity tables: co-organizers of a season (besides its creator), what a re-inspection changed
+ * Integrity tables: when a re-inspection reopened an entry, co-organizers of a season (besides its creator), what a re-inspection changed
  * for an entry (kept for the judges and the public wording), and a G-code's content fingerprints
  * (of the decompressed bytes, and of the moves with comments and whitespace left out) so duplicates
  * are found whatever the compression or the comments.
@@ -18,6 +18,7 @@ const fk = (table: string, allowNull = false, onDelete: 'CASCADE' | 'SET NULL' =
 });
 
 export async function up({ context: qi }: { context: QueryInterface }) {
+  await qi.addColumn('entries', 'reopened_at', { type: DataTypes.DATE, allowNull: true });
   await qi.createTable('season_organizers', {
     season_id: { ...fk('seasons'), primaryKey: true },
     user_id: { ...fk('users'), primaryKey: true },
@@ -52,4 +53,5 @@ export async function down({ context: qi }: { context: QueryInterface }) {
   await qi.dropTable('gcode_fingerprints');
   await qi.dropTable('entry_reinspections');
   await qi.dropTable('season_organizers');
+  await qi.removeColumn('entries', 'reopened_at');
 }

@@ -21,6 +21,8 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
   declare gcodeSha256: string | null;
   declare submittedAt: Date | null;
   declare decidedAt: Date | null;
+  /** When a re-inspection sent the entry back to the judges (starts a new round of verifications). */
+  declare reopenedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -41,6 +43,7 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
         gcodeSha256: { type: DataTypes.STRING(64), allowNull: true },
         submittedAt: { type: DataTypes.DATE, allowNull: true },
         decidedAt: { type: DataTypes.DATE, allowNull: true },
+        reopenedAt: { type: DataTypes.DATE, allowNull: true, defaultValue: null },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

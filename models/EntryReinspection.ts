@@ -4,6 +4,8 @@ import { DataTypes, Model, type CreationOptional, type InferAttributes, type Inf
 export interface RuleChange {
   metric: string;
   sentence: string;
+  /** the rule's earlier wording when it changed, else null */
+  sentenceBefore: string | null;
   severity: string;
   before: string | null;
   after: string | null;

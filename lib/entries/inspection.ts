@@ -6,7 +6,6 @@
  * id is the current one. A row left `queued` or `running` by a server that stopped (crash, deploy)
  * is picked up again the next time anyone looks at the entry (resumeInspection).
  */
-import { Op } from 'sequelize';
 import { Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
 import { enqueue, isQueued, inspectInChild, InspectionRunError, ENGINE_VERSION } from '@/lib/jobs';
 import { localPath } from '@/lib/storage';
@@ -17,6 +16,8 @@ import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
 import { flowSeries } from '@/lib/reviews/report';
 import { rulesForEntry } from './rules';
+import { duplicateClaim, findDuplicate } from './duplicates';
+import { afterInspectionStored } from '@/lib/reviews/reinspection';
 
 const jobKey = (inspectionId: number) => `inspection:${inspectionId}`;
 
@@ -42,11 +43,7 @@ export async function inspectionOptions(entry: Entry, gcodeSha256: string): Prom
     rulesForEntry(entry.seasonId, entry.classId),
     TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
     latestFlowLimitMm3s(entry.machineId, entry.materialFamily),
-    Entry.findOne({
-      where: { gcodeSha256, entrantId: { [Op.ne]: entry.entrantId }, state: { [Op.ne]: 'withdrawn' } },
-      order: [['id', 'ASC']],
-      attributes: ['id'],
-    }),
+    findDuplicate(entry, gcodeSha256),
     ExtrusionTest.findOne({ where: { machineId: entry.machineId, materialFamily: entry.materialFamily }, order: [['testedAt', 'DESC'], ['id', 'DESC']] }),
   ]);
   const testPieceSizeMm = piece ? { x: piece.sizeXMm, y: piece.sizeYMm, z: piece.sizeZMm } : undefined;
@@ -65,7 +62,7 @@ export async function inspectionOptions(entry: Entry, gcodeSha256: string): Prom
       ...(limit ? { machineFlowLimitMm3s: limit.limitMm3s } : {}),
       ...(measured ? { measuredDimensionsMm: measured } : {}),
       ...(testPieceSizeMm ? { testPieceSizeMm } : {}),
-      ...(duplicate ? { duplicateOfEntry: `#${duplicate.id}` } : {}),
+      ...(duplicate ? { duplicateOfEntry: duplicateClaim(duplicate) } : {}),
     },
   };
 }
@@ -116,6 +113,7 @@ async function runInspection(inspectionId: number) {
     if (!(err instanceof InspectionRunError)) console.error('inspection', inspectionId, err);
     await row.update({ status: 'failed', error: message, finishedAt: new Date() });
   }
+  await afterInspectionStored(row.id);
 }
 
 export function queueInspection(inspectionId: number) {

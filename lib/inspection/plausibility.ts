@@ -165,7 +165,7 @@ export function checkPlausibility(report: PlausibilityReport, claims: Plausibili
   }
 
   if (claims.duplicateOfEntry) {
-    flags.push(makeFlag('duplicate_gcode', `This G-code is byte-for-byte the same as the one in entry ${claims.duplicateOfEntry}. Each entrant must upload the G-code of their own print.`));
+    flags.push(makeFlag('duplicate_gcode', `This G-code is the same as the one in entry ${claims.duplicateOfEntry}. Each entrant must upload the G-code of their own print.`));
   }
 
   return flags;

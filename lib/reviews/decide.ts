@@ -11,7 +11,7 @@ import { sendMail } from '@/lib/mail';
 import { HttpError, conflict, forbidden } from '@/lib/errors';
 import type { EntryState, ReviewDecision } from '@/lib/domain';
 import { entryForJudge } from './access';
-import { requiredVerifications, roundVerifiers } from './round';
+import { requiredVerifications, roundOpenedAt, roundVerifiers } from './round';
 import { decisionMail } from './mail';
 import type { DecisionInput } from './schemas';
 
@@ -60,7 +60,7 @@ export async function decide(judgeId: number, entryId: number, input: DecisionIn
     let count = 0;
     if (input.decision === 'verify') {
       if (fromState === 'verified') throw conflict('This entry is already verified.');
-      const verifiers = roundVerifiers(reviews, current.submittedAt);
+      const verifiers = roundVerifiers(reviews, roundOpenedAt(current));
       if (verifiers.includes(judgeId)) throw conflict(`You already verified this entry; the season needs ${required} different judges to verify it.`);
       count = verifiers.length + 1;
       toState = count >= required ? 'verified' : 'submitted';

@@ -8,7 +8,7 @@ import { dimensionalDeviation } from './checklist';
 import { inspectionDiff } from './diff';
 import { asFlags } from './flags';
 import { flowSeries, headline, settingsRows } from './report';
-import { requiredVerifications, roundVerifiers } from './round';
+import { requiredVerifications, roundOpenedAt, roundVerifiers } from './round';
 
 /** Link to a file of the entry through the judges' file route (checks access, audits full-size views). */
 export const judgeFileUrl = (entryId: number, fileId: number, opts: { thumb?: boolean } = {}) =>
@@ -72,7 +72,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
   // A re-inspection a stopped server left queued is picked up again when a judge looks.
   if (newest && (newest.status === 'queued' || newest.status === 'running')) await resumeInspection(newest);
   const pending = newest && newest !== latest ? { id: newest.id, status: newest.status, error: newest.error, createdAt: newest.createdAt.toISOString() } : null;
-  const verifiers = roundVerifiers(reviews, entry.submittedAt);
+  const verifiers = roundVerifiers(reviews, roundOpenedAt(entry));
   const reference = testPiece ? { x: testPiece.sizeXMm, y: testPiece.sizeYMm, z: testPiece.sizeZMm } : null;
   const report = latest?.report ?? null;
   const head = headline(report);

@@ -5,7 +5,7 @@ import { ContestClass, Entry, Inspection, Review, Season, User } from '@/models'
 import { notFound } from '@/lib/errors';
 import { servedSeasonIds } from './access';
 import { flagKinds, QUEUE_FLAG_FILTER_LIST, type QueueFlagFilter } from './flags';
-import { requiredVerifications, roundVerifiers } from './round';
+import { requiredVerifications, roundOpenedAt, roundVerifiers } from './round';
 
 export const QueueFilterSchema = z.object({
   season: z.coerce.number().int().positive().optional(),
@@ -65,7 +65,7 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
     const found = insp.get(e.id);
     const i = found?.done ?? null;
     const season = seasonById.get(e.seasonId)!;
-    const verifiers = roundVerifiers(reviews.filter((r) => r.entryId === e.id), e.submittedAt);
+    const verifiers = roundVerifiers(reviews.filter((r) => r.entryId === e.id), roundOpenedAt(e));
     return {
       id: e.id,
       seasonId: e.seasonId,

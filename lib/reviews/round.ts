@@ -31,3 +31,13 @@ export function roundVerifiers(reviews: readonly ReviewLike[], submittedAt: Date
 export function requiredVerifications(seasonSetting: number | null | undefined): number {
   return Math.max(1, Math.floor(Number(seasonSetting) || 1));
 }
+
+/**
+ * When the entry's current round began: its latest submission, or later, when a re-inspection sent
+ * it back to the judges (verifications given before that were given on the earlier inspection).
+ */
+export function roundOpenedAt(entry: { submittedAt: Date | null; reopenedAt?: Date | null }): Date | null {
+  const a = entry.submittedAt;
+  const b = entry.reopenedAt ?? null;
+  return a && b ? (b.getTime() > a.getTime() ? b : a) : (a ?? b);
+}

@@ -19,10 +19,15 @@ export interface Reinspection {
   inspectionIds: number[];
 }
 
-export async function reinspectSeason(seasonId: number, opts: { transaction?: Transaction; now?: Date } = {}): Promise<Reinspection> {
+/**
+ * `states` narrows which entries are re-run (default: every entry not withdrawn); `markSeason`
+ * (default true) records the request on the season, as an organizer's explicit request does.
+ */
+export async function reinspectSeason(seasonId: number, opts: { transaction?: Transaction; now?: Date; states?: string[]; markSeason?: boolean } = {}): Promise<Reinspection> {
   const { transaction } = opts;
   const now = opts.now ?? new Date();
-  const entries = await Entry.findAll({ where: { seasonId, state: { [Op.ne]: 'withdrawn' } }, attributes: ['id'], transaction });
+  const state = opts.states ? { [Op.in]: opts.states.filter((s) => s !== 'withdrawn') } : { [Op.ne]: 'withdrawn' };
+  const entries = await Entry.findAll({ where: { seasonId, state }, attributes: ['id'], transaction });
   const out: Reinspection = { queued: 0, alreadyQueued: 0, withoutFile: 0, inspectionIds: [] };
   for (const entry of entries) {
     const gcode = await currentGcode(entry.id);
@@ -42,7 +47,7 @@ export async function reinspectSeason(seasonId: number, opts: { transaction?: Tr
     out.inspectionIds.push(row.id);
     out.queued += 1;
   }
-  await Season.update({ reinspectRequestedAt: now }, { where: { id: seasonId }, transaction });
+  if (opts.markSeason !== false) await Season.update({ reinspectRequestedAt: now }, { where: { id: seasonId }, transaction });
   return out;
 }
 

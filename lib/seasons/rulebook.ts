@@ -117,6 +117,11 @@ export async function saveRulebook(actor: Actor, seasonId: number, input: Rulebo
       await audit('season.reinspect_requested', { type: 'season', id: seasonId }, {
         actorId: actor.user.id, ip: actor.ip, transaction, details: { reason: 'rules changed', queued: reinspection.queued },
       });
+    } else {
+      // Nothing submitted yet, but drafts were inspected under the old rules: check them again so
+      // a draft that now fails a blocking rule cannot be submitted on its old report.
+      reinspection = await reinspectSeason(seasonId, { transaction, states: ['draft', 'returned'], markSeason: false });
+      if (!reinspection.queued) reinspection = null;
     }
     return { saved: rows.length, reinspection };
   });

@@ -1,0 +1,87 @@
+/**
+ * Finding the same G-code in another entrant's entry. Raw file hashes miss a gzipped copy and a
+ * copy with edited comments, so each stored G-code gets two fingerprints (lib/inspection/fingerprint):
+ * the decompressed content and the moves without comments or whitespace. Fingerprints are computed
+ * once per stored file, outside any write transaction (a streaming read of the file), and kept in
+ * `gcode_fingerprints`.
+ */
+import { Op, QueryTypes } from 'sequelize';
+import { Entry, GcodeFingerprint, StoredFile } from '@/models';
+import { getSequelize } from '@/lib/db';
+import { localPath } from '@/lib/storage';
+import { fingerprintGcodeFile } from '@/lib/inspection/fingerprint';
+
+/** G-code files of older uploads fingerprinted per lookup (a one-off backfill spread over inspections). */
+const BACKFILL_PER_LOOKUP = 20;
+
+export type DuplicateMatch = 'same_file' | 'same_content' | 'same_moves';
+
+export interface Duplicate {
+  entryId: number;
+  match: DuplicateMatch;
+}
+
+const MATCH_WORDS: Record<DuplicateMatch, string> = {
+  same_file: 'the same file',
+  same_content: 'the same G-code once decompressed',
+  same_moves: 'the same moves; only comments or spacing differ',
+};
+
+/** The engine's `duplicateOfEntry` claim: the other entry's number, its link and how it matched. */
+export const duplicateClaim = (d: Duplicate) => `#${d.entryId} (/entries/${d.entryId}: ${MATCH_WORDS[d.match]})`;
+
+/** The stored fingerprint of a G-code file, computed and stored on first use; null when the file cannot be read. */
+export async function fingerprintOf(file: StoredFile): Promise<GcodeFingerprint | null> {
+  const known = await GcodeFingerprint.findByPk(file.id);
+  if (known) return known;
+  try {
+    const fp = await fingerprintGcodeFile(localPath(file.storageKey));
+    const [row] = await GcodeFingerprint.upsert({ storedFileId: file.id, contentSha256: fp.contentSha256, movesSha256: fp.movesSha256, lines: fp.lines });
+    return row;
+  } catch {
+    // Unreadable or not G-code text: the inspection itself reports that to the entrant.
+    return null;
+  }
+}
+
+async function backfill(excludeFileId: number) {
+  const rows = await getSequelize().query<{ id: number }>(
+    `SELECT f.id FROM stored_files f LEFT JOIN gcode_fingerprints g ON g.stored_file_id = f.id
+     WHERE f.kind = 'gcode' AND f.entry_id IS NOT NULL AND g.stored_file_id IS NULL AND f.id <> ? ORDER BY f.id DESC LIMIT ?`,
+    { replacements: [excludeFileId, BACKFILL_PER_LOOKUP], type: QueryTypes.SELECT },
+  );
+  for (const r of rows) {
+    const f = await StoredFile.findByPk(r.id);
+    if (f) await fingerprintOf(f);
+  }
+}
+
+/**
+ * The oldest other entrant's non-withdrawn entry whose G-code (any upload not replaced) matches this
+ * entry's file by raw hash, decompressed content or moves; null when there is none.
+ */
+export async function findDuplicate(entry: Pick<Entry, 'id' | 'entrantId'>, gcodeSha256: string): Promise<Duplicate | null> {
+  const file = await StoredFile.findOne({ where: { entryId: entry.id, kind: 'gcode', sha256: gcodeSha256 }, order: [['id', 'DESC']] });
+  const fp = file ? await fingerprintOf(file) : null;
+  if (file) await backfill(file.id);
+  const others = { entrantId: { [Op.ne]: entry.entrantId }, state: { [Op.ne]: 'withdrawn' } };
+  const byRaw = await Entry.findOne({ where: { gcodeSha256, ...others }, order: [['id', 'ASC']], attributes: ['id'] });
+  let best: Duplicate | null = byRaw ? { entryId: byRaw.id, match: 'same_file' } : null;
+  if (fp) {
+    const rows = await getSequelize().query<{ entry_id: number; content_sha256: string; meta: unknown }>(
+      `SELECT e.id AS entry_id, g.content_sha256, f.meta FROM gcode_fingerprints g
+       JOIN stored_files f ON f.id = g.stored_file_id JOIN entries e ON e.id = f.entry_id
+       WHERE (g.content_sha256 = :content OR g.moves_sha256 = :moves) AND f.kind = 'gcode'
+         AND e.entrant_id <> :entrant AND e.state <> 'withdrawn' AND e.id <> :entry
+       ORDER BY e.id ASC`,
+      { replacements: { content: fp.contentSha256, moves: fp.movesSha256, entrant: entry.entrantId, entry: entry.id }, type: QueryTypes.SELECT },
+    );
+    // A replaced upload is no longer the entry's G-code.
+    const replaced = (meta: unknown) => !!(typeof meta === 'string' ? JSON.parse(meta || '{}') : (meta ?? {}))?.replacedAt;
+    const first = rows.find((r) => !replaced(r.meta));
+    if (first && (!best || first.entry_id < best.entryId)) {
+      best = { entryId: first.entry_id, match: first.content_sha256 === fp.contentSha256 ? 'same_content' : 'same_moves' };
+    }
+  }
+  return best;
+}
