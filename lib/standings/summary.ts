@@ -37,7 +37,7 @@ export function flowSeriesPoints(report: Json): FlowSeries | null {
 }
 
 /** Sentences a viewer can read without knowing the report's fields. Missing figures are left out. */
-export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rules: { pass: number; fail: number; unknown: number }; flags: number }): string[] {
+export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rules: { pass: number; fail: number; unknown: number }; flags: number; judgedThisInspection?: boolean }): string[] {
   const r = obj(a.report);
   const out: string[] = [];
   const layers = obj(r?.layers);
@@ -75,7 +75,9 @@ export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rule
     out.push(
       a.rules.fail === 0 && a.rules.unknown === 0
         ? `All ${total} rules of the rulebook pass.`
-        : `${a.rules.pass} of ${total} rules pass${a.rules.fail ? `, ${a.rules.fail} fail` : ''}${a.rules.unknown ? `, ${a.rules.unknown} could not be measured` : ''}; the judges weighed this before verifying.`,
+        : `${a.rules.pass} of ${total} rules pass${a.rules.fail ? `, ${a.rules.fail} fail` : ''}${a.rules.unknown ? `, ${a.rules.unknown} could not be measured` : ''}` +
+          // Only when this inspection was finished before the decision: a later re-inspection's findings were never in front of the judges.
+          (a.judgedThisInspection === false ? '.' : '; the judges weighed this before verifying.'),
     );
   }
   out.push(a.flags ? `The inspection raised ${a.flags} flag${a.flags === 1 ? '' : 's'} for the judges (listed below).` : 'The inspection raised no flags.');

@@ -12,6 +12,7 @@ import { ensureFrozen, isFrozenState } from './freeze';
 import { isoDate, ranksOf, runFields, standingsPage, type ClassRef, type StandingsPage } from './query';
 import type { StandingsQuery } from './params';
 import { inspectionSummary, flowSeriesPoints, type FlowSeries } from './summary';
+import { latestReinspection } from '@/lib/reviews/reinspection';
 
 const seq = () => getSequelize();
 const select = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>): Promise<T[]> =>
@@ -261,10 +262,16 @@ interface EntryDetailRow extends EntryFigures {
   estimated_time_s: number | null;
   engine_version: string | null;
   finished_at: string | null;
+  state: string;
+  reopened_at: string | null;
 }
 
 export interface PublicEntry {
   id: number;
+  /** `back_with_judges`: was verified, then a re-inspection failed a blocking rule; not ranked until the judges decide again. */
+  status: 'verified' | 'back_with_judges';
+  /** The latest re-inspection, stated as what happened (no claim about what the judges saw). */
+  reinspection: { at: string; /** it sent the entry back to the judges */ reopened: boolean; rulebook_changed: boolean } | null;
   season: { slug: string; name: string; state: string };
   class: { slug: string; name: string };
   entrant: { id: number; name: string };
@@ -303,22 +310,30 @@ export async function publicEntry(id: number): Promise<PublicEntry> {
             i.engine_version, i.finished_at
      FROM entries e JOIN users u ON u.id = e.entrant_id JOIN machines m ON m.id = e.machine_id
      JOIN seasons s ON s.id = e.season_id JOIN classes c ON c.id = e.class_id ${LATEST_INSPECTION}
-     WHERE e.id = ? AND e.state = 'verified' AND s.state <> 'draft'`,
+     WHERE e.id = ? AND (e.state = 'verified' OR (e.state = 'submitted' AND e.reopened_at IS NOT NULL)) AND s.state <> 'draft'`,
     [id],
   );
   if (!r) throw notFound(`No verified entry ${id}.`);
+  const verified = r.state === 'verified';
+  const re = await latestReinspection(r.id);
   const frozen = isFrozenState(r.season_state);
   if (frozen) await ensureFrozen(r.season_id);
   const [ranks, photos] = await Promise.all([
     ranksOf({ seasonId: r.season_id, classId: r.class_id, frozen }, [r.id]),
-    select<{ id: number; original_name: string }>("SELECT id, original_name FROM stored_files WHERE entry_id = ? AND kind = 'photo' ORDER BY id", [r.id]),
+    verified ? select<{ id: number; original_name: string }>("SELECT id, original_name FROM stored_files WHERE entry_id = ? AND kind = 'photo' ORDER BY id", [r.id]) : Promise.resolve([]),
   ]);
   const report = json<Record<string, unknown> | null>(r.report, null);
   const ruleResults = json<{ status?: string }[]>(r.rule_results, []);
   const flags = json<{ code?: string; severity?: string; message?: string }[]>(r.flags, []);
   const count = (st: string) => ruleResults.filter((x) => x?.status === st).length;
+  // The judges weighed this inspection only if it was finished when they decided.
+  const finishedMs = r.finished_at ? Date.parse(isoDate(r.finished_at) ?? '') : NaN;
+  const decidedMs = r.decided_at ? Date.parse(isoDate(r.decided_at) ?? '') : NaN;
+  const judgedThisInspection = verified && finishedMs <= decidedMs;
   return {
     id: r.id,
+    status: verified ? 'verified' : 'back_with_judges',
+    reinspection: re && { at: re.at, reopened: re.reopened, rulebook_changed: re.rulebookChanged },
     season: { slug: r.season_slug, name: r.season_name, state: r.season_state },
     class: { slug: r.class_slug, name: r.class_name },
     entrant: { id: r.entrant_id, name: r.entrant_name },
@@ -345,7 +360,7 @@ export async function publicEntry(id: number): Promise<PublicEntry> {
             estimated_time_s: r.estimated_time_s,
             rules: { pass: count('pass'), fail: count('fail'), unknown: count('unknown') },
             flags: flags.map((f) => ({ code: String(f.code ?? ''), severity: String(f.severity ?? 'info'), message: String(f.message ?? '') })),
-            summary: inspectionSummary({ report, claimedTimeMs: r.claimed_time_ms, rules: { pass: count('pass'), fail: count('fail'), unknown: count('unknown') }, flags: flags.length }),
+            summary: inspectionSummary({ report, claimedTimeMs: r.claimed_time_ms, rules: { pass: count('pass'), fail: count('fail'), unknown: count('unknown') }, flags: flags.length, judgedThisInspection }),
             flow_series: flowSeriesPoints(report),
           },
   };

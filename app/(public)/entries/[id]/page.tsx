@@ -24,10 +24,24 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
         <h1>
           <span className="num">{formatDurationMs(e.time_ms)}</span> by <Link href={`/entrants/${e.entrant.id}`}>{e.entrant.name}</Link>
         </h1>
-        <p className="text-ink-700">
-          {e.rank ? <>Rank <strong className="num">{e.rank}</strong> in {e.class.name}</> : <>Not the entrant’s ranked run in {e.class.name}</>} · verified{' '}
-          {e.decided_at ? formatDateTime(e.decided_at) : ''} · submitted {formatDate(e.submitted_at)}
-        </p>
+        {e.status === 'verified' ? (
+          <p className="text-ink-700">
+            {e.rank ? <>Rank <strong className="num">{e.rank}</strong> in {e.class.name}</> : <>Not the entrant’s ranked run in {e.class.name}</>} · verified{' '}
+            {e.decided_at ? formatDateTime(e.decided_at) : ''} · submitted {formatDate(e.submitted_at)}
+          </p>
+        ) : (
+          <p className="text-ink-700">Not ranked in {e.class.name} while the judges decide again · submitted {formatDate(e.submitted_at)}</p>
+        )}
+        {e.reinspection && (
+          <p className="card text-sm" role="status" data-testid="reinspection-note">
+            Re-inspected on {formatDate(e.reinspection.at)} {e.reinspection.rulebook_changed ? 'after the rulebook changed' : 'at the organizer’s request'};{' '}
+            {e.status !== 'verified'
+              ? 'back with the judges.'
+              : e.reinspection.reopened
+                ? `back with the judges, who verified it again${e.decided_at ? ` on ${formatDate(e.decided_at)}` : ''}.`
+                : 'it passes every blocking rule and its verification stands.'}
+          </p>
+        )}
       </header>
 
       <section className="grid gap-4 md:grid-cols-3">
