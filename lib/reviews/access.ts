@@ -1,10 +1,11 @@
 /**
  * Who may see and decide what on the review desk. A judge sees entries of the seasons they serve
  * and nothing else (others answer 404, as if they did not exist); a judge never decides on their
- * own entry.
+ * own entry, nor one of a class in which they compete that season (lib/reviews/conflicts).
  */
 import { Entry, SeasonJudge } from '@/models';
 import { forbidden, notFound } from '@/lib/errors';
+import { refuseConflictedJudge } from './conflicts';
 
 export async function servedSeasonIds(judgeId: number): Promise<number[]> {
   const rows = await SeasonJudge.findAll({ where: { userId: judgeId }, attributes: ['seasonId'] });
@@ -28,5 +29,7 @@ export async function entryForJudge(judgeId: number, entryId: number): Promise<E
 export async function reviewableEntry(judgeId: number, entryId: number): Promise<Entry> {
   const entry = await entryForJudge(judgeId, entryId);
   if (entry.entrantId === judgeId) throw forbidden('This is your own entry: another judge of the season reviews it.');
+  // A rival's evidence is not for a judge who competes in the same class.
+  await refuseConflictedJudge(judgeId, entry);
   return entry;
 }

@@ -11,6 +11,7 @@ import { sendMail } from '@/lib/mail';
 import { HttpError, conflict, forbidden } from '@/lib/errors';
 import type { EntryState, ReviewDecision } from '@/lib/domain';
 import { entryForJudge } from './access';
+import { refuseConflictedJudge } from './conflicts';
 import { requiredVerifications, roundOpenedAt, roundVerifiers } from './round';
 import { decisionMail } from './mail';
 import type { DecisionInput } from './schemas';
@@ -54,6 +55,7 @@ export async function decide(judgeId: number, entryId: number, input: DecisionIn
       );
     }
     const current = (await Entry.findByPk(entry.id, { transaction }))!;
+    await refuseConflictedJudge(judgeId, current, transaction);
     const fromState = current.state as EntryState;
     const reviews = await Review.findAll({ where: { entryId: entry.id }, attributes: ['judgeId', 'decision', 'createdAt'], transaction });
     let toState: EntryState;

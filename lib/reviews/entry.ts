@@ -4,6 +4,7 @@ import { extrusionTestJson } from '@/lib/machines';
 import { auditEvidenceView } from './evidence';
 import { resumeInspection } from '@/lib/entries/inspection';
 import { reviewableEntry } from './access';
+import { latestReinspection } from './reinspection';
 import { dimensionalDeviation } from './checklist';
 import { inspectionDiff } from './diff';
 import { asFlags } from './flags';
@@ -56,7 +57,10 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
     Review.findAll({ where: { entryId: entry.id }, order: [['id', 'ASC']], include: [{ model: User, as: 'judge', attributes: ['id', 'name'] }] }),
     TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
   ]);
-  const tests = machine ? await ExtrusionTest.findAll({ where: { machineId: machine.id }, order: [['testedAt', 'DESC']] }) : [];
+  const [tests, reinspection] = await Promise.all([
+    machine ? ExtrusionTest.findAll({ where: { machineId: machine.id }, order: [['testedAt', 'DESC']] }) : Promise.resolve([] as ExtrusionTest[]),
+    latestReinspection(entry.id),
+  ]);
   await auditEvidenceView(judgeId, entry.id, 'review', { ip: meta.ip });
 
   const photos = files.filter((f) => f.kind === 'photo');
@@ -143,6 +147,8 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       previewUrl: gcode ? `/api/judging/entries/${entry.id}/preview` : null,
     },
     pendingInspection: pending,
+    /** The latest re-inspection's outcome; `reopened` when it took a verified entry out of the standings. */
+    reinspection,
     changes: latest && previous && latest.status === 'done' ? inspectionDiff(snapshot(previous), snapshot(latest)) : null,
     reviews: reviews.map((r) => ({
       id: r.id,

@@ -16,7 +16,7 @@ export const PLAUSIBILITY_FLAG_CODES: readonly FlagCode[] = [
 
 /** Queue filters by what an inspection found. */
 export const QUEUE_FLAG_FILTERS = {
-  blocking_overridden: 'Blocking rule failed (submitted anyway)',
+  blocking_overridden: 'Blocking rule failed (submitted anyway, or found by a re-inspection)',
   advisory: 'Advisory flags',
   plausibility: 'Plausibility flags',
   clean: 'No flags',

@@ -1,7 +1,12 @@
-/** The judge's queue: submitted entries of the seasons they serve, oldest first, never their own. */
+/**
+ * The judge's queue: submitted entries of the seasons they serve, oldest first, never their own nor
+ * those of a class the judge competes in (conflict of interest).
+ */
 import { z } from 'zod';
 import { Op } from 'sequelize';
-import { ContestClass, Entry, Inspection, Review, Season, User } from '@/models';
+import { ContestClass, Entry, EntryReinspection, Inspection, Review, Season, User } from '@/models';
+import { competingClassKeys, isConflicted } from './conflicts';
+import { changeSentence } from './reinspection';
 import { notFound } from '@/lib/errors';
 import { servedSeasonIds } from './access';
 import { flagKinds, QUEUE_FLAG_FILTER_LIST, type QueueFlagFilter } from './flags';
@@ -40,7 +45,7 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
     if (!seasonIds.includes(filter.season)) throw notFound('No season with this number is on your review desk.');
     seasonIds = [filter.season];
   }
-  const empty = { seasons: [], classes: [], flagCounts: Object.fromEntries(QUEUE_FLAG_FILTER_LIST.map((k) => [k, 0])), total: 0, entries: [] };
+  const empty = { seasons: [], classes: [], flagCounts: Object.fromEntries(QUEUE_FLAG_FILTER_LIST.map((k) => [k, 0])), total: 0, entries: [], conflicts: { count: 0, classes: [] as string[] } };
   if (!seasonIds.length) return empty;
   const [seasons, entries] = await Promise.all([
     Season.findAll({ where: { id: seasonIds }, order: [['name', 'ASC']] }),
@@ -54,13 +59,21 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
       limit: 1000,
     }),
   ]);
-  const ids = entries.map((e) => e.id);
-  const [insp, reviews] = await Promise.all([
+  // Entries of classes the judge competes in are decided by other judges: not on this desk at all.
+  const competing = await competingClassKeys(judgeId, seasonIds);
+  const conflicted = entries.filter((e) => isConflicted(competing, e));
+  const entriesShown = entries.filter((e) => !isConflicted(competing, e));
+  const ids = entriesShown.map((e) => e.id);
+  const reopenedIds = entriesShown.filter((e) => e.reopenedAt).map((e) => e.id);
+  const [insp, reviews, reopenings] = await Promise.all([
     latestInspections(ids),
     ids.length ? Review.findAll({ where: { entryId: ids }, attributes: ['entryId', 'judgeId', 'decision', 'createdAt'] }) : Promise.resolve([] as Review[]),
+    reopenedIds.length ? EntryReinspection.findAll({ where: { entryId: reopenedIds, fromState: 'verified', toState: 'submitted' }, order: [['id', 'DESC']] }) : Promise.resolve([] as EntryReinspection[]),
   ]);
+  const reopenedBy = new Map<number, EntryReinspection>();
+  for (const r of reopenings) if (!reopenedBy.has(r.entryId)) reopenedBy.set(r.entryId, r);
   const seasonById = new Map(seasons.map((s) => [s.id, s]));
-  const rows = entries.map((e) => {
+  const rows = entriesShown.map((e) => {
     const x = e as unknown as { entrant: User; class: ContestClass };
     const found = insp.get(e.id);
     const i = found?.done ?? null;
@@ -78,6 +91,10 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
       inspection: found ? { status: found.newest.status, estimatedTimeS: i?.estimatedTimeS ?? null, peakFlowMm3s: i?.peakFlowMm3s ?? null } : null,
       flags: flagKinds(i),
       verifications: { count: verifiers.length, required: requiredVerifications(season.verificationsRequired), byMe: verifiers.includes(judgeId) },
+      // Back from the standings after a re-inspection failed a blocking rule: what changed, rule by rule.
+      reopened: reopenedBy.has(e.id)
+        ? { at: reopenedBy.get(e.id)!.createdAt.toISOString(), changes: reopenedBy.get(e.id)!.changes.map((c) => ({ ...c, text: changeSentence(c) })) }
+        : null,
     };
   });
   const byFlag = (r: (typeof rows)[number]) => !filter.flag || r.flags.includes(filter.flag);
@@ -85,7 +102,7 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
   // Counts per class respect the flag filter, counts per flag respect the class filter, so each
   // number says how many rows choosing that option would show.
   const classCounts = new Map<number, { id: number; name: string; season: string; count: number }>();
-  for (const e of entries) {
+  for (const e of entriesShown) {
     const c = (e as unknown as { class: ContestClass }).class;
     if (!classCounts.has(c.id)) classCounts.set(c.id, { id: c.id, name: c.name, season: seasonById.get(e.seasonId)!.name, count: 0 });
   }
@@ -99,6 +116,8 @@ export async function reviewQueue(judgeId: number, filter: QueueFilter = {}) {
     flagCounts,
     total: rows.length,
     entries: shown,
+    /** Entries left off because the judge competes in their class (decided by other judges). */
+    conflicts: { count: conflicted.length, classes: [...new Set(conflicted.map((e) => (e as unknown as { class: ContestClass }).class.name))] },
   };
 }
 export type ReviewQueue = Awaited<ReturnType<typeof reviewQueue>>;

@@ -25,7 +25,7 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
   const judge = await requirePageRole('/judging', 'judge');
   const parsed = QueueFilterSchema.safeParse(await searchParams);
   const filter: QueueFilter = parsed.success ? parsed.data : {};
-  const { seasons, classes, flagCounts, total, entries } = await reviewQueue(judge.id, { ...filter, season: undefined });
+  const { seasons, classes, flagCounts, total, entries, conflicts } = await reviewQueue(judge.id, { ...filter, season: undefined });
   return (
     <div className="space-y-6">
       <h1>Review desk</h1>
@@ -55,6 +55,11 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
       </nav>
       <section className="card overflow-x-auto">
         <h2 className="mb-3">Waiting for review ({entries.length}{entries.length !== total ? ` of ${total}` : ''})</h2>
+        {conflicts.count > 0 && (
+          <p className="mb-3 text-sm text-ink-600" data-testid="conflict-note">
+            {conflicts.count} {conflicts.count === 1 ? 'entry is' : 'entries are'} left off: you compete in {conflicts.classes.join(', ')}, so other judges decide {conflicts.count === 1 ? 'it' : 'them'}.
+          </p>
+        )}
         {entries.length === 0 ? <p>Nothing is waiting{total ? ' with these filters' : ''}.</p> : (
           <table className="table" data-testid="queue">
             <thead><tr><th>#</th><th>Season</th><th>Class</th><th>Entrant</th><th>Claimed time</th><th>Estimated minimum</th><th>Flags</th><th>Verified</th><th>Submitted</th></tr></thead>
@@ -65,7 +70,9 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
                   <td>{e.season}</td><td>{e.class}</td><td>{e.entrant}</td>
                   <td className="num">{formatDurationMs(e.claimedTimeMs)}</td>
                   <td className="num">{formatDurationS(e.inspection?.estimatedTimeS)}</td>
-                  <td className="space-x-1">{e.flags.map((f) => <span key={f} className={`pill ${FLAG_TONE[f]}`}>{QUEUE_FLAG_FILTERS[f]}</span>)}{!e.inspection && <span className="pill bg-ink-100 text-ink-600">not inspected</span>}</td>
+                  <td className="space-x-1">{e.flags.map((f) => <span key={f} className={`pill ${FLAG_TONE[f]}`}>{QUEUE_FLAG_FILTERS[f]}</span>)}{!e.inspection && <span className="pill bg-ink-100 text-ink-600">not inspected</span>}{e.reopened && (
+                    <details className="mt-1 text-xs" data-testid="reopened-note"><summary>Back after re-inspection ({formatDateTime(e.reopened.at)})</summary><ul className="list-disc pl-4">{e.reopened.changes.map((c) => <li key={c.metric + c.sentence}>{c.text}</li>)}</ul></details>
+                  )}</td>
                   <td className="num">{e.verifications.count}/{e.verifications.required}{e.verifications.byMe ? ' (you)' : ''}</td>
                   <td>{formatDateTime(e.submittedAt)}</td>
                 </tr>

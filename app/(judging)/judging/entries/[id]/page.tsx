@@ -89,6 +89,15 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
           A new inspection (#{r.pendingInspection.id}) is {r.pendingInspection.status}{r.pendingInspection.error ? `: ${r.pendingInspection.error}` : ''}. The figures below are from the previous finished inspection; reload when it is done to see what changed.
         </p>
       )}
+      {r.reinspection?.reopened && r.entry.state === 'submitted' && (
+        <section className="card border-alarm-300" role="status" data-testid="reopened-banner">
+          <h2>Back from the standings</h2>
+          <p className="text-sm">
+            This entry was verified; the re-inspection of {formatDateTime(r.reinspection.at)} {r.reinspection.rulebookChanged ? 'after the rulebook changed' : 'requested by the organizer'} fails a blocking rule, so it left the standings and needs a new decision. What changed:
+          </p>
+          <ul className="list-disc pl-5 text-sm">{r.reinspection.changes.map((c) => <li key={c.metric + c.sentence}>{c.text}</li>)}</ul>
+        </section>
+      )}
       {r.changes && (
         <section className="card border-ember-300" data-testid="inspection-changes">
           <h2>What changed since the previous inspection</h2>
