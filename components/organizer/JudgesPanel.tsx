@@ -9,7 +9,7 @@ import { Outcome, TextInput } from '@/components/organizer/controls';
 
 export function JudgesPanel(props: {
   seasonId: number;
-  judges: { userId: number; name: string; email: string; appointedAt: string }[];
+  judges: { userId: number; name: string; email: string; appointedAt: string; conflicts: { id: number; name: string }[] }[];
   invitations: { id: number; email: string; expiresAt: string; sentAt: string }[];
   closed: string | null;
 }) {
@@ -44,7 +44,14 @@ export function JudgesPanel(props: {
         <ul className="divide-y divide-ink-100" data-testid="judge-list">
           {props.judges.map((j) => (
             <li key={j.userId} className="flex flex-wrap items-center justify-between gap-2 py-2">
-              <span><strong>{j.name}</strong> <span className="text-sm text-ink-500">{j.email}</span></span>
+              <span>
+                <strong>{j.name}</strong> <span className="text-sm text-ink-500">{j.email}</span>
+                {j.conflicts.length > 0 && (
+                  <span className="block text-sm text-alarm-700" data-testid={`judge-conflicts-${j.userId}`}>
+                    Competes in {j.conflicts.map((c) => c.name).join(', ')}: those entries are decided by other judges.
+                  </span>
+                )}
+              </span>
               {!props.closed && (
                 <button type="button" className="btn-quiet px-2 py-1" onClick={() => del(`/api/organizer/seasons/${props.seasonId}/judges/${j.userId}`, `Remove ${j.name} from the judges of this season?`)}>
                   Remove<span className="sr-only"> {j.name}</span>

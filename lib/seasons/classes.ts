@@ -47,7 +47,7 @@ async function withSlugCheck<T>(slug: string, fn: () => Promise<T>): Promise<T> 
 export async function createClass(actor: Actor, seasonId: number, input: ClassInput) {
   return withSlugCheck(input.slug, () =>
     getSequelize().transaction(async (transaction) => {
-      const season = await managedSeason(seasonId, transaction);
+      const season = await managedSeason(seasonId, transaction, actor);
       refuseWhenFinal(season.state);
       if (await ContestClass.findOne({ where: { seasonId, slug: input.slug }, transaction })) throw slugTaken(input.slug);
       const last = (await ContestClass.max('displayOrder', { where: { seasonId }, transaction })) as number | null;
@@ -61,7 +61,7 @@ export async function createClass(actor: Actor, seasonId: number, input: ClassIn
 export async function updateClass(actor: Actor, seasonId: number, classId: number, input: ClassInput) {
   return withSlugCheck(input.slug, () =>
     getSequelize().transaction(async (transaction) => {
-      const season = await managedSeason(seasonId, transaction);
+      const season = await managedSeason(seasonId, transaction, actor);
       refuseWhenFinal(season.state);
       const c = await ContestClass.findOne({ where: { id: classId, seasonId }, transaction });
       if (!c) throw notFound('No class with that id in this season.');
@@ -75,7 +75,7 @@ export async function updateClass(actor: Actor, seasonId: number, classId: numbe
 
 export async function deleteClass(actor: Actor, seasonId: number, classId: number) {
   return getSequelize().transaction(async (transaction) => {
-    const season = await managedSeason(seasonId, transaction);
+    const season = await managedSeason(seasonId, transaction, actor);
     refuseWhenFinal(season.state);
     const c = await ContestClass.findOne({ where: { id: classId, seasonId }, transaction });
     if (!c) throw notFound('No class with that id in this season.');
@@ -91,7 +91,7 @@ export async function deleteClass(actor: Actor, seasonId: number, classId: numbe
 
 export async function reorderClasses(actor: Actor, seasonId: number, classIds: number[]) {
   return getSequelize().transaction(async (transaction) => {
-    await managedSeason(seasonId, transaction);
+    await managedSeason(seasonId, transaction, actor);
     const classes = await seasonClasses(seasonId, transaction);
     const known = new Set(classes.map((c) => c.id));
     if (classIds.length !== known.size || new Set(classIds).size !== classIds.length || classIds.some((id) => !known.has(id)))

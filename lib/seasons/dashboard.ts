@@ -3,6 +3,7 @@ import { QueryTypes } from 'sequelize';
 import { Entry, Season, SeasonJudge, User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { ENTRY_STATES, type EntryState } from '@/lib/domain';
+import { organizedSeasonIds } from '@/lib/seasons/context';
 
 export interface JudgeLoad {
   userId: number;
@@ -26,9 +27,12 @@ export interface SeasonDashboard {
   judges: JudgeLoad[];
 }
 
-export async function organizerDashboard(opts: { seasonId?: number; now?: Date } = {}): Promise<SeasonDashboard[]> {
+/** `organizerId`: only the seasons this organizer runs (created or co-organizes). */
+export async function organizerDashboard(opts: { seasonId?: number; organizerId?: number; now?: Date } = {}): Promise<SeasonDashboard[]> {
   const now = opts.now ?? new Date();
-  const where = opts.seasonId ? { id: opts.seasonId } : {};
+  const scope = opts.organizerId !== undefined ? await organizedSeasonIds(opts.organizerId) : null;
+  const ids0 = opts.seasonId ? [opts.seasonId].filter((id) => !scope || scope.includes(id)) : scope;
+  const where = ids0 ? { id: ids0 } : {};
   const seasons = await Season.findAll({ where, order: [['opensAt', 'DESC'], ['id', 'DESC']] });
   const ids = seasons.map((s) => s.id);
   if (!ids.length) return [];

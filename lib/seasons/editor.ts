@@ -34,7 +34,7 @@ export async function createSeason(actor: Actor, input: SeasonInput): Promise<Se
 export async function updateSeason(actor: Actor, seasonId: number, input: SeasonInput): Promise<Season> {
   try {
     return await getSequelize().transaction(async (transaction) => {
-      const season = await managedSeason(seasonId, transaction);
+      const season = await managedSeason(seasonId, transaction, actor);
       if (season.state === 'final' || season.state === 'archived')
         throw conflict(`The season is ${season.state}: its settings are frozen with its standings.`);
       if (input.slug !== season.slug && (await Season.findOne({ where: { slug: input.slug, id: { [Op.ne]: season.id } }, transaction })))

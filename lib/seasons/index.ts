@@ -3,7 +3,8 @@
  * subscriptions and the organizer dashboard. Client code imports lib/seasons/schemas, time and
  * markdown directly (they carry no database code).
  */
-export { managedSeason, requireOrganizer, type Actor } from './context';
+export { managedSeason, organizesSeason, organizedSeasonIds, requireOrganizer, type Actor } from './context';
+export { seasonOrganizers, addCoOrganizer, removeCoOrganizer, type SeasonOrganizerView } from './organizers';
 export { createSeason, updateSeason, seasonFormValues, seasonJson } from './editor';
 export { TEST_PIECE_UPLOAD, saveTestPiece, testPieceJson } from './testPiece';
 export { measureStlFile } from './stlMeasure';

@@ -12,12 +12,19 @@ import { sendMail, appUrl, linkMail } from '@/lib/mail';
 import { HttpError, conflict, notFound } from '@/lib/errors';
 import { ROLES } from '@/lib/domain';
 import { managedSeason, type Actor } from '@/lib/seasons/context';
+import { competingClasses } from '@/lib/reviews/conflicts';
 
 export const INVITATION_TTL_MS = 7 * 24 * 3600_000;
 const sha256 = (s: string) => crypto.createHash('sha256').update(s).digest('hex');
 
 function refuseWhenClosed(season: Season) {
   if (season.state === 'final' || season.state === 'archived') throw conflict(`The season is ${season.state}: judging is over, so its judges no longer change.`);
+}
+
+/** An organizer who competes in the season cannot make themselves its judge. */
+function selfJudgeRefusal(classes: { name: string }[]) {
+  const msg = `You have an entry in ${classes.map((c) => c.name).join(', ')} this season, so you cannot judge it yourself. Appoint someone who does not compete.`;
+  return conflict(msg, { email: msg });
 }
 
 /** Grants the judge role if missing; audited as a role change. */
@@ -36,32 +43,36 @@ export async function seasonJudges(seasonId: number) {
   ]);
   const users = await User.findAll({ where: { id: rows.map((r) => r.userId) }, attributes: ['id', 'name', 'email'] });
   const byId = new Map(users.map((u) => [u.id, u]));
+  // Classes each judge competes in this season: they neither see nor decide those entries.
+  const conflicts = await Promise.all(rows.map((r) => competingClasses(r.userId, seasonId)));
   return {
-    judges: rows.map((r) => ({ userId: r.userId, name: byId.get(r.userId)?.name ?? '—', email: byId.get(r.userId)?.email ?? '', appointedAt: r.createdAt.toISOString() })),
+    judges: rows.map((r, i) => ({ userId: r.userId, name: byId.get(r.userId)?.name ?? '—', email: byId.get(r.userId)?.email ?? '', appointedAt: r.createdAt.toISOString(), conflicts: conflicts[i] })),
     invitations: invitations.map((i) => ({ id: i.id, email: i.email, expiresAt: i.expiresAt.toISOString(), sentAt: i.createdAt.toISOString() })),
   };
 }
 
 export async function appointJudge(actor: Actor, seasonId: number, email: string) {
-  const { season, user } = await getSequelize().transaction(async (transaction) => {
-    const season = await managedSeason(seasonId, transaction);
+  const { season, user, conflicts } = await getSequelize().transaction(async (transaction) => {
+    const season = await managedSeason(seasonId, transaction, actor);
     refuseWhenClosed(season);
     const user = await User.findOne({ where: { email }, transaction });
     if (!user) throw new HttpError(404, 'No account uses that address.', { email: 'No account uses this address; send an invitation instead.' });
     if (await SeasonJudge.findOne({ where: { seasonId, userId: user.id }, transaction }))
       throw conflict(`${user.name} already judges this season.`, { email: `${user.name} already judges this season.` });
+    const conflicts = await competingClasses(user.id, seasonId, transaction);
+    if (user.id === actor.user.id && conflicts.length) throw selfJudgeRefusal(conflicts);
     await ensureJudgeRole(user, actor.user.id, actor.ip, `appointed judge of season ${season.slug}`, transaction);
     await SeasonJudge.create({ seasonId, userId: user.id, appointedById: actor.user.id }, { transaction });
     await audit('season.judge_appointed', { type: 'season', id: seasonId }, { actorId: actor.user.id, ip: actor.ip, details: { userId: user.id }, transaction });
-    return { season, user };
+    return { season, user, conflicts };
   });
   await sendMail(linkMail(user.email, `You judge ${season.name}`, `Hello ${user.name}, ${actor.user.name} appointed you as a judge of ${season.name}. Submitted entries of this season appear on your review desk.`, 'Open the review desk', appUrl('/judging'), 'You never see or decide your own entries.'));
-  return { userId: user.id, name: user.name };
+  return { userId: user.id, name: user.name, conflicts };
 }
 
 export async function removeJudge(actor: Actor, seasonId: number, userId: number) {
   return getSequelize().transaction(async (transaction) => {
-    const season = await managedSeason(seasonId, transaction);
+    const season = await managedSeason(seasonId, transaction, actor);
     refuseWhenClosed(season);
     const removed = await SeasonJudge.destroy({ where: { seasonId, userId }, transaction });
     if (!removed) throw notFound('That account does not judge this season.');
@@ -73,9 +84,13 @@ export async function removeJudge(actor: Actor, seasonId: number, userId: number
 export async function inviteJudge(actor: Actor, seasonId: number, email: string, now = new Date()) {
   const token = crypto.randomBytes(32).toString('base64url');
   const { season, invitation } = await getSequelize().transaction(async (transaction) => {
-    const season = await managedSeason(seasonId, transaction);
+    const season = await managedSeason(seasonId, transaction, actor);
     refuseWhenClosed(season);
     const existing = await User.findOne({ where: { email }, attributes: ['id', 'name'], transaction });
+    if (existing?.id === actor.user.id) {
+      const mine = await competingClasses(actor.user.id, seasonId, transaction);
+      if (mine.length) throw selfJudgeRefusal(mine);
+    }
     if (existing && (await SeasonJudge.findOne({ where: { seasonId, userId: existing.id }, transaction })))
       throw conflict(`${existing.name} already judges this season.`, { email: 'This address already judges this season.' });
     // A newer invitation replaces an older one to the same address.
@@ -102,7 +117,7 @@ export async function inviteJudge(actor: Actor, seasonId: number, email: string,
 
 export async function revokeInvitation(actor: Actor, seasonId: number, invitationId: number) {
   return getSequelize().transaction(async (transaction) => {
-    await managedSeason(seasonId, transaction);
+    await managedSeason(seasonId, transaction, actor);
     const [n] = await JudgeInvitation.update({ revokedAt: new Date() }, { where: { id: invitationId, seasonId, acceptedAt: null, revokedAt: null }, transaction });
     if (!n) throw notFound('No open invitation with that id in this season.');
   });

@@ -75,7 +75,7 @@ export function freezeOf(season: Season, submitted: number): RulesFreeze | null 
 
 export async function saveRulebook(actor: Actor, seasonId: number, input: RulebookInput) {
   const result = await getSequelize().transaction(async (transaction) => {
-    const season = await managedSeason(seasonId, transaction);
+    const season = await managedSeason(seasonId, transaction, actor);
     const freeze = await rulesFreeze(season, transaction);
     if (freeze && !(freeze.reinspectAllowed && input.reinspect)) throw new HttpError(409, freeze.reason, undefined, 'rules_frozen');
     const classIds = new Set((await ContestClass.findAll({ where: { seasonId }, attributes: ['id'], transaction })).map((c) => c.id));

@@ -152,3 +152,4 @@ export const SeasonParams = z.object({ id: positiveId('The season id') });
 export const ClassParams = z.object({ id: positiveId('The season id'), classId: positiveId('The class id') });
 export const JudgeParams = z.object({ id: positiveId('The season id'), userId: positiveId('The user id') });
 export const InvitationParams = z.object({ id: positiveId('The season id'), invitationId: positiveId('The invitation id') });
+export const OrganizerParams = z.object({ id: positiveId('The season id'), userId: positiveId('The user id') });

@@ -39,7 +39,7 @@ export function testPieceJson(tp: TestPiece | null) {
 export async function saveTestPiece(actor: Actor, seasonId: number, upload: UploadResult) {
   try {
     const file = upload.files.file[0];
-    const season = await managedSeason(seasonId);
+    const season = await managedSeason(seasonId, undefined, actor);
     const entries = await submittedEntryCount(seasonId);
     if (entries > 0 || season.state === 'final' || season.state === 'archived')
       throw conflict(`The test piece cannot change: ${entries > 0 ? `${entries} entries were already printed against it` : `the season is ${season.state}`}.`);

@@ -2,7 +2,8 @@
 import { Op } from 'sequelize';
 import { Rule, Season, TestPiece } from '@/models';
 import type { SeasonState } from '@/lib/domain';
-import { managedSeason } from '@/lib/seasons/context';
+import { managedSeason, type Actor } from '@/lib/seasons/context';
+import { seasonOrganizers } from '@/lib/seasons/organizers';
 import { seasonJson } from '@/lib/seasons/editor';
 import { testPieceJson } from '@/lib/seasons/testPiece';
 import { classJson, seasonClasses } from '@/lib/seasons/classes';
@@ -25,12 +26,12 @@ export async function publicSeason(slug: string) {
 }
 
 /** Everything the organizer's season page and its GET route show, in one plain object. */
-export async function organizerSeasonView(seasonId: number) {
-  const season = await managedSeason(seasonId);
+export async function organizerSeasonView(actor: Pick<Actor, 'user'>, seasonId: number) {
+  const season = await managedSeason(seasonId, undefined, actor);
   const next = NEXT_STATE[season.state as SeasonState];
   const testPieceRead = TestPiece.findOne({ where: { seasonId } });
   const classesRead = seasonClasses(seasonId);
-  const [testPiece, classes, rules, judges, subscribers, [dashboard], blockers, submittedEntries] = await Promise.all([
+  const [testPiece, classes, rules, judges, subscribers, [dashboard], blockers, submittedEntries, organizers] = await Promise.all([
     testPieceRead,
     classesRead,
     rulebookRules(seasonId),
@@ -39,6 +40,7 @@ export async function organizerSeasonView(seasonId: number) {
     organizerDashboard({ seasonId }),
     next ? Promise.all([testPieceRead, classesRead]).then(([t, c]) => transitionBlockers(season, next, { testPiece: t, classes: c })) : Promise.resolve([] as string[]),
     submittedEntryCount(seasonId),
+    seasonOrganizers(season),
   ]);
   return {
     season: seasonJson(season),
@@ -49,6 +51,7 @@ export async function organizerSeasonView(seasonId: number) {
     ...judges,
     subscribers,
     submittedEntries,
+    organizers,
     dashboard,
     next: next ? { to: next, blockers } : null,
   };

@@ -8,8 +8,8 @@ import { ENTRY_STATES } from '@/lib/domain';
 export const metadata = { title: 'Organize' };
 
 export default async function OrganizePage() {
-  await requirePageRole('/organize', 'organizer');
-  const seasons = await organizerDashboard();
+  const user = await requirePageRole('/organize', 'organizer');
+  const seasons = await organizerDashboard({ organizerId: user.id });
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-center justify-between gap-3">

@@ -3,8 +3,8 @@ import { createSeason, organizerDashboard, requireOrganizer, seasonJson } from '
 import { SeasonInputSchema } from '@/lib/seasons/schemas';
 
 export const GET = route(async (req) => {
-  await requireOrganizer(req);
-  return Response.json({ seasons: await organizerDashboard() });
+  const actor = await requireOrganizer(req);
+  return Response.json({ seasons: await organizerDashboard({ organizerId: actor.user.id }) });
 });
 
 export const POST = route(async (req) => {

@@ -10,16 +10,17 @@ import { ClassesEditor } from '@/components/organizer/ClassesEditor';
 import { RulebookEditor } from '@/components/organizer/RulebookEditor';
 import { LifecyclePanel } from '@/components/organizer/LifecyclePanel';
 import { JudgesPanel } from '@/components/organizer/JudgesPanel';
+import { OrganizersPanel } from '@/components/organizer/OrganizersPanel';
 import { ENTRY_STATES } from '@/lib/domain';
 
 export const metadata = { title: 'Season' };
 
 export default async function SeasonAdminPage({ params }: { params: Promise<{ id: string }> }) {
   const { id: raw } = await params;
-  await requirePageRole(`/organize/seasons/${raw}`, 'organizer');
+  const user = await requirePageRole(`/organize/seasons/${raw}`, 'organizer');
   const id = Number(raw);
   if (!Number.isInteger(id) || id <= 0) notFound();
-  const view = await organizerSeasonView(id).catch((err) => {
+  const view = await organizerSeasonView({ user }, id).catch((err) => {
     if (err instanceof HttpError && err.status === 404) notFound();
     throw err;
   });
@@ -72,6 +73,11 @@ export default async function SeasonAdminPage({ params }: { params: Promise<{ id
       <section className={section} aria-labelledby="h-judges">
         <h2 id="h-judges">Judges</h2>
         <JudgesPanel seasonId={season.id} judges={view.judges} invitations={view.invitations} closed={closed} />
+      </section>
+
+      <section className={section} aria-labelledby="h-organizers">
+        <h2 id="h-organizers">Organizers</h2>
+        <OrganizersPanel seasonId={season.id} organizers={view.organizers} />
       </section>
     </div>
   );

@@ -1,15 +1,14 @@
 import { route, readBody, parseInput } from '@/lib/http';
-import { managedSeason, requireOrganizer, seasonJson, updateSeason } from '@/lib/seasons';
+import { requireOrganizer, seasonJson, updateSeason } from '@/lib/seasons';
 import { SeasonInputSchema, SeasonParams } from '@/lib/seasons/schemas';
 import { organizerSeasonView } from '@/lib/seasons/view';
 
 type Ctx = { params: Promise<{ id: string }> };
 
 export const GET = route<Ctx>(async (req, ctx) => {
-  await requireOrganizer(req);
+  const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
-  await managedSeason(id);
-  return Response.json(await organizerSeasonView(id));
+  return Response.json(await organizerSeasonView(actor, id));
 });
 
 export const PUT = route<Ctx>(async (req, ctx) => {

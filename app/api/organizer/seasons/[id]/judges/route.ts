@@ -5,9 +5,9 @@ import { JudgeByEmailSchema, SeasonParams } from '@/lib/seasons/schemas';
 type Ctx = { params: Promise<{ id: string }> };
 
 export const GET = route<Ctx>(async (req, ctx) => {
-  await requireOrganizer(req);
+  const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
-  await managedSeason(id);
+  await managedSeason(id, undefined, actor);
   return Response.json(await seasonJudges(id));
 });
 
@@ -17,5 +17,8 @@ export const POST = route<Ctx>(async (req, ctx) => {
   const { id } = parseInput(SeasonParams, await ctx.params);
   const { email } = await readBody(req, JudgeByEmailSchema);
   const judge = await appointJudge(actor, id, email);
-  return Response.json({ judge, message: `${judge.name} now judges this season.` }, { status: 201 });
+  const note = judge.conflicts.length
+    ? ` ${judge.name} competes in ${judge.conflicts.map((c) => c.name).join(', ')}: entries of ${judge.conflicts.length === 1 ? 'that class' : 'those classes'} are left off their desk and decided by other judges.`
+    : '';
+  return Response.json({ judge, message: `${judge.name} now judges this season.${note}` }, { status: 201 });
 });

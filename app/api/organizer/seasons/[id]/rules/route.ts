@@ -5,9 +5,9 @@ import { RulebookInputSchema, SeasonParams } from '@/lib/seasons/schemas';
 type Ctx = { params: Promise<{ id: string }> };
 
 export const GET = route<Ctx>(async (req, ctx) => {
-  await requireOrganizer(req);
+  const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
-  const season = await managedSeason(id);
+  const season = await managedSeason(id, undefined, actor);
   return Response.json({ rules: await rulebookRules(id), freeze: await rulesFreeze(season) });
 });
 

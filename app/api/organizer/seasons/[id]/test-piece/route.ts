@@ -8,7 +8,7 @@ type Ctx = { params: Promise<{ id: string }> };
 export const POST = route<Ctx>(async (req, ctx) => {
   const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
-  await managedSeason(id);
+  await managedSeason(id, undefined, actor);
   // Refuses an oversized upload by its declared length before reading any of it (413).
   const upload = await receiveUpload(req, TEST_PIECE_UPLOAD);
   const result = await saveTestPiece(actor, id, upload);
