@@ -1,18 +1,17 @@
 /**
- * Entry files: G-code and photo checks by content, storage under one key scheme, and who may read
- * a stored file. Others' private files answer 404.
+ * Entry files: G-code and photo checks by content and storage under one key scheme. Who may read a
+ * stored file is decided in one place: lib/storage/access.ts.
  */
 import fs from 'node:fs';
 import crypto from 'node:crypto';
 import zlib from 'node:zlib';
 import type { Transaction } from 'sequelize';
-import { Entry, SeasonJudge, StoredFile, Season, TestPiece } from '@/models';
+import { StoredFile } from '@/models';
 import { HttpError } from '@/lib/errors';
 import { sniffBytes, sniffFile, type SniffedType } from '@/lib/uploads/sniff';
 import type { UploadSpec, UploadedFile } from '@/lib/uploads';
 import { putFile, removeFile } from '@/lib/storage';
 import { processPhoto, type PhotoType, type ProcessedPhoto } from '@/lib/photos';
-import { hasRole } from '@/lib/auth/guard';
 import type { StoredFileKind } from '@/lib/domain';
 import { ENTRY_DETAIL_FIELDS } from './schema';
 
@@ -168,33 +167,4 @@ export class FileWriter {
   async undo() {
     await Promise.all(this.moved.map((k) => removeFile(k).catch(() => {})));
   }
-}
-
-/** Public kinds once an entry is verified: cleaned photos and their thumbnails (never G-code or project files). */
-const PUBLIC_KINDS: StoredFileKind[] = ['photo', 'thumbnail'];
-
-/**
- * May this reader see this file? Owner; organizers and admins; judges of the entry's season;
- * anyone for photos of verified entries and for the test piece of a published season.
- */
-export async function canReadFile(user: { id: number; roles: string[] } | null, file: StoredFile): Promise<boolean> {
-  if (file.kind === 'test_piece') {
-    // Public once the season is published; a draft season's piece only for organizers and admins.
-    const piece = await TestPiece.findOne({ where: { storedFileId: file.id }, include: [{ model: Season, attributes: ['state'] }] });
-    const state = (piece as unknown as { Season?: Season } | null)?.Season?.state;
-    return (state !== undefined && state !== 'draft') || (!!user && hasRole(user as never, ['organizer', 'admin']));
-  }
-  if (!file.entryId) return !!user && (file.ownerId === user.id || hasRole(user as never, ['organizer', 'admin']));
-  const entry = await Entry.findByPk(file.entryId, { attributes: ['id', 'entrantId', 'seasonId', 'state'] });
-  if (!entry) return false;
-  if (user && entry.entrantId === user.id) return true;
-  if (file.meta?.replacedAt && !(user && hasRole(user as never, ['judge', 'organizer', 'admin']))) return false;
-  if (PUBLIC_KINDS.includes(file.kind) && entry.state === 'verified') {
-    const season = await Season.findByPk(entry.seasonId, { attributes: ['id', 'state'] });
-    if (season && season.state !== 'draft') return true;
-  }
-  if (!user) return false;
-  if (hasRole(user as never, ['organizer', 'admin'])) return true;
-  if (hasRole(user as never, ['judge'])) return !!(await SeasonJudge.findOne({ where: { seasonId: entry.seasonId, userId: user.id } }));
-  return false;
 }

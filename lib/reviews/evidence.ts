@@ -4,46 +4,28 @@
  * written to the audit log.
  */
 import fs from 'node:fs';
-import { Readable } from 'node:stream';
-import { StoredFile } from '@/models';
-import { audit } from '@/lib/audit';
 import { HttpError, notFound } from '@/lib/errors';
-import { exists, localPath, openRead, putBuffer } from '@/lib/storage';
+import { exists, localPath, putBuffer } from '@/lib/storage';
+import { fileResponse, readableFile, type FileReader } from '@/lib/storage/access';
+import { auditEvidenceView } from './evidenceAudit';
 import { buildPreviewFromFile, PREVIEW_VERSION, type ToolpathPreview } from '@/lib/inspection/preview';
 import { InspectionError } from '@/lib/inspection/reader';
 import { reviewableEntry } from './access';
 import { currentGcode } from '@/lib/entries/inspection';
 
-const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode'];
+const JUDGE_FILE_KINDS = ['photo', 'thumbnail', 'gcode', 'project'] as const;
 
-/** What a judge looked at; other file routes that serve private evidence to judges call this too. */
-export type EvidenceView = 'review' | 'photo' | 'gcode' | 'project' | 'evidence_link' | 'toolpath_preview';
+export { auditEvidenceView, type EvidenceView } from './evidenceAudit';
 
-export async function auditEvidenceView(actorId: number, entryId: number, view: EvidenceView, extra: { fileId?: number; url?: string; ip?: string | null } = {}) {
-  const { ip, ...details } = extra;
-  await audit('evidence.viewed', { type: 'entry', id: entryId }, { actorId, ip: ip ?? null, details: { view, ...details } });
-}
-
-/** A stored file of the entry as a streamed response; full-size photos and G-code are audited. */
-export async function judgeFile(judgeId: number, entryId: number, fileId: number, opts: { thumb?: boolean; ip?: string | null } = {}): Promise<Response> {
-  const entry = await reviewableEntry(judgeId, entryId);
-  const file = Number.isSafeInteger(fileId) ? await StoredFile.findOne({ where: { id: fileId, entryId: entry.id } }) : null;
-  if (!file || !JUDGE_FILE_KINDS.includes(file.kind)) throw notFound('This entry has no such file.');
-  if (!(await exists(file.storageKey))) throw notFound('The file is missing from storage.');
-  if (file.kind !== 'thumbnail' && !opts.thumb) {
-    await auditEvidenceView(judgeId, entry.id, file.kind as EvidenceView, { fileId: file.id, ip: opts.ip });
-  }
-  const body = Readable.toWeb(openRead(file.storageKey)) as ReadableStream;
-  const download = file.kind === 'gcode';
-  return new Response(body, {
-    headers: {
-      'content-type': download ? 'application/octet-stream' : file.mime,
-      'content-length': String(file.sizeBytes),
-      'cache-control': 'private, no-store',
-      'x-content-type-options': 'nosniff',
-      'content-disposition': `${download ? 'attachment' : 'inline'}; filename="${file.originalName.replace(/[^\w.-]+/g, '_')}"`,
-    },
-  });
+/**
+ * A stored file of the entry as a streamed response, under the one file access rule
+ * (lib/storage/access: judges of the season, not drafts, not their own or conflicted entries);
+ * full-size photos, G-code and project files are audited there.
+ */
+export async function judgeFile(judge: FileReader, entryId: number, fileId: number, opts: { thumb?: boolean; ip?: string | null } = {}): Promise<Response> {
+  const entry = await reviewableEntry(judge.id, entryId);
+  const { file, grant } = await readableFile(judge, fileId, { entryId: entry.id, kinds: JUDGE_FILE_KINDS, thumb: opts.thumb, ip: opts.ip });
+  return fileResponse(file, grant);
 }
 
 /** Audits the click on the entrant's evidence link and returns where to send the judge. */

@@ -366,17 +366,6 @@ export async function publicEntry(id: number): Promise<PublicEntry> {
   };
 }
 
-/** A photo of a verified entry: its storage key and type, or 404. */
-export async function publicPhoto(entryId: number, fileId: number): Promise<{ key: string; mime: string; name: string }> {
-  const [f] = await select<{ storage_key: string; mime: string; original_name: string }>(
-    `SELECT f.storage_key, f.mime, f.original_name FROM stored_files f JOIN entries e ON e.id = f.entry_id JOIN seasons s ON s.id = e.season_id
-     WHERE f.id = ? AND f.entry_id = ? AND f.kind = 'photo' AND e.state = 'verified' AND s.state <> 'draft'`,
-    [fileId, entryId],
-  );
-  if (!f) throw notFound('No such photo of a verified entry.');
-  return { key: f.storage_key, mime: f.mime, name: f.original_name };
-}
-
 interface HistoryRow extends EntryFigures {
   season_id: number;
   class_id: number;
