@@ -17,6 +17,8 @@ const signedIn = async (key: string) => {
 };
 
 const reject = { decision: 'reject', reasonCodes: ['timing_unconfirmed', 'layer_shift'], note: 'The video cuts before the last layer; a layer shift shows at 12 mm.' };
+/** judge2 competes in Open · 0.4 mm of the demo season: entries both judges decide go in another class. */
+const NOT_JUDGE2S_CLASS = { classSlug: 'compact-04' };
 const verify = { decision: 'verify', reasonCodes: ['evidence_consistent'], note: 'Clean run, timing matches the video.' };
 
 let frostId: number;
@@ -129,7 +131,7 @@ describe('who may decide', () => {
 
 describe('decisions', () => {
   it('a rejection is a review row, changes the state, e-mails the entrant the reasons and is audited', async () => {
-    const { entryId } = await createReviewableEntry(dbFile);
+    const { entryId } = await createReviewableEntry(dbFile, NOT_JUDGE2S_CLASS);
     const res = await clients.judge.post(`/api/judging/entries/${entryId}/decisions`, reject);
     expect(res.status).toBe(201);
     const body = await res.json();
@@ -160,7 +162,7 @@ describe('decisions', () => {
 
   it('two judges deciding at the same moment leave one consistent state', async () => {
     for (let round = 0; round < 4; round++) {
-      const entryId = await createSubmittedEntry(dbFile);
+      const entryId = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
       const path = `/api/judging/entries/${entryId}/decisions`;
       const [a, b] = await Promise.all([clients.judge.post(path, reject), clients.judge2.post(path, verify)]);
       const statuses = [a.status, b.status].sort();
@@ -179,7 +181,7 @@ describe('decisions', () => {
   it('with two verifying judges required, an entry counts only after two different judges verify it — even at the same moment', async () => {
     await sql(dbFile, 'UPDATE seasons SET verifications_required = 2 WHERE id = ?', [frostId]);
     try {
-      const entryId = await createSubmittedEntry(dbFile);
+      const entryId = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
       const path = `/api/judging/entries/${entryId}/decisions`;
       let res = await clients.judge.post(path, verify);
       expect(res.status).toBe(201);
@@ -192,7 +194,7 @@ describe('decisions', () => {
       expect(await res.json()).toMatchObject({ entryState: 'verified', verifications: { count: 2, required: 2 }, mailed: true });
 
       // Simultaneous verifications by both judges: both count, and the entry ends verified exactly once.
-      const e2 = await createSubmittedEntry(dbFile);
+      const e2 = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
       const p2 = `/api/judging/entries/${e2}/decisions`;
       const both = await Promise.all([clients.judge.post(p2, verify), clients.judge2.post(p2, verify)]);
       expect(both.map((r) => r.status)).toEqual([201, 201]);
