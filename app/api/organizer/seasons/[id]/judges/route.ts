@@ -15,6 +15,7 @@ export const GET = route<Ctx>(async (req, ctx) => {
 export const POST = route<Ctx>(async (req, ctx) => {
   const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
+  await managedSeason(id, undefined, actor);
   const { email } = await readBody(req, JudgeByEmailSchema);
   const judge = await appointJudge(actor, id, email);
   const note = judge.conflicts.length

@@ -14,6 +14,7 @@ export const GET = route<Ctx>(async (req, ctx) => {
 export const POST = route<Ctx>(async (req, ctx) => {
   const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
+  await managedSeason(id, undefined, actor);
   const { email } = await readBody(req, JudgeByEmailSchema);
   const organizer = await addCoOrganizer(actor, id, email);
   return Response.json({ organizer, message: `${organizer.name} now co-organizes this season.` }, { status: 201 });

@@ -15,6 +15,7 @@ export const GET = route<Ctx>(async (req, ctx) => {
 export const PUT = route<Ctx>(async (req, ctx) => {
   const actor = await requireOrganizer(req);
   const { id } = parseInput(SeasonParams, await ctx.params);
+  await managedSeason(id, undefined, actor);
   const input = await readBody(req, RulebookInputSchema);
   const result = await saveRulebook(actor, id, input);
   const re = result.reinspection ? ` ${result.reinspection.queued} entries are queued for inspection under the new rules.` : '';
