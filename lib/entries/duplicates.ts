@@ -57,31 +57,35 @@ async function backfill(excludeFileId: number) {
 }
 
 /**
- * The oldest other entrant's non-withdrawn entry whose G-code (any upload not replaced) matches this
- * entry's file by raw hash, decompressed content or moves; null when there is none.
+ * The first other entrant's non-withdrawn entry whose G-code (an upload not replaced) matches this
+ * entry's file by raw hash, decompressed content or moves, and was uploaded BEFORE it; null when
+ * there is none. Only earlier uploads count: whoever uploads a copy later is the one flagged, so a
+ * copier cannot knock out the original entry (its re-inspection would otherwise find the copy).
  */
 export async function findDuplicate(entry: Pick<Entry, 'id' | 'entrantId'>, gcodeSha256: string): Promise<Duplicate | null> {
   const file = await StoredFile.findOne({ where: { entryId: entry.id, kind: 'gcode', sha256: gcodeSha256 }, order: [['id', 'DESC']] });
-  const fp = file ? await fingerprintOf(file) : null;
-  if (file) await backfill(file.id);
-  const others = { entrantId: { [Op.ne]: entry.entrantId }, state: { [Op.ne]: 'withdrawn' } };
-  const byRaw = await Entry.findOne({ where: { gcodeSha256, ...others }, order: [['id', 'ASC']], attributes: ['id'] });
-  let best: Duplicate | null = byRaw ? { entryId: byRaw.id, match: 'same_file' } : null;
-  if (fp) {
-    const rows = await getSequelize().query<{ entry_id: number; content_sha256: string; meta: unknown }>(
-      `SELECT e.id AS entry_id, g.content_sha256, f.meta FROM gcode_fingerprints g
-       JOIN stored_files f ON f.id = g.stored_file_id JOIN entries e ON e.id = f.entry_id
-       WHERE (g.content_sha256 = :content OR g.moves_sha256 = :moves) AND f.kind = 'gcode'
-         AND e.entrant_id <> :entrant AND e.state <> 'withdrawn' AND e.id <> :entry
-       ORDER BY e.id ASC`,
-      { replacements: { content: fp.contentSha256, moves: fp.movesSha256, entrant: entry.entrantId, entry: entry.id }, type: QueryTypes.SELECT },
-    );
-    // A replaced upload is no longer the entry's G-code.
-    const replaced = (meta: unknown) => !!(typeof meta === 'string' ? JSON.parse(meta || '{}') : (meta ?? {}))?.replacedAt;
-    const first = rows.find((r) => !replaced(r.meta));
-    if (first && (!best || first.entry_id < best.entryId)) {
-      best = { entryId: first.entry_id, match: first.content_sha256 === fp.contentSha256 ? 'same_content' : 'same_moves' };
-    }
+  if (!file) {
+    // No stored upload to compare (should not happen for an inspection): the raw hash of earlier entries.
+    const byRaw = await Entry.findOne({ where: { gcodeSha256, entrantId: { [Op.ne]: entry.entrantId }, state: { [Op.ne]: 'withdrawn' }, id: { [Op.lt]: entry.id } }, order: [['id', 'ASC']], attributes: ['id'] });
+    return byRaw ? { entryId: byRaw.id, match: 'same_file' } : null;
   }
-  return best;
+  const fp = await fingerprintOf(file);
+  await backfill(file.id);
+  const rows = await getSequelize().query<{ entry_id: number; file_id: number; sha256: string; content_sha256: string | null; meta: unknown }>(
+    `SELECT e.id AS entry_id, f.id AS file_id, f.sha256, g.content_sha256, f.meta FROM stored_files f
+     JOIN entries e ON e.id = f.entry_id LEFT JOIN gcode_fingerprints g ON g.stored_file_id = f.id
+     WHERE f.kind = 'gcode' AND f.id < :file AND e.entrant_id <> :entrant AND e.state <> 'withdrawn' AND e.id <> :entry
+       AND (f.sha256 = :sha ${fp ? 'OR g.content_sha256 = :content OR g.moves_sha256 = :moves' : ''})
+     ORDER BY f.id ASC`,
+    {
+      replacements: { file: file.id, entrant: entry.entrantId, entry: entry.id, sha: gcodeSha256, content: fp?.contentSha256 ?? '', moves: fp?.movesSha256 ?? '' },
+      type: QueryTypes.SELECT,
+    },
+  );
+  // A replaced upload is no longer the entry's G-code.
+  const replaced = (meta: unknown) => !!(typeof meta === 'string' ? JSON.parse(meta || '{}') : (meta ?? {}))?.replacedAt;
+  const first = rows.find((r) => !replaced(r.meta));
+  if (!first) return null;
+  const match: DuplicateMatch = first.sha256 === gcodeSha256 ? 'same_file' : fp && first.content_sha256 === fp.contentSha256 ? 'same_content' : 'same_moves';
+  return { entryId: first.entry_id, match };
 }

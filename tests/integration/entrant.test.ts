@@ -293,8 +293,9 @@ describe('an entry from upload to submission', () => {
 
 describe('a returned entry', () => {
   it('is resubmitted only with new files, re-inspected, and mailed', async () => {
-    // Own copy of the compliant G-code (one comment added), so it is not a duplicate of another entrant's upload.
-    const own = Buffer.concat([gunzipSync(gcode020), Buffer.from('\n; maker resubmission copy\n')]);
+    // Own copy of the compliant G-code with one harmless command of its own (a display message), so it is not a
+    // duplicate of another entrant's upload: an added comment alone would still match (duplicates ignore comments).
+    const own = Buffer.concat([gunzipSync(gcode020), Buffer.from('\nM117 Maker resubmission copy\n')]);
     const res = await postForm(maker, '/api/entries', form(details(), [
       { field: 'gcode', name: 'beacon.gcode', data: own, type: 'text/plain' },
       { field: 'photos', name: 'front.jpg', data: await photo() },

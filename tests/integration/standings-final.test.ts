@@ -19,6 +19,8 @@ describe('publishing final standings', () => {
     await insertEntry(db, { seasonId: s.seasonId, classId: s.classIds.open, entrantId: b, machineId: mb, timeMs: 1_350_000, submittedAt: '2026-11-11T10:00:00Z', peak: 19 });
     await insertEntry(db, { seasonId: s.seasonId, classId: s.classIds.wide, entrantId: b, machineId: mb, timeMs: 1_150_000, submittedAt: '2026-11-12T10:00:00Z', peak: 33 });
 
+    // Organizers manage the seasons they run: this one is the demo organizer's.
+    await sql(db, "UPDATE seasons SET created_by_id = (SELECT id FROM users WHERE email = ?) WHERE id = ?", [demoEmail('organizer'), s.seasonId]);
     const organizer = new Client(base);
     expect((await organizer.signIn(demoEmail('organizer'), DEMO_PASSWORD)).status).toBe(200);
     const res = await organizer.post(`/api/organizer/seasons/${s.seasonId}/transition`, { to: 'final' });
