@@ -57,10 +57,11 @@ async function backfill(excludeFileId: number) {
 }
 
 /**
- * The first other entrant's non-withdrawn entry whose G-code (an upload not replaced) matches this
- * entry's file by raw hash, decompressed content or moves, and was uploaded BEFORE it; null when
- * there is none. Only earlier uploads count: whoever uploads a copy later is the one flagged, so a
- * copier cannot knock out the original entry (its re-inspection would otherwise find the copy).
+ * The entry holding the first upload of the same G-code (by raw hash, decompressed content or
+ * moves; non-withdrawn entries, uploads not replaced), when that first upload came from another
+ * entrant; null when there is none or the first one is this entrant's own (an entrant may reuse
+ * their own print in another season). Only earlier uploads count: whoever uploads a copy later is
+ * the one flagged, so a copier cannot knock out the original entry on its re-inspection.
  */
 export async function findDuplicate(entry: Pick<Entry, 'id' | 'entrantId'>, gcodeSha256: string): Promise<Duplicate | null> {
   const file = await StoredFile.findOne({ where: { entryId: entry.id, kind: 'gcode', sha256: gcodeSha256 }, order: [['id', 'DESC']] });
@@ -71,21 +72,21 @@ export async function findDuplicate(entry: Pick<Entry, 'id' | 'entrantId'>, gcod
   }
   const fp = await fingerprintOf(file);
   await backfill(file.id);
-  const rows = await getSequelize().query<{ entry_id: number; file_id: number; sha256: string; content_sha256: string | null; meta: unknown }>(
-    `SELECT e.id AS entry_id, f.id AS file_id, f.sha256, g.content_sha256, f.meta FROM stored_files f
+  const rows = await getSequelize().query<{ entry_id: number; entrant_id: number; file_id: number; sha256: string; content_sha256: string | null; meta: unknown }>(
+    `SELECT e.id AS entry_id, e.entrant_id, f.id AS file_id, f.sha256, g.content_sha256, f.meta FROM stored_files f
      JOIN entries e ON e.id = f.entry_id LEFT JOIN gcode_fingerprints g ON g.stored_file_id = f.id
-     WHERE f.kind = 'gcode' AND f.id < :file AND e.entrant_id <> :entrant AND e.state <> 'withdrawn' AND e.id <> :entry
+     WHERE f.kind = 'gcode' AND f.id < :file AND e.state <> 'withdrawn' AND e.id <> :entry
        AND (f.sha256 = :sha ${fp ? 'OR g.content_sha256 = :content OR g.moves_sha256 = :moves' : ''})
      ORDER BY f.id ASC`,
     {
-      replacements: { file: file.id, entrant: entry.entrantId, entry: entry.id, sha: gcodeSha256, content: fp?.contentSha256 ?? '', moves: fp?.movesSha256 ?? '' },
+      replacements: { file: file.id, entry: entry.id, sha: gcodeSha256, content: fp?.contentSha256 ?? '', moves: fp?.movesSha256 ?? '' },
       type: QueryTypes.SELECT,
     },
   );
   // A replaced upload is no longer the entry's G-code.
   const replaced = (meta: unknown) => !!(typeof meta === 'string' ? JSON.parse(meta || '{}') : (meta ?? {}))?.replacedAt;
   const first = rows.find((r) => !replaced(r.meta));
-  if (!first) return null;
+  if (!first || first.entrant_id === entry.entrantId) return null;
   const match: DuplicateMatch = first.sha256 === gcodeSha256 ? 'same_file' : fp && first.content_sha256 === fp.contentSha256 ? 'same_content' : 'same_moves';
   return { entryId: first.entry_id, match };
 }

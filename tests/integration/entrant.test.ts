@@ -14,7 +14,8 @@ const dbFile = inject('dbFile');
 const FIXTURES = path.resolve(__dirname, '..', 'fixtures', 'gcode');
 // Made unique per run: other files on the same server upload this fixture for other entrants,
 // which the inspection rightly flags as a duplicate G-code.
-const gcode020 = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\n; entrant test run ${Date.now()}-${Math.random()}\n`)]));
+// Made this run's own with a display-message command: duplicates are matched on the moves, so a comment alone would not do.
+const gcode020 = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\nM117 entrant test run ${Date.now()}-${Math.random()}\n`)]));
 const gcode028 = fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-028.gcode.gz'));
 
 // Its own account: other test files add entries for the demo entrants on the same server.

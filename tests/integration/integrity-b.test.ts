@@ -395,5 +395,11 @@ describe('duplicate G-code through compression and edited comments', () => {
     // A genuinely different print (other slicer, other part) is not a duplicate.
     const other = await uploadAndInspect(copier, s, fs.readFileSync(path.join(FIXTURE_GCODE_DIR, 'slic3r-cylinder-025.gcode.gz')), 'own.gcode.gz');
     expect(other.map((f) => f.code)).not.toContain('duplicate_gcode');
+
+    // Re-inspecting the whole season flags the copies again, never the original (the earlier upload).
+    const prev = await lastInspectionId(original.id);
+    expect((await clients.organizer.post(`/api/organizer/seasons/${s.seasonId}/reinspect`, { confirm: true })).status).toBe(200);
+    const again = await inspectionDone(original.id, prev);
+    expect((JSON.parse(again.flags) as { code: string }[]).map((f) => f.code)).not.toContain('duplicate_gcode');
   });
 });
