@@ -1,10 +1,7 @@
 'use client';
 /** Judges of a season: appoint an existing account, invite by e-mail, remove, withdraw invitations. */
-import { useState } from 'react';
-import { useRouter } from 'next/navigation';
-import { JudgeByEmailSchema } from '@/lib/seasons/schemas';
 import { formatDateTime } from '@/lib/format';
-import { callApi, sendChecked } from '@/components/organizer/api';
+import { useEmailAction } from '@/components/organizer/useEmailAction';
 import { Outcome, TextInput } from '@/components/organizer/controls';
 
 export function JudgesPanel(props: {
@@ -13,30 +10,8 @@ export function JudgesPanel(props: {
   invitations: { id: number; email: string; expiresAt: string; sentAt: string }[];
   closed: string | null;
 }) {
-  const router = useRouter();
-  const [email, setEmail] = useState('');
-  const [fieldError, setFieldError] = useState<string | undefined>();
-  const [outcome, setOutcome] = useState<{ error?: string; message?: string }>({});
-  const [busy, setBusy] = useState(false);
-
-  async function send(kind: 'judges' | 'invitations') {
-    setOutcome({});
-    setBusy(true);
-    const res = await sendChecked(JudgeByEmailSchema, { email }, `/api/organizer/seasons/${props.seasonId}/${kind}`, 'POST');
-    setBusy(false);
-    setFieldError(res.fields.email);
-    if (!res.ok) return setOutcome({ error: res.error ?? undefined });
-    setEmail('');
-    setOutcome({ message: res.data.message });
-    router.refresh();
-  }
-
-  async function del(url: string, confirmText: string) {
-    if (!window.confirm(confirmText)) return;
-    const res = await callApi(url, 'DELETE');
-    setOutcome(res.ok ? { message: res.data.message } : { error: res.data.error ?? `The server answered ${res.status}.` });
-    if (res.ok) router.refresh();
-  }
+  const { email, setEmail, fieldError, outcome, busy, submit, remove: del } = useEmailAction();
+  const send = (kind: 'judges' | 'invitations') => submit(`/api/organizer/seasons/${props.seasonId}/${kind}`);
 
   return (
     <div className="space-y-4">

@@ -1,36 +1,12 @@
 'use client';
 /** Who runs a season: the creator and co-organizers, added and removed by e-mail. */
-import { useState } from 'react';
-import { useRouter } from 'next/navigation';
-import { JudgeByEmailSchema } from '@/lib/seasons/schemas';
-import { callApi, sendChecked } from '@/components/organizer/api';
+import { useEmailAction } from '@/components/organizer/useEmailAction';
 import { Outcome, TextInput } from '@/components/organizer/controls';
 
 export function OrganizersPanel(props: { seasonId: number; organizers: { userId: number; name: string; email: string; creator: boolean }[] }) {
-  const router = useRouter();
-  const [email, setEmail] = useState('');
-  const [fieldError, setFieldError] = useState<string | undefined>();
-  const [outcome, setOutcome] = useState<{ error?: string; message?: string }>({});
-  const [busy, setBusy] = useState(false);
-
-  async function add() {
-    setOutcome({});
-    setBusy(true);
-    const res = await sendChecked(JudgeByEmailSchema, { email }, `/api/organizer/seasons/${props.seasonId}/organizers`, 'POST');
-    setBusy(false);
-    setFieldError(res.fields.email);
-    if (!res.ok) return setOutcome({ error: res.error ?? undefined });
-    setEmail('');
-    setOutcome({ message: res.data.message });
-    router.refresh();
-  }
-
-  async function remove(userId: number, name: string) {
-    if (!window.confirm(`Remove ${name} from the organizers of this season?`)) return;
-    const res = await callApi(`/api/organizer/seasons/${props.seasonId}/organizers/${userId}`, 'DELETE');
-    setOutcome(res.ok ? { message: res.data.message } : { error: res.data.error ?? `The server answered ${res.status}.` });
-    if (res.ok) router.refresh();
-  }
+  const { email, setEmail, fieldError, outcome, busy, submit, remove: del } = useEmailAction();
+  const add = () => submit(`/api/organizer/seasons/${props.seasonId}/organizers`);
+  const remove = (userId: number, name: string) => del(`/api/organizer/seasons/${props.seasonId}/organizers/${userId}`, `Remove ${name} from the organizers of this season?`);
 
   return (
     <div className="space-y-4">

@@ -42,24 +42,26 @@ export const HEADLINE_FIELDS = [
   { key: 'advisoryFlags', label: 'Advisory flags', unit: '' },
 ] as const;
 
-interface RuleRow {
+export interface RuleRow {
   metric: string;
   sentence: string;
+  severity: string;
   status: string;
   measured: unknown;
 }
 
-function ruleRows(v: unknown[]): Map<string, RuleRow> {
+/** Stored rule results keyed by metric and its n-th rule (`walls#0`), so a rule is compared with its earlier self. */
+export function ruleRows(v: unknown): Map<string, RuleRow> {
   const out = new Map<string, RuleRow>();
   const seen = new Map<string, number>();
   for (const r of Array.isArray(v) ? v : []) {
-    const rr = r as { rule?: { metric?: string; sentence?: string }; status?: string; measured?: unknown; message?: string };
+    const rr = r as { rule?: { metric?: string; sentence?: string; severity?: string }; status?: string; measured?: unknown; message?: string };
     const metric = rr.rule?.metric;
     if (!metric) continue;
     // Key by metric and its n-th rule, so a rule whose threshold changed is compared with its old self.
     const n = seen.get(metric) ?? 0;
     seen.set(metric, n + 1);
-    out.set(`${metric}#${n}`, { metric, sentence: sentenceOf(rr.rule, rr.message || metric), status: String(rr.status ?? 'unknown'), measured: rr.measured ?? null });
+    out.set(`${metric}#${n}`, { metric, sentence: sentenceOf(rr.rule, rr.message || metric), severity: String(rr.rule?.severity ?? 'advisory'), status: String(rr.status ?? 'unknown'), measured: rr.measured ?? null });
   }
   return out;
 }

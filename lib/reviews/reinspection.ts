@@ -17,49 +17,23 @@ import type { RuleChange } from '@/models/EntryReinspection';
 import { getSequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
 import { appUrl, linkMail, sendMail } from '@/lib/mail';
-import { RuleSchema, ruleSentence } from '@/lib/inspection/rules';
-
-interface StoredRule {
-  rule?: { metric?: string; severity?: string; sentence?: string } & Record<string, unknown>;
-  status?: string;
-  measured?: unknown;
-}
-
-function sentenceOf(rule: StoredRule['rule']): string {
-  const parsed = RuleSchema.safeParse(rule);
-  return parsed.success ? ruleSentence(parsed.data) : String(rule?.sentence ?? rule?.metric ?? '');
-}
-
-/** Rule results keyed by metric and its n-th rule (as the review desk's diff does). */
-function keyed(results: unknown): Map<string, StoredRule> {
-  const out = new Map<string, StoredRule>();
-  const seen = new Map<string, number>();
-  for (const r of Array.isArray(results) ? (results as StoredRule[]) : []) {
-    const metric = r?.rule?.metric;
-    if (!metric) continue;
-    const n = seen.get(metric) ?? 0;
-    seen.set(metric, n + 1);
-    out.set(`${metric}#${n}`, r);
-  }
-  return out;
-}
+import { ruleRows } from './diff';
 
 /** Per rule, the old and the new result where anything changed (status, measured value or the rule itself). */
 export function ruleChanges(previous: unknown, latest: unknown): RuleChange[] {
-  const a = keyed(previous);
-  const b = keyed(latest);
+  const a = ruleRows(previous);
+  const b = ruleRows(latest);
   const out: RuleChange[] = [];
   for (const key of new Set([...a.keys(), ...b.keys()])) {
     const x = a.get(key);
     const y = b.get(key);
-    const sx = x ? sentenceOf(x.rule) : null;
-    const sy = y ? sentenceOf(y.rule) : null;
-    if (x && y && x.status === y.status && sx === sy && JSON.stringify(x.measured ?? null) === JSON.stringify(y.measured ?? null)) continue;
+    if (x && y && x.status === y.status && x.sentence === y.sentence && JSON.stringify(x.measured) === JSON.stringify(y.measured)) continue;
+    const now = (y ?? x)!;
     out.push({
-      metric: String((y ?? x)!.rule!.metric),
-      sentence: (sy ?? sx)!,
-      sentenceBefore: sx !== sy ? sx : null,
-      severity: String((y ?? x)!.rule?.severity ?? 'advisory'),
+      metric: now.metric,
+      sentence: now.sentence,
+      sentenceBefore: x && y && x.sentence !== y.sentence ? x.sentence : null,
+      severity: now.severity,
       before: x?.status ?? null,
       after: y?.status ?? null,
       measuredBefore: x?.measured ?? null,
