@@ -44,16 +44,23 @@ export async function fingerprintOf(file: StoredFile): Promise<GcodeFingerprint 
   }
 }
 
-async function backfill(excludeFileId: number) {
+/**
+ * Fingerprints up to `limit` stored G-code files that have none yet (newest first), other than
+ * `excludeFileId`; returns how many it did. `scripts/fingerprint-gcode.ts` runs it to the end.
+ */
+export async function backfillFingerprints(limit = BACKFILL_PER_LOOKUP, excludeFileId = 0): Promise<number> {
   const rows = await getSequelize().query<{ id: number }>(
     `SELECT f.id FROM stored_files f LEFT JOIN gcode_fingerprints g ON g.stored_file_id = f.id
      WHERE f.kind = 'gcode' AND f.entry_id IS NOT NULL AND g.stored_file_id IS NULL AND f.id <> ? ORDER BY f.id DESC LIMIT ?`,
-    { replacements: [excludeFileId, BACKFILL_PER_LOOKUP], type: QueryTypes.SELECT },
+    { replacements: [excludeFileId, limit], type: QueryTypes.SELECT },
   );
+  let done = 0;
   for (const r of rows) {
     const f = await StoredFile.findByPk(r.id);
-    if (f) await fingerprintOf(f);
+    // An unreadable file is stored with no fingerprint and tried again next time; count only successes.
+    if (f && (await fingerprintOf(f))) done++;
   }
+  return done;
 }
 
 /**
@@ -71,7 +78,7 @@ export async function findDuplicate(entry: Pick<Entry, 'id' | 'entrantId'>, gcod
     return byRaw ? { entryId: byRaw.id, match: 'same_file' } : null;
   }
   const fp = await fingerprintOf(file);
-  await backfill(file.id);
+  await backfillFingerprints(BACKFILL_PER_LOOKUP, file.id);
   const rows = await getSequelize().query<{ entry_id: number; entrant_id: number; file_id: number; sha256: string; content_sha256: string | null; meta: unknown }>(
     `SELECT e.id AS entry_id, e.entrant_id, f.id AS file_id, f.sha256, g.content_sha256, f.meta FROM stored_files f
      JOIN entries e ON e.id = f.entry_id LEFT JOIN gcode_fingerprints g ON g.stored_file_id = f.id

@@ -14,6 +14,7 @@
  */
 import { createHash, type Hash } from 'node:crypto';
 import { readFileLines, type LineSink } from './reader';
+import { MAX_LINE_BYTES } from './engineConstants';
 
 export interface GcodeFingerprint {
   contentSha256: string;
@@ -34,8 +35,11 @@ const LF = 0x0a;
 const LOWER_A = 0x61;
 const LOWER_Z = 0x7a;
 
-/** Bytes collected before a hash update: large runs keep the per-call cost of update() small. */
-const OUT_BYTES = 64 * 1024;
+/**
+ * Bytes collected before a hash update: large runs keep the per-call cost of update() small (one
+ * call per line doubled the time on a 65 MB file). Room for the longest line the reader hands over.
+ */
+const OUT_BYTES = 4 * MAX_LINE_BYTES;
 
 class FingerprintSink implements LineSink {
   private readonly content: Hash = createHash('sha256');
@@ -43,18 +47,23 @@ class FingerprintSink implements LineSink {
   /** Normalized lines waiting for the moves hash (each ends with LF). */
   private readonly out = Buffer.allocUnsafe(OUT_BYTES);
   private outLen = 0;
-  private readonly lf = Buffer.from([LF]);
+  /** Raw lines (LF-terminated) waiting for the content hash. */
+  private readonly raw = Buffer.allocUnsafe(OUT_BYTES);
+  private rawLen = 0;
   // Not named `lines`: the reader would take a field of that name for LineSink.lines().
   lineCount = 0;
   moveLines = 0;
 
   line(buf: Buffer, start: number, end: number): void {
     this.lineCount++;
+    // A line is at most MAX_LINE_BYTES (the reader cuts longer ones), so one flush always makes room.
+    if (this.rawLen + (end - start) + 1 > OUT_BYTES || this.outLen + (end - start) + 1 > OUT_BYTES) this.flush();
     // The reader splits on LF and hands a CRLF line with its CR: leave it out, so line endings do not count.
-    this.content.update(buf.subarray(start, end > start && buf[end - 1] === CR ? end - 1 : end));
-    this.content.update(this.lf);
-    // A normalized line is never longer than the raw one (MAX_LINE_BYTES, far below OUT_BYTES).
-    if (this.outLen + (end - start) + 1 > OUT_BYTES) this.flush();
+    const rawEnd = end > start && buf[end - 1] === CR ? end - 1 : end;
+    buf.copy(this.raw, this.rawLen, start, rawEnd);
+    this.rawLen += rawEnd - start;
+    this.raw[this.rawLen++] = LF;
+    // A normalized line is never longer than the raw one.
     const before = this.outLen;
     let depth = 0;
     for (let i = start; i < end; i++) {
@@ -80,7 +89,9 @@ class FingerprintSink implements LineSink {
   }
 
   private flush(): void {
+    if (this.rawLen) this.content.update(this.raw.subarray(0, this.rawLen));
     if (this.outLen) this.moves.update(this.out.subarray(0, this.outLen));
+    this.rawLen = 0;
     this.outLen = 0;
   }
 
