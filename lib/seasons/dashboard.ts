@@ -4,11 +4,12 @@ import { Entry, Season, SeasonJudge, User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { ENTRY_STATES, type EntryState } from '@/lib/domain';
 import { organizedSeasonIds } from '@/lib/seasons/context';
+import { competingClassKeys, isConflicted } from '@/lib/reviews/conflicts';
 
 export interface JudgeLoad {
   userId: number;
   name: string;
-  /** submitted entries of the season this judge may decide (never their own) */
+  /** submitted entries of the season this judge may decide (never their own, nor of a class they compete in) */
   waiting: number;
   /** reviews this judge has written on entries of the season */
   reviews: number;
@@ -44,7 +45,7 @@ export async function organizerDashboard(opts: { seasonId?: number; organizerId?
     ),
     Entry.findAll({
       where: { seasonId: ids, state: 'submitted' },
-      attributes: ['id', 'seasonId', 'entrantId', 'submittedAt'],
+      attributes: ['id', 'seasonId', 'classId', 'entrantId', 'submittedAt'],
       order: [['submittedAt', 'ASC'], ['id', 'ASC']],
       include: [{ model: User, as: 'entrant', attributes: ['id', 'name'] }],
     }),
@@ -54,7 +55,10 @@ export async function organizerDashboard(opts: { seasonId?: number; organizerId?
       { replacements: { ids }, type: QueryTypes.SELECT },
     ),
   ]);
-  const judgeUsers = await User.findAll({ where: { id: [...new Set(judgeRows.map((j) => j.userId))] }, attributes: ['id', 'name'] });
+  const judgeIds = [...new Set(judgeRows.map((j) => j.userId))];
+  const judgeUsers = await User.findAll({ where: { id: judgeIds }, attributes: ['id', 'name'] });
+  // Classes each judge competes in: those entries wait for other judges (conflicts of interest).
+  const competing = new Map(await Promise.all(judgeIds.map(async (id) => [id, await competingClassKeys(id, ids)] as const)));
   const nameOf = new Map(judgeUsers.map((u) => [u.id, u.name]));
 
   return seasons.map((s) => {
@@ -80,7 +84,7 @@ export async function organizerDashboard(opts: { seasonId?: number; organizerId?
         .map((j) => ({
           userId: j.userId,
           name: nameOf.get(j.userId) ?? '—',
-          waiting: mine.filter((e) => e.entrantId !== j.userId).length,
+          waiting: mine.filter((e) => e.entrantId !== j.userId && !isConflicted(competing.get(j.userId)!, e)).length,
           reviews: Number(reviewRows.find((r) => r.seasonId === s.id && r.judgeId === j.userId)?.n ?? 0),
         })),
     };
