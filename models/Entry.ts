@@ -21,6 +21,8 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
   declare gcodeSha256: string | null;
   declare submittedAt: Date | null;
   declare decidedAt: Date | null;
+  /** The inspection current when the entrant submitted; a judge may verify only while it still is. */
+  declare submittedInspectionId: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -41,6 +43,7 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
         gcodeSha256: { type: DataTypes.STRING(64), allowNull: true },
         submittedAt: { type: DataTypes.DATE, allowNull: true },
         decidedAt: { type: DataTypes.DATE, allowNull: true },
+        submittedInspectionId: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
