@@ -6,7 +6,7 @@
  * id is the current one. A row left `queued` or `running` by a server that stopped (crash, deploy)
  * is picked up again the next time anyone looks at the entry (resumeInspection).
  */
-import { Op } from 'sequelize';
+import { Op, type Transaction } from 'sequelize';
 import { Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
 import { enqueue, isQueued, inspectInChild, InspectionRunError, ENGINE_VERSION } from '@/lib/jobs';
 import { localPath } from '@/lib/storage';
@@ -28,12 +28,12 @@ export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null 
 }
 
 /** The entry's current G-code (newest not replaced). */
-export async function currentGcode(entryId: number): Promise<StoredFile | null> {
-  return currentGcodeOf(await StoredFile.findAll({ where: { entryId, kind: 'gcode' } }));
+export async function currentGcode(entryId: number, transaction?: Transaction): Promise<StoredFile | null> {
+  return currentGcodeOf(await StoredFile.findAll({ where: { entryId, kind: 'gcode' }, transaction }));
 }
 
-export async function latestInspection(entryId: number): Promise<Inspection | null> {
-  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']] });
+export async function latestInspection(entryId: number, transaction?: Transaction): Promise<Inspection | null> {
+  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']], transaction });
 }
 
 /** Engine options from the entry, its season and its machine. */
@@ -122,12 +122,19 @@ export function queueInspection(inspectionId: number) {
   enqueue(jobKey(inspectionId), () => runInspection(inspectionId));
 }
 
-/** Creates a fresh inspection row for the entry's current G-code and queues it. */
-export async function reinspect(entry: Entry): Promise<Inspection | null> {
-  const gcode = await currentGcode(entry.id);
+/**
+ * Creates a fresh inspection row for the entry's current G-code and queues it — inside
+ * `transaction` when given, queued once it commits.
+ */
+export async function reinspect(entry: Entry, transaction?: Transaction): Promise<Inspection | null> {
+  const gcode = await currentGcode(entry.id, transaction);
   if (!gcode) return null;
-  const row = await Inspection.create({ entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null });
-  queueInspection(row.id);
+  const row = await Inspection.create(
+    { entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+    { transaction },
+  );
+  if (transaction) transaction.afterCommit(() => queueInspection(row.id));
+  else queueInspection(row.id);
   return row;
 }
 

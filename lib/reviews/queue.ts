@@ -1,5 +1,6 @@
 /** The judge's queue: submitted entries of the seasons they serve, oldest first, never their own. */
 import { z } from 'zod';
+import { idSchema } from '@/lib/ids';
 import { Op } from 'sequelize';
 import { ContestClass, Entry, Inspection, Review, Season, User } from '@/models';
 import { notFound } from '@/lib/errors';
@@ -8,8 +9,8 @@ import { flagKinds, QUEUE_FLAG_FILTER_LIST, type QueueFlagFilter } from './flags
 import { requiredVerifications, roundVerifiers } from './round';
 
 export const QueueFilterSchema = z.object({
-  season: z.coerce.number().int().positive().optional(),
-  class: z.coerce.number().int().positive().optional(),
+  season: idSchema('The season filter must be a season number.').optional(),
+  class: idSchema('The class filter must be a class number.').optional(),
   flag: z.enum(QUEUE_FLAG_FILTER_LIST, { message: `Choose one of: ${QUEUE_FLAG_FILTER_LIST.join(', ')}.` }).optional(),
 });
 export type QueueFilter = z.infer<typeof QueueFilterSchema>;

@@ -9,6 +9,7 @@ import { SafetyNotes } from '@/components/SafetyNotes';
 import { EntryWorkbench } from '@/components/entrant/EntryWorkbench';
 import { formatDateTime, formatDurationMs } from '@/lib/format';
 import { reasonLabel } from '@/lib/reviews/reasons';
+import { parseId } from '@/lib/ids';
 
 export const metadata = { title: 'Entry' };
 export const dynamic = 'force-dynamic';
@@ -20,7 +21,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
   const user = await requirePageRole(`/me/entries/${id}`, 'entrant');
   let entry;
   try {
-    entry = await entryView(user, /^\d+$/.test(id) ? Number(id) : NaN);
+    entry = await entryView(user, parseId(id) ?? NaN);
   } catch (err) {
     if (err instanceof HttpError && err.status === 404) notFound();
     throw err;
