@@ -190,7 +190,7 @@ export async function createEntryFromUpload(user: User, req: Request) {
 /** New files for a draft or returned entry; a new G-code re-runs the inspection. */
 export async function replaceEntryFiles(user: User, id: number, req: Request) {
   const entry = await ownEntry(user.id, id);
-  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Files can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(notEditable('Files')(entry.state));
   const season = await Season.findByPk(entry.seasonId);
   requireOpen(season!);
   const up = await receiveUpload(req, { ...ENTRY_UPLOAD_SPEC, fields: [] });
@@ -213,7 +213,7 @@ export async function replaceEntryFiles(user: User, id: number, req: Request) {
 /** Changes the details of a draft or returned entry and re-inspects (the claims changed). */
 export async function updateEntryDetails(user: User, id: number, raw: unknown) {
   const entry = await ownEntry(user.id, id);
-  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Details can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(notEditable('Details')(entry.state));
   const details = parseInput(EntryDetailsSchema, raw);
   if (details.seasonId !== entry.seasonId) throw new HttpError(400, 'An entry cannot move to another season.', { seasonId: 'An entry stays in its season.' });
   await checkContext(user.id, details, entry.id);
@@ -260,7 +260,7 @@ export async function submitBlockers(entry: Entry, loaded: SubmitContext = {}): 
   if (!gcode) out.push('Upload the G-code of your run.');
   const photoCount = files.filter((f) => f.kind === 'photo' && !f.meta?.replacedAt).length;
   if (photoCount < season.photosRequired) out.push(`The season asks for ${season.photosRequired} photos; this entry has ${photoCount}.`);
-  if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link to the details.');
+  if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link under “Edit details”.');
   if (gcode) {
     if (!insp || insp.storedFileId !== gcode.id || insp.status === 'queued' || insp.status === 'running') out.push('The inspection is still running.');
     else if (insp.status === 'failed') out.push(`The inspection failed: ${insp.error ?? 'unknown reason'}. Upload the file again or inspect again.`);
@@ -433,20 +433,27 @@ export async function entryInspection(user: User, id: number) {
 
 /** What the new-entry form offers: open seasons, their classes, the entrant's machines and which class each may enter. */
 export async function entryFormOptions(userId: number) {
-  const [seasons, machines] = await Promise.all([
+  const [seasons, machines, used] = await Promise.all([
     Season.findAll({ where: { state: 'open' }, order: [['closesAt', 'ASC']], include: [{ model: ContestClass, as: 'classes' }, { model: TestPiece }] }),
     Machine.findAll({ where: { ownerId: userId, retiredAt: null }, order: [['name', 'ASC']] }),
+    Entry.findAll({ where: { entrantId: userId, state: COUNTED_STATES }, attributes: ['classId'], raw: true }),
   ]);
+  const usedByClass = new Map<number, number>();
+  for (const u of used) usedByClass.set(u.classId, (usedByClass.get(u.classId) ?? 0) + 1);
   return {
     seasons: seasons.map((s) => {
       const classes = ((s as unknown as { classes: ContestClass[] }).classes ?? []).sort((a, b) => a.displayOrder - b.displayOrder);
       const piece = (s as unknown as { TestPiece: TestPiece | null }).TestPiece;
       return {
         id: s.id, slug: s.slug, name: s.name, photosRequired: s.photosRequired, videoRequired: s.videoRequired, photoKinds: s.photoKinds ?? [], entryLimit: s.entryLimit,
+        /** Why the season takes no entries right now (before its opening date, after its closing date). */
+        windowProblem: entryWindowProblem(s),
         timingConvention: s.timingConvention,
         testPieceSizeMm: piece ? { x: piece.sizeXMm, y: piece.sizeYMm, z: piece.sizeZMm } : null,
         classes: classes.map((c) => ({
           id: c.id, name: c.name, description: c.description, materialFamilies: c.materialFamilies,
+          /** The entrant's entries counted against the season's limit in this class. */
+          entriesUsed: usedByClass.get(c.id) ?? 0,
           // Reasons per machine at the machine's own nozzle; the server checks again with the entry's nozzle and material.
           ineligible: Object.fromEntries(machines.map((m) => [m.id, classEligibility(c, m, m.nozzleMm, null)])),
         })),
