@@ -52,11 +52,11 @@ function requireOpen(season: Season) {
  * the entry until commit, so the check holds for everything the transaction writes afterwards.
  */
 async function claimEntry(id: number, entrantId: number, states: EntryState[], transaction: Transaction, refuse: (state: string) => string) {
-  const [n] = await Entry.update({ updatedAt: new Date() }, { where: { id, entrantId, state: states }, transaction });
-  if (n !== 1) {
-    const now = await Entry.findByPk(id, { attributes: ['state'], transaction });
-    throw new HttpError(409, refuse(now?.state ?? 'gone'), undefined, 'state_changed');
-  }
+  const fresh = await Entry.findOne({ where: { id, entrantId }, attributes: ['state'], transaction });
+  const state = fresh?.state;
+  // (Sequelize drops an update of updatedAt alone, so the claim writes the state it read.)
+  const [n] = state && states.includes(state) ? await Entry.update({ state }, { where: { id, entrantId, state }, transaction }) : [0];
+  if (n !== 1) throw new HttpError(409, refuse(state ?? 'gone'), undefined, 'state_changed');
 }
 
 const notEditable = (what: string) => (state: string) =>

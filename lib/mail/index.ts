@@ -43,8 +43,8 @@ function retryDelayMs(attempts: number): number {
   const base = Number(process.env.MAIL_RETRY_BASE_MS) || 30_000;
   return Math.min(base * 2 ** Math.max(0, attempts - 1), 30 * 60_000);
 }
-/** How often the sender looks for due messages while the server runs. */
-const POLL_MS = 15_000;
+/** How often the sender looks for due messages while the server runs (MAIL_POLL_MS: tests). */
+const pollMs = () => Number(process.env.MAIL_POLL_MS) || 15_000;
 
 let transporter: Transporter | null = null;
 let transporterUrl: string | undefined;
@@ -194,7 +194,7 @@ const globalForMail = globalThis as unknown as { __hotlapOutboxTimer?: NodeJS.Ti
 export function startOutbox() {
   if (globalForMail.__hotlapOutboxTimer) return;
   kickOutbox();
-  globalForMail.__hotlapOutboxTimer = setInterval(kickOutbox, POLL_MS);
+  globalForMail.__hotlapOutboxTimer = setInterval(kickOutbox, pollMs());
   globalForMail.__hotlapOutboxTimer.unref();
 }
 
