@@ -188,12 +188,16 @@ function kickOutbox() {
 const globalForMail = globalThis as unknown as { __hotlapOutboxTimer?: NodeJS.Timeout };
 
 /**
- * Server start (instrumentation.ts): sends what a stopped server left pending, then looks for due
- * retries every few seconds for as long as the process runs.
+ * Server start (instrumentation.ts): sends what a stopped server left pending (at once, whatever
+ * its backoff said), then looks for due retries every few seconds for as long as the process runs.
  */
 export function startOutbox() {
   if (globalForMail.__hotlapOutboxTimer) return;
-  kickOutbox();
+  // A (re)start is often the fix (the mail server or its settings changed): try every waiting
+  // message now instead of at its backed-off time.
+  SentMail.update({ nextAttemptAt: new Date() }, { where: { status: 'pending' } })
+    .catch((err) => console.error('Mail outbox:', err))
+    .finally(kickOutbox);
   globalForMail.__hotlapOutboxTimer = setInterval(kickOutbox, pollMs());
   globalForMail.__hotlapOutboxTimer.unref();
 }
