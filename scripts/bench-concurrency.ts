@@ -6,6 +6,7 @@
  * queued or running afterwards. Target: 0 server errors (5xx) in both phases.
  *
  *   npx next build && npx tsx scripts/bench-concurrency.ts
+ * BENCH_SETTLE_S (default 600): how long to wait for the inspections to finish afterwards.
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -121,7 +122,7 @@ async function main() {
     summary('    read  ', rd);
 
     // Every inspection must finish: none may be left queued or running by a failed write.
-    const deadline = Date.now() + 600_000;
+    const deadline = Date.now() + 1000 * (Number(process.env.BENCH_SETTLE_S) || 600);
     let left = Infinity;
     while (Date.now() < deadline) {
       left = (await sql<{ n: number }>(db, "SELECT COUNT(*) AS n FROM inspections WHERE status IN ('queued', 'running')"))[0].n;
