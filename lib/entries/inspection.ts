@@ -78,6 +78,23 @@ export function countFindings(rules: RuleResult[], flags: Flag[]) {
   return { blocking, advisory };
 }
 
+/**
+ * Writes an inspection's outcome, trying again a few times: a report that was computed must not be
+ * lost to a transient database error, which would leave the row `running` until someone opens the
+ * entry (resumeInspection).
+ */
+async function storeOutcome(row: Inspection, values: Parameters<Inspection['update']>[0]) {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      await row.update(values);
+      return;
+    } catch (err) {
+      if (attempt >= 4) throw err;
+      await new Promise((r) => setTimeout(r, 250 * 2 ** attempt));
+    }
+  }
+}
+
 async function runInspection(inspectionId: number) {
   const row = await Inspection.findByPk(inspectionId);
   if (!row || row.status === 'done' || row.status === 'failed') return;
@@ -96,7 +113,7 @@ async function runInspection(inspectionId: number) {
     const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
     const time = report.time as { estimated_s: number | null };
     const layers = report.layers as { height_mm: number | null };
-    await row.update({
+    await storeOutcome(row, {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
@@ -114,7 +131,7 @@ async function runInspection(inspectionId: number) {
   } catch (err) {
     const message = err instanceof InspectionRunError ? err.message : 'The inspection failed on our side; try "Inspect again".';
     if (!(err instanceof InspectionRunError)) console.error('inspection', inspectionId, err);
-    await row.update({ status: 'failed', error: message, finishedAt: new Date() });
+    await storeOutcome(row, { status: 'failed', error: message, finishedAt: new Date() });
   }
 }
 

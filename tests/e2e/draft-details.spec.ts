@@ -72,4 +72,16 @@ test('an entrant fixes a blocked draft by editing its details on the draft page,
   await expect(page.getByTestId('entry-message')).toContainText('Entry submitted');
   await expect.poll(async () => (await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [id]))[0].state).toBe('submitted');
   await page.screenshot({ path: test.info().outputPath('draft-fixed.png'), fullPage: true });
+
+  // A new entry: the entry limit of the chosen class shows on the first step, and the second step
+  // refuses an empty evidence link where the season asks for a video.
+  await page.goto('/me/entries/new?season=frostbite-sprint');
+  await page.getByLabel('Machine').selectOption({ label: 'Fixer Rig (0.4 mm)' });
+  await page.getByLabel('Class').selectOption({ label: 'Open · 0.4 mm' });
+  await expect(page.getByTestId('entry-limit')).toHaveText('Entries in Open · 0.4 mm: 1 of 3 used.');
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.getByLabel('Claimed time (h:mm:ss.t)').fill('0:25:10.0');
+  await page.getByRole('button', { name: 'Next' }).click();
+  await expect(page.locator('#e-evidenceUrl-error')).toHaveText('This season asks for a link to the video of your run.');
+  await expect(page.getByLabel('Claimed time (h:mm:ss.t)')).toBeVisible();
 });
