@@ -85,14 +85,19 @@ function createSequelize(): Sequelize {
  * SQLITE_BUSY (measured: 44 of 50 concurrent submissions). Queued here, a waiting writer holds no
  * thread; busy_timeout still covers other processes (seed scripts, a second server).
  */
-const lockHeld = new AsyncLocalStorage<true>();
+/**
+ * Marks the async context of the lock's holder. A flag object rather than `true`: work scheduled
+ * from inside (an afterCommit hook queuing an inspection or a mail) inherits the context, and must
+ * queue like everyone else once the holder has released the lock.
+ */
+const lockHeld = new AsyncLocalStorage<{ held: boolean }>();
 let lockTail: Promise<void> = Promise.resolve();
 /** A writer that waits longer than this goes ahead and lets SQLite's busy_timeout decide (no hang forever). */
 const WRITE_LOCK_WAIT_MS = 30_000;
 
 export async function withWriteLock<T>(fn: () => Promise<T>): Promise<T> {
   // Nested: a transaction that writes through the shared connection already holds the lock.
-  if (lockHeld.getStore()) return fn();
+  if (lockHeld.getStore()?.held) return fn();
   const before = lockTail;
   let release!: () => void;
   const mine = new Promise<void>((r) => (release = r));
@@ -100,9 +105,11 @@ export async function withWriteLock<T>(fn: () => Promise<T>): Promise<T> {
   let timer: NodeJS.Timeout | undefined;
   await Promise.race([before, new Promise((r) => (timer = setTimeout(r, WRITE_LOCK_WAIT_MS)))]);
   clearTimeout(timer);
+  const holder = { held: true };
   try {
-    return await lockHeld.run(true, fn);
+    return await lockHeld.run(holder, fn);
   } finally {
+    holder.held = false;
     release();
   }
 }

@@ -61,6 +61,23 @@ describe('database connection settings', () => {
     await expect(sequelize.transaction((transaction) => sequelize.query(`INSERT INTO inspections (entry_id, engine_version, status, created_at, updated_at) VALUES (999, 'x', 'queued', datetime(), datetime())`, { transaction }))).rejects.toThrow(/FOREIGN KEY/);
   });
 
+  it('work scheduled from inside a writer (an afterCommit hook, say) queues behind the next writer once that writer is done', async () => {
+    const { withWriteLock } = await import('@/lib/db');
+    const order: string[] = [];
+    let scheduled!: Promise<void>;
+    await withWriteLock(async () => {
+      scheduled = new Promise((r) => setTimeout(() => r(withWriteLock(async () => void order.push('scheduled'))), 20));
+    });
+    // Another writer takes the lock before the scheduled work runs, and holds it for a while.
+    const other = withWriteLock(async () => {
+      order.push('other starts');
+      await new Promise((r) => setTimeout(r, 100));
+      order.push('other ends');
+    });
+    await Promise.all([scheduled, other]);
+    expect(order).toEqual(['other starts', 'other ends', 'scheduled']);
+  });
+
   it('thirty writers at once all commit: none fails with SQLITE_BUSY', async () => {
     await sequelize.query('CREATE TABLE IF NOT EXISTS busy_probe (n INTEGER)');
     const results = await Promise.allSettled(
