@@ -40,5 +40,8 @@ export async function listOutbox(opts: { to?: string; limit?: number } = {}) {
     order: [['id', 'DESC']],
     limit: opts.limit ?? 100,
   });
-  return rows.map((m) => ({ id: m.id, to: m.to, subject: m.subject, text: m.text, html: m.html, transport: m.transport, createdAt: m.createdAt.toISOString() }));
+  return rows.map((m) => ({
+    id: m.id, to: m.to, subject: m.subject, text: m.text as string | null, html: m.html as string | null, transport: m.transport, createdAt: m.createdAt.toISOString(),
+    status: m.status, attempts: m.attempts, lastError: m.lastError, sentAt: m.sentAt?.toISOString() ?? null, nextAttemptAt: m.nextAttemptAt?.toISOString() ?? null,
+  }));
 }

@@ -4,7 +4,8 @@
  */
 import path from 'node:path';
 import fs from 'node:fs';
-import { Sequelize, Transaction } from 'sequelize';
+import { AsyncLocalStorage } from 'node:async_hooks';
+import { QueryTypes, Sequelize, Transaction } from 'sequelize';
 import sqlite3 from 'sqlite3';
 
 /** Where the app keeps its files: the SQLite database and data/uploads. HOTLAP_DATA_DIR moves it. */
@@ -16,36 +17,124 @@ export function databaseUrl(): string {
   return process.env.DATABASE_URL || `sqlite:${path.join(dataDir(), 'hotlap.sqlite')}`;
 }
 
+/** The per-connection settings; every connection runs them before its first query (see withPragmas). */
+export const CONNECTION_PRAGMAS = {
+  // WAL lets readers proceed while one writer commits (sqlite.org "Write-Ahead Logging").
+  journal_mode: 'wal',
+  // Wait up to 5 s for another connection's write lock instead of failing with SQLITE_BUSY at once.
+  busy_timeout: 5000,
+  foreign_keys: 1,
+  // NORMAL is durable in WAL mode except for the last commits on power loss (sqlite.org "PRAGMA synchronous").
+  synchronous: 1,
+} as const;
+
+const PRAGMA_SQL = [
+  `PRAGMA busy_timeout = ${CONNECTION_PRAGMAS.busy_timeout}`,
+  `PRAGMA journal_mode = ${CONNECTION_PRAGMAS.journal_mode.toUpperCase()}`,
+  'PRAGMA foreign_keys = ON',
+  'PRAGMA synchronous = NORMAL',
+].join(';\n');
+
+/**
+ * The sqlite3 module with a Database that runs the pragmas in its open callback, before Sequelize's
+ * connection manager gets the connection. Sequelize's SQLite dialect opens a new Database for every
+ * transaction (and one shared for everything else) and never runs an `afterConnect` hook, so this is
+ * the one place every connection passes through.
+ */
+function withPragmas(lib: typeof sqlite3): typeof sqlite3 {
+  function Database(filename: string, mode: number, callback?: (err: Error | null) => void) {
+    const db: sqlite3.Database = new lib.Database(filename, mode, (err) => {
+      if (err) return callback?.(err);
+      // busy_timeout first (through the driver too), so that switching to WAL waits for a lock.
+      db.configure('busyTimeout', CONNECTION_PRAGMAS.busy_timeout);
+      db.exec(PRAGMA_SQL, (e) => callback?.(e ?? null));
+    });
+    return db;
+  }
+  return { ...lib, Database: Database as unknown as typeof sqlite3.Database };
+}
+
 function createSequelize(): Sequelize {
   const url = databaseUrl();
   if (!url.startsWith('sqlite:')) return new Sequelize(url, { logging: false });
   const storage = url.slice('sqlite:'.length) || ':memory:';
   if (storage !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(/*turbopackIgnore: true*/ storage)), { recursive: true });
-  return new Sequelize({
+  return serializeWrites(new Sequelize({
     dialect: 'sqlite',
     // Passing the driver explicitly keeps the dialect loading out of the bundler's way.
-    dialectModule: sqlite3,
+    dialectModule: withPragmas(sqlite3),
     storage,
     logging: false,
-    // Several connections (one per transaction) share the file: retry on SQLITE_BUSY too.
+    // Several connections (one per transaction) share the file: busy_timeout waits for the lock;
+    // a retry covers the rare BUSY that SQLite returns without waiting (a deadlock between readers
+    // upgrading to writers).
     retry: { match: [/SQLITE_BUSY/], max: 5 },
     // A transaction takes the write lock when it begins. One that began by reading (DEFERRED)
     // gets SQLITE_BUSY at once, with no wait, when it writes after another connection committed
     // (WAL snapshot rule, sqlite.org "Write-Ahead Logging"); seen as a 500 under parallel tests.
     // BEGIN IMMEDIATE waits for the lock through busy_timeout instead.
     transactionType: Transaction.TYPES.IMMEDIATE,
-    hooks: {
-      afterConnect: async (connection: unknown) => {
-        const db = connection as sqlite3.Database;
-        const run = (sql: string) => new Promise<void>((ok, fail) => db.run(sql, (e) => (e ? fail(e) : ok())));
-        // WAL lets readers proceed while one writer commits; busy_timeout waits instead of failing.
-        await run('PRAGMA journal_mode = WAL');
-        await run('PRAGMA busy_timeout = 5000');
-        await run('PRAGMA foreign_keys = ON');
-        await run('PRAGMA synchronous = NORMAL');
-      },
-    },
-  });
+  }));
+}
+
+/**
+ * One writer at a time inside this process, queued in JavaScript. Why: node-sqlite3 runs every
+ * statement on libuv's thread pool (4 threads), and a statement waiting for SQLite's write lock
+ * sleeps in busy_timeout on one of those threads. With a few writers waiting, the transaction that
+ * holds the lock gets no thread for its next statement, everyone waits the full 5 s and fails with
+ * SQLITE_BUSY (measured: 44 of 50 concurrent submissions). Queued here, a waiting writer holds no
+ * thread; busy_timeout still covers other processes (seed scripts, a second server).
+ */
+/**
+ * Marks the async context of the lock's holder. A flag object rather than `true`: work scheduled
+ * from inside (an afterCommit hook queuing an inspection or a mail) inherits the context, and must
+ * queue like everyone else once the holder has released the lock.
+ */
+const lockHeld = new AsyncLocalStorage<{ held: boolean }>();
+let lockTail: Promise<void> = Promise.resolve();
+/** A writer that waits longer than this goes ahead and lets SQLite's busy_timeout decide (no hang forever). */
+const WRITE_LOCK_WAIT_MS = 30_000;
+
+export async function withWriteLock<T>(fn: () => Promise<T>): Promise<T> {
+  // Nested: a transaction that writes through the shared connection already holds the lock.
+  if (lockHeld.getStore()?.held) return fn();
+  const before = lockTail;
+  let release!: () => void;
+  const mine = new Promise<void>((r) => (release = r));
+  lockTail = before.then(() => mine);
+  let timer: NodeJS.Timeout | undefined;
+  await Promise.race([before, new Promise((r) => (timer = setTimeout(r, WRITE_LOCK_WAIT_MS)))]);
+  clearTimeout(timer);
+  const holder = { held: true };
+  try {
+    return await lockHeld.run(holder, fn);
+  } finally {
+    holder.held = false;
+    release();
+  }
+}
+
+const WRITE_TYPES = new Set<string>([QueryTypes.INSERT, QueryTypes.UPDATE, QueryTypes.BULKUPDATE, QueryTypes.BULKDELETE, QueryTypes.DELETE, QueryTypes.UPSERT]);
+const WRITE_SQL = /^\s*(insert|update|delete|replace|create|drop|alter)\b/i;
+
+function isWrite(sql: unknown, options: { type?: string } | undefined): boolean {
+  if (options?.type && WRITE_TYPES.has(options.type)) return true;
+  const text = typeof sql === 'string' ? sql : (sql as { query?: string } | null)?.query;
+  return typeof text === 'string' && WRITE_SQL.test(text);
+}
+
+/** Routes managed transactions and writes outside a transaction through withWriteLock. */
+function serializeWrites(sequelize: Sequelize): Sequelize {
+  const transaction = sequelize.transaction.bind(sequelize) as (...args: unknown[]) => Promise<unknown>;
+  const query = sequelize.query.bind(sequelize) as (...args: unknown[]) => Promise<unknown>;
+  (sequelize as unknown as { transaction: unknown }).transaction = (...args: unknown[]) => {
+    const fn = args.find((a) => typeof a === 'function');
+    // Unmanaged transactions (no callback) are not used in Hotlap; they keep SQLite's own locking.
+    return fn ? withWriteLock(() => transaction(...args)) : transaction(...args);
+  };
+  (sequelize as unknown as { query: unknown }).query = (sql: unknown, options?: { transaction?: unknown; type?: string }) =>
+    !options?.transaction && isWrite(sql, options) ? withWriteLock(() => query(sql, options)) : query(sql, options);
+  return sequelize;
 }
 
 const globalForDb = globalThis as unknown as { __hotlapSequelize?: Sequelize };

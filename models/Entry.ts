@@ -23,6 +23,8 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
   declare decidedAt: Date | null;
   /** When a re-inspection sent the entry back to the judges (starts a new round of verifications). */
   declare reopenedAt: CreationOptional<Date | null>;
+  /** The inspection current when the entrant submitted; a judge may verify only while it still is. */
+  declare submittedInspectionId: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -44,6 +46,7 @@ export class Entry extends Model<InferAttributes<Entry>, InferCreationAttributes
         submittedAt: { type: DataTypes.DATE, allowNull: true },
         decidedAt: { type: DataTypes.DATE, allowNull: true },
         reopenedAt: { type: DataTypes.DATE, allowNull: true, defaultValue: null },
+        submittedInspectionId: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

@@ -18,6 +18,9 @@ function pair(p: { declared: number | null; measured: number | null } | null, di
   return m === null ? '—' : `${formatNumber(m, digits, unit)}${p.measured === null ? ' (declared)' : ''}`;
 }
 
+/** Flags about what the entrant claimed (time), which the details fix, not a new G-code. */
+const CLAIM_FLAGS = new Set(['claimed_time_below_estimate', 'mean_flow_above_machine_limit']);
+
 export function InspectionReport({ inspection, limitMm3s = null, audience = 'entrant' }: { inspection: InspectionJson; limitMm3s?: number | null; audience?: 'entrant' | 'judge' | 'public' }) {
   if (inspection.status === 'queued' || inspection.status === 'running') {
     return (
@@ -48,7 +51,17 @@ export function InspectionReport({ inspection, limitMm3s = null, audience = 'ent
               {blockingRules.map((r, i) => <li key={`r${i}`}>{r.message}</li>)}
               {blockingFlags.map((x, i) => <li key={`f${i}`}>{x.message}</li>)}
             </ul>
-            {audience === 'entrant' && <p className="mt-2 text-sm">Change the slicer settings named above, slice again and upload the new G-code.</p>}
+            {audience === 'entrant' && (
+              <>
+                {/* A claim that does not fit the file is fixed in the details, not by slicing again. */}
+                {blockingFlags.some((x) => CLAIM_FLAGS.has(x.code)) && (
+                  <p className="mt-2 text-sm" data-testid="claim-hint">Check the claimed time you entered against your timing (video or printer log) and correct it under “Edit details”; the file itself may be fine.</p>
+                )}
+                {(blockingRules.length > 0 || blockingFlags.some((x) => !CLAIM_FLAGS.has(x.code))) && (
+                  <p className="mt-2 text-sm">Change the slicer settings named above, slice again and upload the new G-code.</p>
+                )}
+              </>
+            )}
           </>
         ) : (
           <p className="font-semibold text-coolant-700">No blocking problems. {inspection.advisoryFlags ? `${inspection.advisoryFlags} note${inspection.advisoryFlags > 1 ? 's' : ''} for the judges.` : ''}</p>

@@ -49,6 +49,8 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
 
   if (!s) return <p>No season is open for entries right now.</p>;
   if (!m) return <p>Register a machine first: <Link href="/me/machines">Machines</Link>.</p>;
+  const chosen = s.classes.find((c) => c.id === classId);
+  const full = !!chosen && chosen.entriesUsed >= s.entryLimit;
 
   const aria = (name: string) => ({ 'aria-invalid': errors[name] ? true : undefined, 'aria-describedby': errors[name] ? `e-${name}-error` : undefined });
 
@@ -56,7 +58,10 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
     e.preventDefault();
     const local: Record<string, string> = {};
     if (step === 0 && !classId) local.classId = 'This machine is not eligible for any class of this season.';
+    if (step === 0 && full) local.classId = `You have used all ${s!.entryLimit} entries of ${chosen!.name}; withdraw a draft to make room, or choose another class.`;
     if (step === 1 && !v.claimedTime.trim()) local.claimedTime = 'Enter the claimed time as h:mm:ss.t.';
+    if (step === 1 && s!.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your run.';
+    else if (step === 1 && v.evidenceUrl.trim() && !/^https?:\/\/\S+$/i.test(v.evidenceUrl.trim())) local.evidenceUrl = 'The evidence link must start with http:// or https://.';
     if (step === 2 && !gcode) local.gcode = 'Add the G-code (.gcode or .gcode.gz).';
     setErrors(local);
     if (Object.keys(local).length) return;
@@ -97,6 +102,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
         ))}
       </ol>
 
+      {s.windowProblem && <p className="rounded-lg bg-ember-50 p-3 text-sm text-ember-800" role="status" data-testid="window-problem">{s.windowProblem}</p>}
       {step === 0 && (
         <fieldset className="space-y-4">
           <legend className="sr-only">Class and machine</legend>
@@ -124,6 +130,11 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
                 </option>
               ))}
             </select>
+            {chosen && (
+              <p className="mt-1 text-sm" data-testid="entry-limit">
+                Entries in {chosen.name}: {chosen.entriesUsed} of {s.entryLimit} used{full ? ' — the limit is reached.' : '.'}
+              </p>
+            )}
             <ul className="mt-1 text-xs text-ink-500">
               {s.classes.filter((c) => (c.ineligible[machine] ?? []).length).map((c) => <li key={c.id}>{c.name}: {c.ineligible[machine][0]}</li>)}
             </ul>
@@ -212,7 +223,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
       {message && <p className="field-error" role="alert" data-testid="form-error">{message}</p>}
       <div className="flex gap-3">
         {step > 0 && <button type="button" className="btn-quiet" onClick={() => setStep(step - 1)} disabled={progress !== null}>Back</button>}
-        <button type="submit" className="btn-primary" disabled={progress !== null}>{step < 2 ? 'Next' : 'Upload and inspect'}</button>
+        <button type="submit" className="btn-primary" disabled={progress !== null || !!s.windowProblem}>{step < 2 ? 'Next' : 'Upload and inspect'}</button>
       </div>
     </form>
   );

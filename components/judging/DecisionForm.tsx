@@ -91,11 +91,14 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
         <div className="flex flex-wrap gap-4">
           {REVIEW_DECISIONS.map((d) => (
             <label key={d} className="flex items-center gap-2">
-              <input type="radio" name="decision" value={d} checked={decision === d} onChange={() => choose(d)} disabled={d === 'verify' && props.verifications.byMe} />
+              <input type="radio" name="decision" value={d} checked={decision === d} onChange={() => choose(d)} disabled={d === 'verify' && (props.verifications.byMe || props.entryState !== 'submitted')} />
               {DECISION_LABELS[d].verb}
             </label>
           ))}
         </div>
+        {props.entryState !== 'submitted' && (
+          <p className="mt-1 text-xs text-ink-600">Only a submitted entry can be verified: this one is {props.entryState}, so it comes back to the desk when its entrant submits it again.</p>
+        )}
         {props.verifications.required > 1 && (
           <p className="mt-1 text-xs text-ink-600">This season needs {props.verifications.required} verifying judges; {props.verifications.count} so far{props.verifications.byMe ? ' (one is yours)' : ''}.</p>
         )}

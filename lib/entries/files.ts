@@ -82,6 +82,9 @@ export async function checkGcode(file: UploadedFile): Promise<CheckedGcode> {
 export interface CheckedPhoto {
   processed: ProcessedPhoto;
   originalName: string;
+  /** Hashes of the cleaned photo and its thumbnail, taken here: not inside the write transaction. */
+  clean: { sha256: string; sizeBytes: number };
+  thumb: { sha256: string; sizeBytes: number } | null;
 }
 
 /** Checks each photo by content and cleans it (location removed, thumbnail). Cleans up on failure. */
@@ -94,7 +97,9 @@ export async function checkPhotos(files: UploadedFile[]): Promise<CheckedPhoto[]
         const msg = `${f.originalName} is not a JPEG, PNG, WebP or HEIC photo.`;
         throw new HttpError(415, msg, { photos: msg });
       }
-      out.push({ processed: await processPhoto(f.tmpPath, type as PhotoType, `Photo ${i + 1} (${f.originalName})`), originalName: f.originalName });
+      const processed = await processPhoto(f.tmpPath, type as PhotoType, `Photo ${i + 1} (${f.originalName})`);
+      const [clean, thumb] = await Promise.all([sha256Of(processed.cleanPath), processed.thumbPath ? sha256Of(processed.thumbPath) : null]);
+      out.push({ processed, originalName: f.originalName, clean, thumb });
     }
     return out;
   } catch (err) {
@@ -147,10 +152,10 @@ export class FileWriter {
 
   async photo(p: CheckedPhoto, position: number) {
     const pr = p.processed;
-    const clean = await sha256Of(pr.cleanPath);
+    const clean = p.clean;
     let thumbId: number | null = null;
-    if (pr.thumbPath) {
-      const t = await sha256Of(pr.thumbPath);
+    if (pr.thumbPath && p.thumb) {
+      const t = p.thumb;
       const thumb = await this.put('thumbnail', pr.thumbPath, 'jpg', t.sha256, { originalName: `thumb-${p.originalName}`, mime: 'image/jpeg', sizeBytes: t.sizeBytes });
       thumbId = thumb.id;
     }

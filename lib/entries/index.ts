@@ -6,7 +6,7 @@
  * before anything is written; entry, files and inspection row are then created in one
  * transaction, and files moved into storage are removed again if it rolls back.
  */
-import { Op } from 'sequelize';
+import { Op, literal, type Transaction } from 'sequelize';
 import { ContestClass, Entry, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { conflict, HttpError, notFound, unprocessable } from '@/lib/errors';
@@ -15,6 +15,7 @@ import { receiveUpload, type UploadResult } from '@/lib/uploads';
 import { audit } from '@/lib/audit';
 import { appUrl, linkMail, sendMail } from '@/lib/mail';
 import type { EntryState } from '@/lib/domain';
+import { entryWindowProblem } from '@/lib/seasons/window';
 import { MATERIALS, type MaterialFamily } from '@/lib/inspection/materials';
 import { EntryDetailsSchema, parseClaimedTime, type EntryDetails } from './schema';
 import { classEligibility } from './eligibility';
@@ -29,6 +30,8 @@ const COUNTED_STATES: EntryState[] = ['draft', 'submitted', 'verified', 'returne
 /** States in which the entrant may change files and details. */
 const EDITABLE_STATES: EntryState[] = ['draft', 'returned'];
 const WITHDRAWABLE_STATES: EntryState[] = ['draft', 'submitted', 'returned', 'verified'];
+/** Seasons whose standings are frozen: a verified entry stays in them. */
+const FROZEN_SEASON_STATES = ['final', 'archived'];
 
 /** The caller's entry or a 404 (others' entries, drafts included, are private). */
 export async function ownEntry(userId: number, id: number): Promise<Entry> {
@@ -37,24 +40,45 @@ export async function ownEntry(userId: number, id: number): Promise<Entry> {
   return e;
 }
 
+/** The season takes entries now (open, and inside its published dates), or a 409 saying when it does. */
 function requireOpen(season: Season) {
-  if (season.state !== 'open') throw conflict(`${season.name} is not open for entries (it is ${season.state}).`);
+  const problem = entryWindowProblem(season);
+  if (problem) throw conflict(problem);
 }
 
+/**
+ * Claims the entry for a change inside `transaction`: a conditional update that only matches while
+ * the entry is still the caller's and in one of `states`. Under the write lock nothing else changes
+ * the entry until commit, so the check holds for everything the transaction writes afterwards.
+ */
+async function claimEntry(id: number, entrantId: number, states: EntryState[], transaction: Transaction, refuse: (state: string) => string) {
+  const fresh = await Entry.findOne({ where: { id, entrantId }, attributes: ['state'], transaction });
+  const state = fresh?.state;
+  // (Sequelize drops an update of updatedAt alone, so the claim writes the state it read.)
+  const [n] = state && states.includes(state) ? await Entry.update({ state }, { where: { id, entrantId, state }, transaction }) : [0];
+  if (n !== 1) throw new HttpError(409, refuse(state ?? 'gone'), undefined, 'state_changed');
+}
+
+const notEditable = (what: string) => (state: string) =>
+  `${what} can be changed while the entry is a draft or returned; it is ${state} now, so nothing was changed.`;
+
 /** Season, class and machine for new details, with every check a person can fail. */
-async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: number) {
-  const season = await Season.findByPk(d.seasonId);
+async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: number, transaction?: Transaction) {
+  const season = await Season.findByPk(d.seasonId, { transaction });
   if (!season || season.state === 'draft') throw notFound('No such season.');
   requireOpen(season);
-  const cls = await ContestClass.findOne({ where: { id: d.classId, seasonId: season.id } });
+  if (season.videoRequired && !d.evidenceUrl)
+    throw unprocessable(`${season.name} asks for an evidence video: add its link.`, { evidenceUrl: 'This season asks for a link to the video of your run.' });
+  const cls = await ContestClass.findOne({ where: { id: d.classId, seasonId: season.id }, transaction });
   if (!cls) throw new HttpError(400, 'Choose a class of this season.', { classId: 'Choose a class of this season.' });
-  const machine = await Machine.findOne({ where: { id: d.machineId, ownerId: userId } });
+  const machine = await Machine.findOne({ where: { id: d.machineId, ownerId: userId }, transaction });
   if (!machine) throw notFound('No such machine.');
   if (machine.retiredAt) throw unprocessable(`${machine.name} is retired; choose another machine or un-retire it.`, { machineId: 'This machine is retired.' });
   const why = classEligibility(cls, machine, d.nozzleMm, d.materialFamily);
   if (why.length) throw unprocessable(`${machine.name} cannot enter ${cls.name}: ${why[0]}`, { classId: why.join(' ') });
   const counted = await Entry.count({
     where: { entrantId: userId, seasonId: season.id, classId: cls.id, state: COUNTED_STATES, ...(excludeEntryId ? { id: { [Op.ne]: excludeEntryId } } : {}) },
+    transaction,
   });
   if (counted >= season.entryLimit) {
     throw conflict(`You already have ${counted} entries in ${cls.name}; the season allows ${season.entryLimit} per entrant and class. Withdraw a draft to make room.`, {
@@ -154,6 +178,8 @@ export async function createEntryFromUpload(user: User, req: Request) {
     return checkFiles(up);
   };
   return withUpload(up, user.id, check, async (files, transaction, writerFor) => {
+    // Again under the write lock: two uploads at once cannot both take the last place in a class.
+    await checkContext(user.id, details, undefined, transaction);
     const entry = await Entry.create({ ...detailColumns(details), entrantId: user.id, state: 'draft', gcodeSha256: null, submittedAt: null, decidedAt: null }, { transaction });
     const inspectionId = await writeFiles(entry, user.id, files, transaction, writerFor(entry.id));
     await audit('entry.created', { type: 'entry', id: entry.id }, { actorId: user.id, transaction });
@@ -164,7 +190,7 @@ export async function createEntryFromUpload(user: User, req: Request) {
 /** New files for a draft or returned entry; a new G-code re-runs the inspection. */
 export async function replaceEntryFiles(user: User, id: number, req: Request) {
   const entry = await ownEntry(user.id, id);
-  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Files can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(notEditable('Files')(entry.state));
   const season = await Season.findByPk(entry.seasonId);
   requireOpen(season!);
   const up = await receiveUpload(req, { ...ENTRY_UPLOAD_SPEC, fields: [] });
@@ -174,6 +200,10 @@ export async function replaceEntryFiles(user: User, id: number, req: Request) {
     return files;
   };
   return withUpload(up, user.id, check, async (files, transaction, writerFor) => {
+    // The upload may have streamed for minutes: the entry may have been submitted and verified
+    // meanwhile. Checked where the files are written; the streamed files are removed on refusal.
+    await claimEntry(entry.id, user.id, EDITABLE_STATES, transaction, notEditable('Files'));
+    requireOpen((await Season.findByPk(entry.seasonId, { transaction }))!);
     const inspectionId = await writeFiles(entry, user.id, files, transaction, writerFor(entry.id));
     await audit('entry.files_replaced', { type: 'entry', id: entry.id }, { actorId: user.id, transaction, details: { gcode: !!files.gcode, photos: files.photos.length, project: !!files.project } });
     return { entryId: entry.id, inspectionId };
@@ -183,20 +213,27 @@ export async function replaceEntryFiles(user: User, id: number, req: Request) {
 /** Changes the details of a draft or returned entry and re-inspects (the claims changed). */
 export async function updateEntryDetails(user: User, id: number, raw: unknown) {
   const entry = await ownEntry(user.id, id);
-  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Details can be changed while the entry is a draft or returned, not when it is ${entry.state}.`);
+  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(notEditable('Details')(entry.state));
   const details = parseInput(EntryDetailsSchema, raw);
   if (details.seasonId !== entry.seasonId) throw new HttpError(400, 'An entry cannot move to another season.', { seasonId: 'An entry stays in its season.' });
   await checkContext(user.id, details, entry.id);
-  await entry.update(detailColumns(details));
-  const row = await reinspect(entry);
-  return { id: entry.id, inspectionId: row?.id ?? null };
+  const inspectionId = await getSequelize().transaction(async (transaction) => {
+    await checkContext(user.id, details, entry.id, transaction);
+    const [n] = await Entry.update(detailColumns(details), { where: { id: entry.id, entrantId: user.id, state: EDITABLE_STATES }, transaction });
+    if (n !== 1) await claimEntry(entry.id, user.id, EDITABLE_STATES, transaction, notEditable('Details'));
+    // The claims changed (time, sizes, material): the current G-code is inspected again against them.
+    const row = await reinspect(entry, transaction);
+    return row?.id ?? null;
+  });
+  return { id: entry.id, inspectionId };
 }
 
 /** `intro` gets "Season (Class)" to name where the entry competes. */
-async function mailEntrant(entry: Entry, subject: string, intro: (where: string) => string, outro: string) {
-  const [user, season, cls] = await Promise.all([User.findByPk(entry.entrantId), Season.findByPk(entry.seasonId), ContestClass.findByPk(entry.classId)]);
+async function mailEntrant(entry: Entry, subject: string, intro: (where: string) => string, outro: string, transaction: Transaction) {
+  const [user, season, cls] = await Promise.all([User.findByPk(entry.entrantId, { transaction }), Season.findByPk(entry.seasonId, { transaction }), ContestClass.findByPk(entry.classId, { transaction })]);
   if (!user || !season || !cls) return;
-  await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro(`${season.name} (${cls.name})`), 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro));
+  // Queued in the same transaction, delivered after commit: a mail failure cannot change the answer.
+  await sendMail(linkMail(user.email, `${subject}: ${season.name} · ${cls.name} (entry #${entry.id})`, intro(`${season.name} (${cls.name})`), 'Open the entry', appUrl(`/me/entries/${entry.id}`), outro), { transaction });
 }
 
 /** What the caller has already read for an entry, so submitBlockers does not read it again. */
@@ -216,13 +253,14 @@ export async function submitBlockers(entry: Entry, loaded: SubmitContext = {}): 
     loaded.files ?? StoredFile.findAll({ where: { entryId: entry.id }, attributes: ['id', 'kind', 'meta', 'createdAt'] }),
     loaded.inspection !== undefined ? loaded.inspection : latestInspection(entry.id),
   ]);
-  if (season.state !== 'open') out.push(`${season.name} is not open for entries.`);
+  const windowProblem = entryWindowProblem(season);
+  if (windowProblem) out.push(windowProblem);
   if (!EDITABLE_STATES.includes(entry.state)) out.push(`The entry is ${entry.state}.`);
   const gcode = currentGcodeOf(files);
   if (!gcode) out.push('Upload the G-code of your run.');
   const photoCount = files.filter((f) => f.kind === 'photo' && !f.meta?.replacedAt).length;
   if (photoCount < season.photosRequired) out.push(`The season asks for ${season.photosRequired} photos; this entry has ${photoCount}.`);
-  if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link to the details.');
+  if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link under “Edit details”.');
   if (gcode) {
     if (!insp || insp.storedFileId !== gcode.id || insp.status === 'queued' || insp.status === 'running') out.push('The inspection is still running.');
     else if (insp.status === 'failed') out.push(`The inspection failed: ${insp.error ?? 'unknown reason'}. Upload the file again or inspect again.`);
@@ -236,35 +274,69 @@ export async function submitBlockers(entry: Entry, loaded: SubmitContext = {}): 
 }
 
 export async function submitEntry(user: User, id: number) {
-  const entry = await ownEntry(user.id, id);
-  const season = (await Season.findByPk(entry.seasonId))!;
-  requireOpen(season);
-  if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be submitted; this one is ${entry.state}.`);
-  const blockers = await submitBlockers(entry, { season });
-  if (blockers.length) throw unprocessable(blockers[0], { submit: blockers.join(' ') });
-  const resubmitted = entry.state === 'returned';
-  await entry.update({ state: 'submitted', submittedAt: new Date(), decidedAt: null });
-  await audit('entry.submitted', { type: 'entry', id: entry.id }, { actorId: user.id, details: { resubmitted } });
-  await mailEntrant(
-    entry,
-    resubmitted ? 'Entry resubmitted' : 'Entry received',
-    (where) =>
-      resubmitted
-        ? `Your corrected entry #${entry.id} in ${where} is back in the judges' queue.`
-        : `We received your entry #${entry.id} in ${where}. The inspection passed the blocking rules; a judge will now review your evidence.`,
-    'You will get an e-mail when a judge decides. You can withdraw the entry from its page until then.',
-  );
-  return { id: entry.id, state: entry.state };
+  await ownEntry(user.id, id);
+  return getSequelize().transaction(async (transaction) => {
+    // Everything is read under the write lock: no upload, edit or decision commits in between.
+    const entry = (await Entry.findOne({ where: { id, entrantId: user.id }, transaction }))!;
+    const season = (await Season.findByPk(entry.seasonId, { transaction }))!;
+    requireOpen(season);
+    if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be submitted; this one is ${entry.state}.`);
+    const [files, inspection] = await Promise.all([
+      StoredFile.findAll({ where: { entryId: entry.id }, attributes: ['id', 'kind', 'meta', 'createdAt'], transaction }),
+      latestInspection(entry.id, transaction),
+    ]);
+    const blockers = await submitBlockers(entry, { season, files, inspection });
+    if (blockers.length) throw unprocessable(blockers[0], { submit: blockers.join(' ') });
+    const resubmitted = entry.state === 'returned';
+    // The judges verify what was inspected here: the inspection current at submission is recorded,
+    // and the update only applies while it is still the entry's newest one.
+    const [n] = await Entry.update(
+      { state: 'submitted', submittedAt: new Date(), decidedAt: null, submittedInspectionId: inspection!.id },
+      { where: { id: entry.id, entrantId: user.id, state: entry.state, [Op.and]: literal(`(SELECT MAX(i.id) FROM inspections i WHERE i.entry_id = ${entry.id}) = ${inspection!.id}`) }, transaction },
+    );
+    if (n !== 1) throw new HttpError(409, 'The entry changed while it was being submitted (new files or a new inspection); reload it and submit again.', undefined, 'state_changed');
+    await audit('entry.submitted', { type: 'entry', id: entry.id }, { actorId: user.id, details: { resubmitted, inspectionId: inspection!.id }, transaction });
+    await mailEntrant(
+      entry,
+      resubmitted ? 'Entry resubmitted' : 'Entry received',
+      (where) =>
+        resubmitted
+          ? `Your corrected entry #${entry.id} in ${where} is back in the judges' queue.`
+          : `We received your entry #${entry.id} in ${where}. The inspection passed the blocking rules; a judge will now review your evidence.`,
+      'You will get an e-mail when a judge decides. You can withdraw the entry from its page until then.',
+      transaction,
+    );
+    return { id: entry.id, state: 'submitted' as EntryState };
+  });
 }
 
 export async function withdrawEntry(user: User, id: number) {
-  const entry = await ownEntry(user.id, id);
-  if (!WITHDRAWABLE_STATES.includes(entry.state)) throw conflict(`A ${entry.state} entry cannot be withdrawn.`);
-  const from = entry.state;
-  await entry.update({ state: 'withdrawn' });
-  await audit('entry.withdrawn', { type: 'entry', id: entry.id }, { actorId: user.id, details: { from } });
-  await mailEntrant(entry, 'Entry withdrawn', (where) => `You withdrew entry #${entry.id} in ${where}. It no longer counts in the standings and judges will not review it.`, 'Its files and inspection stay on its page.');
-  return { id: entry.id, state: entry.state };
+  await ownEntry(user.id, id);
+  return getSequelize().transaction(async (transaction) => {
+    const entry = (await Entry.findOne({ where: { id, entrantId: user.id }, transaction }))!;
+    const season = (await Season.findByPk(entry.seasonId, { transaction }))!;
+    if (entry.state === 'verified' && FROZEN_SEASON_STATES.includes(season.state))
+      throw conflict(`The standings of ${season.name} are ${season.state}: a verified entry stays in them and cannot be withdrawn. Nothing was changed; write to the organizers if something is wrong with it.`);
+    if (!WITHDRAWABLE_STATES.includes(entry.state)) throw conflict(`A ${entry.state} entry cannot be withdrawn.`);
+    const from = entry.state;
+    // Conditional: still in the state read above, and a verified entry only while its season's standings are not frozen.
+    const [n] = await Entry.update(
+      { state: 'withdrawn' },
+      {
+        where: {
+          id: entry.id,
+          entrantId: user.id,
+          state: from,
+          [Op.and]: literal(`(entries.state <> 'verified' OR (SELECT s.state FROM seasons s WHERE s.id = entries.season_id) NOT IN (${FROZEN_SEASON_STATES.map((s) => `'${s}'`).join(', ')}))`),
+        },
+        transaction,
+      },
+    );
+    if (n !== 1) throw new HttpError(409, 'The entry changed a moment ago (a judge decided, or the season moved on); reload it to see where it stands. Nothing was changed.', undefined, 'state_changed');
+    await audit('entry.withdrawn', { type: 'entry', id: entry.id }, { actorId: user.id, details: { from }, transaction });
+    await mailEntrant(entry, 'Entry withdrawn', (where) => `You withdrew entry #${entry.id} in ${where}. It no longer counts in the standings and judges will not review it.`, 'Its files and inspection stay on its page.', transaction);
+    return { id: entry.id, state: 'withdrawn' as EntryState };
+  });
 }
 
 export async function reinspectEntry(user: User, id: number) {
@@ -309,7 +381,8 @@ export async function entryView(user: User, id: number) {
   await resumeInspection(current);
   const live = files.filter((f) => !f.meta?.replacedAt);
   const byId = new Map(files.map((f) => [f.id, f]));
-  const editable = EDITABLE_STATES.includes(entry.state) && season!.state === 'open';
+  const windowProblem = entryWindowProblem(season!);
+  const editable = EDITABLE_STATES.includes(entry.state) && !windowProblem;
   return {
     id: entry.id,
     state: entry.state,
@@ -343,7 +416,9 @@ export async function entryView(user: User, id: number) {
     canEdit: editable,
     canSubmit: editable,
     blockers: editable ? await submitBlockers(entry, { season: season!, files, inspection: current }) : [],
-    canWithdraw: WITHDRAWABLE_STATES.includes(entry.state),
+    canWithdraw: WITHDRAWABLE_STATES.includes(entry.state) && !(entry.state === 'verified' && FROZEN_SEASON_STATES.includes(season!.state)),
+    /** Why the entry cannot be changed now although its state would allow it (the season's window). */
+    windowProblem: EDITABLE_STATES.includes(entry.state) ? windowProblem : null,
   };
 }
 export type EntryView = Awaited<ReturnType<typeof entryView>>;
@@ -358,20 +433,27 @@ export async function entryInspection(user: User, id: number) {
 
 /** What the new-entry form offers: open seasons, their classes, the entrant's machines and which class each may enter. */
 export async function entryFormOptions(userId: number) {
-  const [seasons, machines] = await Promise.all([
+  const [seasons, machines, used] = await Promise.all([
     Season.findAll({ where: { state: 'open' }, order: [['closesAt', 'ASC']], include: [{ model: ContestClass, as: 'classes' }, { model: TestPiece }] }),
     Machine.findAll({ where: { ownerId: userId, retiredAt: null }, order: [['name', 'ASC']] }),
+    Entry.findAll({ where: { entrantId: userId, state: COUNTED_STATES }, attributes: ['classId'], raw: true }),
   ]);
+  const usedByClass = new Map<number, number>();
+  for (const u of used) usedByClass.set(u.classId, (usedByClass.get(u.classId) ?? 0) + 1);
   return {
     seasons: seasons.map((s) => {
       const classes = ((s as unknown as { classes: ContestClass[] }).classes ?? []).sort((a, b) => a.displayOrder - b.displayOrder);
       const piece = (s as unknown as { TestPiece: TestPiece | null }).TestPiece;
       return {
         id: s.id, slug: s.slug, name: s.name, photosRequired: s.photosRequired, videoRequired: s.videoRequired, photoKinds: s.photoKinds ?? [], entryLimit: s.entryLimit,
+        /** Why the season takes no entries right now (before its opening date, after its closing date). */
+        windowProblem: entryWindowProblem(s),
         timingConvention: s.timingConvention,
         testPieceSizeMm: piece ? { x: piece.sizeXMm, y: piece.sizeYMm, z: piece.sizeZMm } : null,
         classes: classes.map((c) => ({
           id: c.id, name: c.name, description: c.description, materialFamilies: c.materialFamilies,
+          /** The entrant's entries counted against the season's limit in this class. */
+          entriesUsed: usedByClass.get(c.id) ?? 0,
           // Reasons per machine at the machine's own nozzle; the server checks again with the entry's nozzle and material.
           ineligible: Object.fromEntries(machines.map((m) => [m.id, classEligibility(c, m, m.nozzleMm, null)])),
         })),

@@ -6,6 +6,7 @@
  * id is the current one. A row left `queued` or `running` by a server that stopped (crash, deploy)
  * is picked up again the next time anyone looks at the entry (resumeInspection).
  */
+import { Op, type Transaction } from 'sequelize';
 import { Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
 import { enqueue, isQueued, inspectInChild, InspectionRunError, ENGINE_VERSION } from '@/lib/jobs';
 import { localPath } from '@/lib/storage';
@@ -29,12 +30,12 @@ export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null 
 }
 
 /** The entry's current G-code (newest not replaced). */
-export async function currentGcode(entryId: number): Promise<StoredFile | null> {
-  return currentGcodeOf(await StoredFile.findAll({ where: { entryId, kind: 'gcode' } }));
+export async function currentGcode(entryId: number, transaction?: Transaction): Promise<StoredFile | null> {
+  return currentGcodeOf(await StoredFile.findAll({ where: { entryId, kind: 'gcode' }, transaction }));
 }
 
-export async function latestInspection(entryId: number): Promise<Inspection | null> {
-  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']] });
+export async function latestInspection(entryId: number, transaction?: Transaction): Promise<Inspection | null> {
+  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']], transaction });
 }
 
 /** Engine options from the entry, its season and its machine. */
@@ -75,6 +76,23 @@ export function countFindings(rules: RuleResult[], flags: Flag[]) {
   return { blocking, advisory };
 }
 
+/**
+ * Writes an inspection's outcome, trying again a few times: a report that was computed must not be
+ * lost to a transient database error, which would leave the row `running` until someone opens the
+ * entry (resumeInspection).
+ */
+async function storeOutcome(row: Inspection, values: Parameters<Inspection['update']>[0]) {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      await row.update(values);
+      return;
+    } catch (err) {
+      if (attempt >= 4) throw err;
+      await new Promise((r) => setTimeout(r, 250 * 2 ** attempt));
+    }
+  }
+}
+
 async function runInspection(inspectionId: number) {
   const row = await Inspection.findByPk(inspectionId);
   if (!row || row.status === 'done' || row.status === 'failed') return;
@@ -93,7 +111,7 @@ async function runInspection(inspectionId: number) {
     const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
     const time = report.time as { estimated_s: number | null };
     const layers = report.layers as { height_mm: number | null };
-    await row.update({
+    await storeOutcome(row, {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
@@ -111,7 +129,7 @@ async function runInspection(inspectionId: number) {
   } catch (err) {
     const message = err instanceof InspectionRunError ? err.message : 'The inspection failed on our side; try "Inspect again".';
     if (!(err instanceof InspectionRunError)) console.error('inspection', inspectionId, err);
-    await row.update({ status: 'failed', error: message, finishedAt: new Date() });
+    await storeOutcome(row, { status: 'failed', error: message, finishedAt: new Date() });
   }
   await afterInspectionStored(row.id);
 }
@@ -120,12 +138,19 @@ export function queueInspection(inspectionId: number) {
   enqueue(jobKey(inspectionId), () => runInspection(inspectionId));
 }
 
-/** Creates a fresh inspection row for the entry's current G-code and queues it. */
-export async function reinspect(entry: Entry): Promise<Inspection | null> {
-  const gcode = await currentGcode(entry.id);
+/**
+ * Creates a fresh inspection row for the entry's current G-code and queues it — inside
+ * `transaction` when given, queued once it commits.
+ */
+export async function reinspect(entry: Entry, transaction?: Transaction): Promise<Inspection | null> {
+  const gcode = await currentGcode(entry.id, transaction);
   if (!gcode) return null;
-  const row = await Inspection.create({ entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null });
-  queueInspection(row.id);
+  const row = await Inspection.create(
+    { entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+    { transaction },
+  );
+  if (transaction) transaction.afterCommit(() => queueInspection(row.id));
+  else queueInspection(row.id);
   return row;
 }
 

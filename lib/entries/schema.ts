@@ -1,6 +1,7 @@
 /** Entry form input: one schema for the browser form and the API. Framework-free. */
 import { z } from 'zod';
 import { MaterialFamilySchema } from '@/lib/inspection/materials';
+import { idSchema } from '@/lib/ids';
 
 /**
  * "h:mm:ss.t", "mm:ss.t" or "ss.t" (tenths optional; hundredths are rounded to tenths) → ms.
@@ -25,7 +26,7 @@ const optionalMm = (what: string) =>
       .refine((v) => Number.isFinite(v) && v > 0 && v <= 1000, `${what} must be between 0 and 1000 mm.`)
       .nullable(),
   );
-const id = (what: string) => z.coerce.number({ error: () => `Choose ${what}.` }).int(`Choose ${what}.`).positive(`Choose ${what}.`);
+const id = (what: string) => idSchema(`Choose ${what}.`);
 
 export const EntryDetailsSchema = z.object({
   seasonId: id('a season'),
@@ -52,5 +53,5 @@ export const EntryDetailsSchema = z.object({
 export type EntryDetails = z.infer<typeof EntryDetailsSchema>;
 export const ENTRY_DETAIL_FIELDS = Object.keys(EntryDetailsSchema.shape) as (keyof EntryDetails)[];
 
-/** Route parameter `[id]` of entry, machine and file routes. */
-export const IdParams = z.object({ id: z.coerce.number({ error: () => 'The id must be a whole number.' }).int('The id must be a whole number.').positive('The id must be a positive whole number.') });
+/** Route parameter `[id]` of entry, machine and file routes (the shared id schema). */
+export { IdParams } from '@/lib/ids';

@@ -152,66 +152,47 @@ const OUTPUT: Record<PhotoType, { mime: string; ext: string }> = {
   heic: { mime: 'image/jpeg', ext: 'jpg' },
 };
 
-/** Cleans one uploaded photo. Throws a 422 HttpError with a sentence for photos we cannot make safe. */
+/**
+ * Cleans one uploaded photo. Throws a 422 HttpError with a sentence for photos we cannot make safe.
+ * A photo must decode: a file that only starts like an image (a HEIC header followed by anything)
+ * is refused, never stored as it came. The bundled libvips decodes HEIF only with AV1 coding (AVIF),
+ * so an HEVC-coded phone HEIC is refused too, with the way out (share or export it as JPEG).
+ */
 export async function processPhoto(tmpPath: string, type: PhotoType, label: string): Promise<ProcessedPhoto> {
   const dir = await fsp.mkdtemp(path.join(os.tmpdir(), 'hotlap-photo-'));
   const cleanup = () => fsp.rm(dir, { recursive: true, force: true });
   const id = crypto.randomBytes(6).toString('hex');
   try {
     const exif = await readExif(tmpPath);
-    let decodable = true;
     let widthPx: number | null = null;
     let heightPx: number | null = null;
     try {
       const m = await sharp(tmpPath, { limitInputPixels: MAX_PHOTO_PIXELS }).metadata();
       widthPx = m.autoOrient?.width ?? m.width ?? null;
       heightPx = m.autoOrient?.height ?? m.height ?? null;
-      // metadata() reads headers only; HEVC-coded HEIC fails later at decode, so try a tiny decode.
+      // metadata() reads headers only; a damaged or HEVC-coded file fails at decode, so decode a tiny copy.
       await sharp(tmpPath, { limitInputPixels: MAX_PHOTO_PIXELS }).resize(8, 8).raw().toBuffer();
     } catch (err) {
-      if (type !== 'heic') {
-        const msg = (err as Error).message ?? '';
-        if (/pixel limit/i.test(msg)) throw new HttpError(422, `${label} is larger than ${MAX_PHOTO_PIXELS / 1e6} megapixels; resize it and try again.`);
-        throw new HttpError(422, `${label} could not be read as an image; it may be damaged. Export it again as JPEG or PNG.`);
-      }
-      decodable = false;
+      const msg = (err as Error).message ?? '';
+      if (/pixel limit/i.test(msg)) throw new HttpError(422, `${label} is larger than ${MAX_PHOTO_PIXELS / 1e6} megapixels; resize it and try again.`);
+      if (type === 'heic')
+        throw new HttpError(422, `${label} could not be decoded as a HEIC photo here (damaged, or coded in a way we cannot read). Share or export it as JPEG (most phones do this when sharing) and upload again.`);
+      throw new HttpError(422, `${label} could not be read as an image; it may be damaged. Export it again as JPEG or PNG.`);
     }
 
-    if (decodable) {
-      const out = OUTPUT[type];
-      const cleanPath = path.join(dir, `clean-${id}.${out.ext}`);
-      const thumbPath = path.join(dir, `thumb-${id}.jpg`);
-      const base = () => sharp(tmpPath, { limitInputPixels: MAX_PHOTO_PIXELS }).rotate();
-      const clean = base();
-      if (out.ext === 'jpg') clean.jpeg({ quality: 90 });
-      else if (out.ext === 'png') clean.png();
-      else clean.webp({ quality: 90 });
-      await clean.toFile(cleanPath);
-      await base().resize(THUMBNAIL_SIZE_PX, THUMBNAIL_SIZE_PX, { fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toFile(thumbPath);
-      return {
-        cleanPath, cleanMime: out.mime, cleanExt: out.ext, thumbPath,
-        meta: { capturedAt: exif.capturedAt, locationRemoved: exif.hasGps, widthPx, heightPx },
-        cleanup,
-      };
-    }
-
-    // Undecodable HEIC: blank GPS in place, keep the original bytes, no thumbnail.
-    const buf = await fsp.readFile(tmpPath);
-    const hadGps = blankExifGps(buf) > 0;
-    const after = exifTiffOffsets(buf).length ? await Promise.all(exifTiffOffsets(buf).map((t) => readExif(buf.subarray(t)))) : [];
-    if (after.some((x) => x.hasGps)) {
-      throw new HttpError(422, `${label}: the location could not be removed from this HEIC photo. Export it as JPEG (most phones do this when sharing) and upload again.`);
-    }
-    const cleanPath = path.join(dir, `clean-${id}.heic`);
-    await fsp.writeFile(cleanPath, buf);
+    const out = OUTPUT[type];
+    const cleanPath = path.join(dir, `clean-${id}.${out.ext}`);
+    const thumbPath = path.join(dir, `thumb-${id}.jpg`);
+    const base = () => sharp(tmpPath, { limitInputPixels: MAX_PHOTO_PIXELS }).rotate();
+    const clean = base();
+    if (out.ext === 'jpg') clean.jpeg({ quality: 90 });
+    else if (out.ext === 'png') clean.png();
+    else clean.webp({ quality: 90 });
+    await clean.toFile(cleanPath);
+    await base().resize(THUMBNAIL_SIZE_PX, THUMBNAIL_SIZE_PX, { fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toFile(thumbPath);
     return {
-      cleanPath, cleanMime: 'image/heic', cleanExt: 'heic', thumbPath: null,
-      meta: {
-        capturedAt: exif.capturedAt ?? after.find((x) => x.capturedAt)?.capturedAt ?? null,
-        locationRemoved: hadGps,
-        widthPx, heightPx,
-        noThumbnailReason: 'HEIC photos coded with HEVC cannot be previewed here; judges can download the original.',
-      },
+      cleanPath, cleanMime: out.mime, cleanExt: out.ext, thumbPath,
+      meta: { capturedAt: exif.capturedAt, locationRemoved: exif.hasGps, widthPx, heightPx },
       cleanup,
     };
   } catch (err) {

@@ -3,6 +3,7 @@
  * those of a class the judge competes in (conflict of interest).
  */
 import { z } from 'zod';
+import { idSchema } from '@/lib/ids';
 import { Op } from 'sequelize';
 import { ContestClass, Entry, EntryReinspection, Inspection, Review, Season, User } from '@/models';
 import { competingClassKeys, isConflicted } from './conflicts';
@@ -13,8 +14,8 @@ import { flagKinds, QUEUE_FLAG_FILTER_LIST, type QueueFlagFilter } from './flags
 import { requiredVerifications, roundOpenedAt, roundVerifiers } from './round';
 
 export const QueueFilterSchema = z.object({
-  season: z.coerce.number().int().positive().optional(),
-  class: z.coerce.number().int().positive().optional(),
+  season: idSchema('The season filter must be a season number.').optional(),
+  class: idSchema('The class filter must be a class number.').optional(),
   flag: z.enum(QUEUE_FLAG_FILTER_LIST, { message: `Choose one of: ${QUEUE_FLAG_FILTER_LIST.join(', ')}.` }).optional(),
 });
 export type QueueFilter = z.infer<typeof QueueFilterSchema>;

@@ -6,9 +6,10 @@ import { z } from 'zod';
 import { MOTION_SYSTEMS, MODIFICATION_CLASSES, SEASON_STATES, type SeasonState } from '@/lib/domain';
 import { MAX_RULES, RuleSchema } from '@/lib/inspection/rules';
 import { MaterialFamilySchema } from '@/lib/inspection/materials';
-import { LOCAL_DATETIME_RE, isTimeZone } from '@/lib/seasons/time';
+import { LOCAL_DATETIME_RE, isRealLocalDateTime, isTimeZone } from '@/lib/seasons/time';
 import { MARKDOWN_MAX_CHARS } from '@/lib/seasons/markdown';
 import { EmailSchema } from '@/lib/auth/schemas';
+import { idSchema } from '@/lib/ids';
 
 export const SLUG_RE = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
@@ -30,7 +31,10 @@ const whole = (what: string, min: number, max: number) =>
     .max(max, { message: `${what} can be at most ${max}.` });
 
 const localDateTime = (what: string) =>
-  z.string({ error: `${what} is required.` }).regex(LOCAL_DATETIME_RE, { message: `${what}: enter a date and a time (YYYY-MM-DD HH:MM).` });
+  z
+    .string({ error: `${what} is required.` })
+    .regex(LOCAL_DATETIME_RE, { message: `${what}: enter a date and a time (YYYY-MM-DD HH:MM).` })
+    .refine(isRealLocalDateTime, { message: `${what} is not a real date and time: check the month (1–12), the day of that month, the hour (0–23) and the minutes (0–59).` });
 
 export const TIMING_CONVENTIONS = [
   'First extrusion to last extrusion',
@@ -147,7 +151,7 @@ export const ReinspectSchema = z.object({ confirm: z.literal(true, { error: 'Con
 
 export const TEST_PIECE_MAX_BYTES = 100 * 1024 * 1024;
 
-const positiveId = (what: string) => z.coerce.number({ error: `${what} must be a positive whole number.` }).int({ message: `${what} must be a positive whole number.` }).positive({ message: `${what} must be a positive whole number.` });
+const positiveId = (what: string) => idSchema(`${what} must be a positive whole number.`);
 export const SeasonParams = z.object({ id: positiveId('The season id') });
 export const ClassParams = z.object({ id: positiveId('The season id'), classId: positiveId('The class id') });
 export const JudgeParams = z.object({ id: positiveId('The season id'), userId: positiveId('The user id') });

@@ -7,6 +7,21 @@
 
 export const LOCAL_DATETIME_RE = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})$/;
 
+/**
+ * A real calendar date and time in the fixed format: month 1–12, a day that month has (leap years
+ * by the Gregorian rule), hour 0–23, minute 0–59. `Date.UTC` would roll 2026-13-45T99:99 over
+ * into a date in 2027 instead of refusing it.
+ */
+export function isRealLocalDateTime(local: string): boolean {
+  const m = LOCAL_DATETIME_RE.exec(local);
+  if (!m) return false;
+  const [y, mo, d, h, mi] = m.slice(1).map(Number);
+  if (mo < 1 || mo > 12 || d < 1 || h > 23 || mi > 59) return false;
+  const leap = (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0;
+  const days = [31, leap ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31][mo - 1];
+  return d <= days;
+}
+
 export function isTimeZone(tz: string): boolean {
   if (!tz || tz.length > 64) return false;
   try {
@@ -44,7 +59,7 @@ export function zoneOffsetMs(utcMs: number, tz: string): number {
  */
 export function zonedLocalToUtc(local: string, tz: string): Date {
   const m = LOCAL_DATETIME_RE.exec(local);
-  if (!m) throw new RangeError(`Not a local date-time: ${JSON.stringify(local)}`);
+  if (!m || !isRealLocalDateTime(local)) throw new RangeError(`Not a local date-time: ${JSON.stringify(local)}`);
   const guess = Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]), Number(m[4]), Number(m[5]));
   const first = zoneOffsetMs(guess, tz);
   let t = guess - first;

@@ -5,6 +5,7 @@
  */
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
+import { parseId as parsePlainId } from '@/lib/ids';
 import { getSequelize } from '@/lib/db';
 import { badRequest, notFound } from '@/lib/errors';
 import { ruleSentence, RuleSchema } from '@/lib/inspection/rules';
@@ -19,7 +20,6 @@ const select = <T extends object>(sql: string, replacements: unknown[] | Record<
   seq().query<T>(sql, { replacements, type: QueryTypes.SELECT });
 
 const SlugSchema = z.string().regex(/^[a-z0-9][a-z0-9-]{0,63}$/);
-const IdSchema = z.string().regex(/^[1-9]\d{0,9}$/);
 
 export function parseSlug(value: string, what: 'season' | 'class'): string {
   if (!SlugSchema.safeParse(value).success) throw badRequest(`The ${what} must be given by its slug: lowercase letters, digits and hyphens (e.g. "open-04").`, { [what]: 'Not a valid slug.' });
@@ -27,8 +27,9 @@ export function parseSlug(value: string, what: 'season' | 'class'): string {
 }
 
 export function parseId(value: string, what: string): number {
-  if (!IdSchema.safeParse(value).success) throw badRequest(`The ${what} id must be a positive whole number.`, { [what]: 'Not a valid id.' });
-  return Number(value);
+  const id = parsePlainId(value);
+  if (id === null) throw badRequest(`The ${what} id must be a positive whole number.`, { [what]: 'Not a valid id.' });
+  return id;
 }
 
 interface SeasonRow {

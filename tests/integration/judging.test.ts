@@ -153,16 +153,22 @@ describe('decisions', () => {
     expect(JSON.parse(audits[0].details)).toMatchObject({ decision: 'reject', fromState: 'submitted', toState: 'rejected' });
     // A second rejection of the same state is refused; a new decision (reversal) must name the state it saw.
     expect((await clients.judge2.post(`/api/judging/entries/${entryId}/decisions`, reject)).status).toBe(409);
-    const again = await clients.judge2.post(`/api/judging/entries/${entryId}/decisions`, { ...verify, reasonCodes: ['flags_explained'], expectedState: 'rejected' });
+    // A rejected entry is not verified by a reversal: only what the entrant submits is verified.
+    const reversal = await clients.judge2.post(`/api/judging/entries/${entryId}/decisions`, { ...verify, reasonCodes: ['flags_explained'], expectedState: 'rejected' });
+    expect(reversal.status).toBe(409);
+    expect((await reversal.json()).error).toMatch(/Only a submitted entry can be verified/);
+    // A judge who reverses a rejection returns the entry, and the entrant resubmits it.
+    const again = await clients.judge2.post(`/api/judging/entries/${entryId}/decisions`, { decision: 'return', reasonCodes: ['timing_unconfirmed'], note: 'Reopened: add the full video and submit again.', expectedState: 'rejected' });
     expect(again.status).toBe(201);
-    expect((await again.json()).entryState).toBe('verified');
+    expect((await again.json()).entryState).toBe('returned');
     // Reviews are never edited: both rows are kept.
     expect((await sql(dbFile, 'SELECT id FROM reviews WHERE entry_id = ?', [entryId])).length).toBe(2);
   });
 
   it('two judges deciding at the same moment leave one consistent state', async () => {
     for (let round = 0; round < 4; round++) {
-      const entryId = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
+      // Inspected entries: a judge verifies only an entry whose submitted inspection is current.
+      const { entryId } = await createReviewableEntry(dbFile, NOT_JUDGE2S_CLASS);
       const path = `/api/judging/entries/${entryId}/decisions`;
       const [a, b] = await Promise.all([clients.judge.post(path, reject), clients.judge2.post(path, verify)]);
       const statuses = [a.status, b.status].sort();
@@ -181,7 +187,8 @@ describe('decisions', () => {
   it('with two verifying judges required, an entry counts only after two different judges verify it — even at the same moment', async () => {
     await sql(dbFile, 'UPDATE seasons SET verifications_required = 2 WHERE id = ?', [frostId]);
     try {
-      const entryId = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
+      // Inspected entries: a judge verifies only an entry whose submitted inspection is current.
+      const { entryId } = await createReviewableEntry(dbFile, NOT_JUDGE2S_CLASS);
       const path = `/api/judging/entries/${entryId}/decisions`;
       let res = await clients.judge.post(path, verify);
       expect(res.status).toBe(201);
@@ -194,7 +201,7 @@ describe('decisions', () => {
       expect(await res.json()).toMatchObject({ entryState: 'verified', verifications: { count: 2, required: 2 }, mailed: true });
 
       // Simultaneous verifications by both judges: both count, and the entry ends verified exactly once.
-      const e2 = await createSubmittedEntry(dbFile, NOT_JUDGE2S_CLASS);
+      const { entryId: e2 } = await createReviewableEntry(dbFile, NOT_JUDGE2S_CLASS);
       const p2 = `/api/judging/entries/${e2}/decisions`;
       const both = await Promise.all([clients.judge.post(p2, verify), clients.judge2.post(p2, verify)]);
       expect(both.map((r) => r.status)).toEqual([201, 201]);

@@ -323,6 +323,8 @@ describe('lifecycle, rulebook freeze and judges', () => {
     // A draft entry with a real PrusaSlicer G-code of the Beacon, made through the entrant API.
     const [machine] = await sql<{ id: number }>(dbFile, "SELECT id FROM machines WHERE name = 'Quillwork 180'");
     const gcode = fs.readFileSync(path.resolve(__dirname, '..', 'fixtures', 'gcode', 'prusa-beacon-020.gcode.gz'));
+    // Entries are taken only inside the published window: this season's opening date is moved to the past.
+    await sql(dbFile, 'UPDATE seasons SET opens_at = ? WHERE id = ?', [new Date(Date.now() - 86_400_000).toISOString().replace('T', ' ').replace('Z', ' +00:00'), seasonId]);
     const f = new FormData();
     const fields = { seasonId: String(seasonId), classId: String(classA), machineId: String(machine.id), materialFamily: 'pla', materialName: 'Club grey', nozzleMm: '0.4', claimedTime: '0:25:10.0', evidenceUrl: 'https://video.example.org/run', measuredXMm: '20', measuredYMm: '20', measuredZMm: '20', notes: '' };
     for (const [k, v] of Object.entries(fields)) f.append(k, v);

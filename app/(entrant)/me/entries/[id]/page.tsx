@@ -7,8 +7,10 @@ import { HttpError } from '@/lib/errors';
 import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { EntryWorkbench } from '@/components/entrant/EntryWorkbench';
+import { EntryDetailsForm } from '@/components/entrant/EntryDetailsForm';
 import { formatDateTime, formatDurationMs } from '@/lib/format';
 import { reasonLabel } from '@/lib/reviews/reasons';
+import { parseId } from '@/lib/ids';
 
 export const metadata = { title: 'Entry' };
 export const dynamic = 'force-dynamic';
@@ -20,7 +22,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
   const user = await requirePageRole(`/me/entries/${id}`, 'entrant');
   let entry;
   try {
-    entry = await entryView(user, /^\d+$/.test(id) ? Number(id) : NaN);
+    entry = await entryView(user, parseId(id) ?? NaN);
   } catch (err) {
     if (err instanceof HttpError && err.status === 404) notFound();
     throw err;
@@ -68,6 +70,9 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
           </ul>
         </section>
       </div>
+
+      {entry.windowProblem && <p className="card text-sm" role="status" data-testid="window-problem">{entry.windowProblem}</p>}
+      {entry.canEdit && <EntryDetailsForm entry={entry} />}
 
       <EntryWorkbench entry={entry} limitMm3s={limit?.limitMm3s ?? null} />
 

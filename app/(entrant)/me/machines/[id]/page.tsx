@@ -1,4 +1,5 @@
 import { notFound } from 'next/navigation';
+import { parseId } from '@/lib/ids';
 import { requirePageRole } from '@/lib/auth/guard';
 import { extrusionTestsOf, machineJson } from '@/lib/machines';
 import { Machine } from '@/models';
@@ -11,7 +12,8 @@ export const metadata = { title: 'Machine' };
 export default async function MachinePage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
   const user = await requirePageRole(`/me/machines/${id}`, 'entrant');
-  const row = /^\d+$/.test(id) ? await Machine.findOne({ where: { id: Number(id), ownerId: user.id } }) : null;
+  const machineId = parseId(id);
+  const row = machineId !== null ? await Machine.findOne({ where: { id: machineId, ownerId: user.id } }) : null;
   if (!row) notFound();
   const machine = machineJson(row);
   const tests = await extrusionTestsOf(machine.id);

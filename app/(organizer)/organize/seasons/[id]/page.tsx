@@ -1,4 +1,5 @@
 import Link from 'next/link';
+import { parseId } from '@/lib/ids';
 import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth/guard';
 import { organizerSeasonView } from '@/lib/seasons/view';
@@ -18,8 +19,8 @@ export const metadata = { title: 'Season' };
 export default async function SeasonAdminPage({ params }: { params: Promise<{ id: string }> }) {
   const { id: raw } = await params;
   const user = await requirePageRole(`/organize/seasons/${raw}`, 'organizer');
-  const id = Number(raw);
-  if (!Number.isInteger(id) || id <= 0) notFound();
+  const id = parseId(raw);
+  if (id === null) notFound();
   const view = await organizerSeasonView({ user }, id).catch((err) => {
     if (err instanceof HttpError && err.status === 404) notFound();
     throw err;
