@@ -2,6 +2,8 @@
 import { User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { hashPassword } from '@/lib/auth/password';
+import { countMailRequest, clearSignInLimits } from '@/lib/auth/limits';
+import { endAllSessions } from '@/lib/auth/sessions';
 import { issueToken, consumeToken } from '@/lib/auth/tokens';
 import { sendMail, appUrl, linkMail } from '@/lib/mail';
 import { audit } from '@/lib/audit';
@@ -29,7 +31,13 @@ async function sendVerification(user: User) {
   );
 }
 
+/**
+ * The two branches below (address taken / new) do the same expensive work — one bcrypt hash, one
+ * mail — so the time of the answer does not tell whether an address has an account.
+ */
 export async function signUp(input: SignUpInput, ip: string | null): Promise<{ message: string }> {
+  await countMailRequest(input.email, ip);
+  const passwordHash = await hashPassword(input.password);
   const existing = await User.findOne({ where: { email: input.email } });
   if (existing) {
     // Tell the owner of the address, not the person at the form.
@@ -48,7 +56,7 @@ export async function signUp(input: SignUpInput, ip: string | null): Promise<{ m
   const user = await User.create({
     email: input.email,
     name: input.name,
-    passwordHash: await hashPassword(input.password),
+    passwordHash,
     roles: ['entrant'],
     emailVerifiedAt: null,
   });
@@ -57,9 +65,29 @@ export async function signUp(input: SignUpInput, ip: string | null): Promise<{ m
   return { message: SIGNUP_SENT };
 }
 
-export async function resendVerification(email: string): Promise<{ message: string }> {
+/**
+ * Sent when a link is asked for an address with no account (or one already confirmed): the person
+ * at the form cannot tell the cases apart, by the answer or by its timing, since a mail goes out
+ * either way; the owner of the mailbox learns what happened.
+ */
+async function sendNoLinkNotice(email: string, what: string) {
+  await sendMail(
+    linkMail(
+      email,
+      'About your Hotlap request',
+      `Someone (maybe you) asked Hotlap for ${what} for this address. There is no link to send: the address has no Hotlap account, or is already confirmed.`,
+      'Go to Hotlap',
+      appUrl('/signin'),
+      'If it was not you, you can ignore this message.',
+    ),
+  );
+}
+
+export async function resendVerification(email: string, ip: string | null = null): Promise<{ message: string }> {
+  await countMailRequest(email, ip);
   const user = await User.findOne({ where: { email } });
   if (user && !user.emailVerifiedAt) await sendVerification(user);
+  else await sendNoLinkNotice(email, 'a new confirmation link');
   return { message: SIGNUP_SENT };
 }
 
@@ -74,9 +102,11 @@ export async function verifyEmail(token: string, ip: string | null): Promise<{ e
   });
 }
 
-export async function requestPasswordReset(email: string): Promise<{ message: string }> {
+export async function requestPasswordReset(email: string, ip: string | null = null): Promise<{ message: string }> {
+  await countMailRequest(email, ip);
   const user = await User.findOne({ where: { email } });
-  if (user) {
+  if (!user) await sendNoLinkNotice(email, 'a password reset link');
+  else {
     const token = await issueToken(user.id, 'reset');
     await sendMail(
       linkMail(
@@ -100,9 +130,21 @@ export async function confirmPasswordReset(token: string, password: string, ip: 
     if (!user) throw new HttpError(400, 'This reset link belongs to an account that no longer exists.');
     // Following the link proves control of the mailbox, so the address counts as confirmed too.
     await user.update({ passwordHash, emailVerifiedAt: user.emailVerifiedAt ?? new Date() }, { transaction });
+    // A new password ends every session signed in with the old one (a thief's too).
+    await endAllSessions(user.id, transaction);
     await audit('user.password_reset', { type: 'user', id: user.id }, { actorId: user.id, ip, transaction });
     return { email: user.email };
+  }).then(async (done) => {
+    // Proof of the mailbox: the owner gets past any sign-in limit a stranger ran up on the account.
+    await clearSignInLimits(done.email, ip);
+    return done;
   });
+}
+
+/** "Sign out everywhere": every session of the account ends, this one included. */
+export async function signOutEverywhere(user: User, ip: string | null) {
+  await endAllSessions(user.id);
+  await audit('user.sessions_ended', { type: 'user', id: user.id }, { actorId: user.id, ip });
 }
 
 /** Sets a user's roles (entrant is always kept). Admins cannot remove their own admin role. */
@@ -115,6 +157,8 @@ export async function setRoles(actor: User, userId: number, roles: Role[], ip: s
       throw new HttpError(409, 'You cannot remove your own admin role; ask another admin.');
     const before = user.roles;
     await user.update({ roles: [...next] }, { transaction });
+    // Sessions from before the change end: the person signs in again under the new roles.
+    if (before.join() !== next.join()) await endAllSessions(user.id, transaction);
     await audit('user.roles_changed', { type: 'user', id: user.id }, { actorId: actor.id, ip, details: { before, after: next }, transaction });
     return user;
   });

@@ -5,7 +5,6 @@
 import { getSequelize } from '@/lib/db';
 import { User } from './User';
 import { AuthToken } from './AuthToken';
-import { Throttle } from './Throttle';
 import { Season } from './Season';
 import { TestPiece } from './TestPiece';
 import { SeasonJudge } from './SeasonJudge';
@@ -23,13 +22,13 @@ import { SeasonSubscription } from './SeasonSubscription';
 import { JudgeInvitation } from './JudgeInvitation';
 
 export {
-  User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
+  User, AuthToken, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
   SeasonSubscription, JudgeInvitation,
 };
 
 const ALL = [
-  User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
+  User, AuthToken, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
   SeasonSubscription, JudgeInvitation,
 ];
