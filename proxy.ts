@@ -11,7 +11,7 @@ import { NextResponse, type NextRequest } from 'next/server';
 import { matchApiRoute, allowHeader } from '@/lib/security/apiRoutes';
 import { contentSecurityPolicy, HSTS_VALUE } from '@/lib/security/headers';
 
-const MEMBER_PREFIXES = ['/me', '/judging', '/organize', '/admin'];
+const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
 const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
 const KNOWN_METHODS = new Set(['GET', 'HEAD', 'OPTIONS', 'POST', 'PUT', 'PATCH', 'DELETE']);
 

@@ -29,7 +29,7 @@ export const SignUpSchema = z
   })
   .superRefine((v, ctx) => {
     // A password made of the person's own name or address is guessed first.
-    const weakness = passwordWeakness(v.password, [v.name, v.email, v.email.split('@')[0]]);
+    const weakness = passwordWeakness(v.password, [...v.name.split(/\s+/), v.email, ...v.email.split('@')[0].split(/[.\-_+]/)]);
     if (weakness) ctx.addIssue({ code: 'custom', path: ['password'], message: weakness });
   });
 export type SignUpInput = z.infer<typeof SignUpSchema>;
