@@ -1,23 +1,22 @@
 /**
- * Runs before every request:
- * - security headers that change per request: a Content-Security-Policy with a fresh nonce (the
- *   static headers come from next.config.mjs), HSTS over https;
- * - 405 with an Allow header for a method an API route does not have (and for methods no route
- *   has, like TRACE), from the one list in lib/security/apiRoutes.ts;
+ * Runs before page requests that carry no body:
+ * - a Content-Security-Policy with a fresh nonce (the static security headers come from
+ *   next.config.mjs), HSTS over https;
+ * - 405 for a method no page has;
  * - routing help: visitors without a session cookie who open a members' page go to sign-in first.
  *   Authorization happens again in every page, route handler and server action.
+ *
+ * Not for /api, nor for any request with a body (see `config`): when a proxy runs for a request,
+ * Next.js copies its body in memory (up to proxyClientMaxBodySize, 10 MB; the rest is silently cut)
+ * and waits for the whole body before the handler starts. Uploads would be truncated, and route()
+ * could not refuse an oversized body before it was read.
  */
 import { NextResponse, type NextRequest } from 'next/server';
-import { matchApiRoute, allowHeader } from '@/lib/security/apiRoutes';
 import { contentSecurityPolicy, HSTS_VALUE } from '@/lib/security/headers';
 
 const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
 const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
-const KNOWN_METHODS = new Set(['GET', 'HEAD', 'OPTIONS', 'POST', 'PUT', 'PATCH', 'DELETE']);
-
-function methodNotAllowed(allow: string) {
-  return NextResponse.json({ error: `This address does not accept that method. It accepts: ${allow}.` }, { status: 405, headers: { Allow: allow } });
-}
+const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
 
 function isHttps(req: NextRequest) {
   // Behind a TLS-terminating proxy the app sees http; the proxy says what the browser used.
@@ -36,14 +35,9 @@ export function proxy(req: NextRequest) {
   const nonce = Buffer.from(crypto.getRandomValues(new Uint8Array(16))).toString('base64');
   const csp = contentSecurityPolicy(nonce, process.env.NODE_ENV === 'development');
 
-  if (pathname.startsWith('/api/')) {
-    const r = matchApiRoute(pathname);
-    if (r) {
-      const allow = allowHeader(r);
-      if (!allow.split(', ').includes(req.method)) return withSecurityHeaders(methodNotAllowed(allow), csp, req);
-    } else if (!KNOWN_METHODS.has(req.method)) return withSecurityHeaders(methodNotAllowed('GET, HEAD, OPTIONS'), csp, req);
-  } else if (!KNOWN_METHODS.has(req.method)) {
-    return withSecurityHeaders(methodNotAllowed('GET, HEAD, OPTIONS, POST'), csp, req);
+  if (!PAGE_METHODS.split(', ').includes(req.method)) {
+    const res = NextResponse.json({ error: `Pages accept ${PAGE_METHODS}.` }, { status: 405, headers: { Allow: PAGE_METHODS } });
+    return withSecurityHeaders(res, csp, req);
   }
 
   if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !SESSION_COOKIES.some((c) => req.cookies.has(c))) {
@@ -61,6 +55,15 @@ export function proxy(req: NextRequest) {
 }
 
 export const config = {
-  // Everything but the build's static files (those get the static headers from next.config.mjs).
-  matcher: [{ source: '/((?!_next/static|_next/image|favicon.svg).*)' }],
+  matcher: [
+    {
+      // Pages only: not the API, the build's static files or the icon (those get the static headers).
+      source: '/((?!api/|_next/static|_next/image|favicon.svg).*)',
+      // Only requests without a body (a body always comes with one of these two headers in HTTP/1.1).
+      missing: [
+        { type: 'header', key: 'content-length' },
+        { type: 'header', key: 'transfer-encoding' },
+      ],
+    },
+  ],
 };

@@ -70,7 +70,7 @@ export async function signUp(input: SignUpInput, ip: string | null): Promise<{ m
  * at the form cannot tell the cases apart, by the answer or by its timing, since a mail goes out
  * either way; the owner of the mailbox learns what happened.
  */
-async function sendNoLinkNotice(email: string, what: string) {
+async function sendNoLinkNotice(email: string, what: string): Promise<void> {
   await sendMail(
     linkMail(
       email,
@@ -102,11 +102,20 @@ export async function verifyEmail(token: string, ip: string | null): Promise<{ e
   });
 }
 
-export async function requestPasswordReset(email: string, ip: string | null = null): Promise<{ message: string }> {
+/** Runs work now, or later: route handlers pass Next.js's `after` so it runs once the answer is sent. */
+export type Defer = (work: () => Promise<void>) => void | Promise<void>;
+const now: Defer = (work) => work();
+
+/**
+ * The answer is the same whether the address has an account, and so is its timing: only the limit
+ * check happens before answering; looking the address up, issuing the link and sending the mail (a
+ * reset link, or a notice that there is no account) happen in `defer`, after the answer is sent.
+ */
+export async function requestPasswordReset(email: string, ip: string | null = null, defer: Defer = now): Promise<{ message: string }> {
   await countMailRequest(email, ip);
-  const user = await User.findOne({ where: { email } });
-  if (!user) await sendNoLinkNotice(email, 'a password reset link');
-  else {
+  await defer(async () => {
+    const user = await User.findOne({ where: { email } });
+    if (!user) return sendNoLinkNotice(email, 'a password reset link');
     const token = await issueToken(user.id, 'reset');
     await sendMail(
       linkMail(
@@ -118,7 +127,7 @@ export async function requestPasswordReset(email: string, ip: string | null = nu
         'The link works for one hour and only once. If you did not ask, ignore this message: your password stays as it is.',
       ),
     );
-  }
+  });
   return { message: RESET_SENT };
 }
 

@@ -7,11 +7,16 @@ const base = inject('baseUrl');
 const dbFile = inject('dbFile');
 const admin = new Client(base);
 
-async function latestMail(to: string) {
-  const res = await admin.get(`/api/admin/outbox?to=${encodeURIComponent(to)}`);
-  expect(res.status).toBe(200);
-  const { messages } = (await res.json()) as { messages: { subject: string; text: string }[] };
-  return messages[0];
+/** The newest mail to `to` (with that subject, when given; reset mails go out just after the answer, so it waits up to 10 s). */
+async function latestMail(to: string, subject?: string) {
+  for (let i = 0; ; i++) {
+    const res = await admin.get(`/api/admin/outbox?to=${encodeURIComponent(to)}`);
+    expect(res.status).toBe(200);
+    const { messages } = (await res.json()) as { messages: { subject: string; text: string }[] };
+    const mail = subject ? messages.find((m) => m.subject === subject) : messages[0];
+    if (mail || i >= 100) return mail;
+    await new Promise((r) => setTimeout(r, 100));
+  }
 }
 
 const tokenOf = (link: string) => new URL(link, base).searchParams.get('token')!;
@@ -121,7 +126,7 @@ describe('password reset', () => {
     // An account of its own: other files sign in as the demo users on the same server.
     const { email } = await freshEntrant(base, dbFile, 'Reset Maker');
     await c.post('/api/account/password-reset', { email });
-    const mail = await latestMail(email);
+    const mail = await latestMail(email, 'Choose a new Hotlap password');
     expect(mail.subject).toBe('Choose a new Hotlap password');
     const token = tokenOf(linkIn(mail.text, '/reset'));
     const short = await c.post('/api/account/password-reset/confirm', { token, password: 'short' });

@@ -23,7 +23,7 @@ const machinesOf = async (email: string) =>
   (await sql<{ n: number }>(db(), 'SELECT COUNT(*) AS n FROM machines m JOIN users u ON u.id = m.owner_id WHERE u.email = ?', [email]))[0].n;
 
 test('attack: a form on another port posts to Hotlap for the signed-in visitor — nothing changes', async ({ page, baseURL }) => {
-  const email = demoEmail('sasha');
+  const email = demoEmail('entrant');
   await signIn(page, email);
   const before = await machinesOf(email);
   const body = JSON.stringify({ name: 'Planted racer', motionSystem: 'corexy', buildXMm: 200, buildYMm: 200, buildZMm: 200, nozzleMm: 0.4 });

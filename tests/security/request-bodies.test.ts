@@ -24,12 +24,12 @@ function chunkedPost(path: string, totalBytes: number): Promise<{ status: number
       res.on('end', () => resolve({ status: res.statusCode!, body, sentBytes: sent }));
     });
     req.on('error', (e) => (answered ? undefined : reject(e)));
+    // One chunk every 2 ms, so the test sees whether the answer comes before the body ends.
     const pump = () => {
-      while (!answered && sent < totalBytes) {
-        sent += chunk.length;
-        if (!req.write(chunk)) return void req.once('drain', pump);
-      }
-      req.end();
+      if (answered || sent >= totalBytes) return void req.end();
+      sent += chunk.length;
+      req.write(chunk);
+      setTimeout(pump, 2);
     };
     req.write('{"email":"');
     pump();
@@ -47,12 +47,12 @@ describe('request bodies', () => {
     expect((await res.json()).error).toMatch(/larger than 64 KB/);
   });
 
-  it('attack: a 50 MB chunked body with no Content-Length is cut off at the limit, not read whole', { timeout: 60_000 }, async () => {
+  it('attack: a 50 MB chunked body with no Content-Length is cut off at the limit, not read whole', { timeout: 120_000 }, async () => {
     const res = await chunkedPost('/api/account/password-reset', 50 * 1024 * 1024);
     expect(res.status).toBe(413);
     expect(res.body).toMatch(/larger than 64 KB/);
-    // The answer came long before the whole body was sent.
-    expect(res.sentBytes).toBeLessThan(50 * 1024 * 1024);
+    // The answer came long before the whole body was sent: the server stopped at the limit.
+    expect(res.sentBytes).toBeLessThan(5 * 1024 * 1024);
   });
 
   it('attack: the same through next-auth sign-in is refused too', async () => {

@@ -7,7 +7,7 @@ import { describe, it, expect, inject } from 'vitest';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail } from '../support/demo';
-import { freshAccount, randomIp } from './support';
+import { freshAccount, randomIp, resetTokenFor } from './support';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
@@ -32,8 +32,7 @@ describe('ending sessions', () => {
     const thief = copyOf(victim);
     expect((await thief.get('/api/me')).status).toBe(200);
     await new Client(base, randomIp()).post('/api/account/password-reset', { email });
-    const mail = (await sql<{ text: string }>(dbFile, 'SELECT text FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [email]))[0];
-    const token = mail.text.match(/token=([A-Za-z0-9_-]{43})/)![1];
+    const token = await resetTokenFor(dbFile, email);
     expect((await new Client(base).post('/api/account/password-reset/confirm', { token, password: 'quartz-harbour-pivot-58' })).status).toBe(200);
     expect((await thief.get('/api/me')).status).toBe(401);
     expect((await victim.get('/api/me')).status).toBe(401);

@@ -4,7 +4,7 @@
  */
 import { describe, it, expect, inject } from 'vitest';
 import { sql } from '../support/db';
-import { freshAccount, rawSignIn, formBody, randomIp } from './support';
+import { freshAccount, rawSignIn, formBody, randomIp, resetTokenFor } from './support';
 import { SIGN_IN_LIMITS } from '@/lib/auth/limits';
 
 const base = inject('baseUrl');
@@ -78,8 +78,7 @@ describe('sign-in throttling', () => {
     const cafe = randomIp();
     const { Client } = await import('../support/client');
     await new Client(base, cafe).post('/api/account/password-reset', { email });
-    const mail = (await sql<{ text: string }>(dbFile, 'SELECT text FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [email]))[0];
-    const token = mail.text.match(/token=([A-Za-z0-9_-]{43})/)![1];
+    const token = await resetTokenFor(dbFile, email);
     const newPassword = 'copper-meadow-sprocket-77';
     expect((await new Client(base, cafe).post('/api/account/password-reset/confirm', { token, password: newPassword })).status).toBe(200);
     const after = await rawSignIn(base, cafe, (csrf) => formBody([['email', email], ['password', newPassword], ['csrfToken', csrf], ['json', 'true']]));

@@ -35,6 +35,27 @@ export async function mailsTo(dbFile: string, to: string) {
   return sql<{ subject: string; text: string }>(dbFile, 'SELECT subject, text FROM sent_mails WHERE "to" = ? ORDER BY id', [to]);
 }
 
+/** Waits (polling, up to 10 s) until `count` mails to `to` exist: reset mails are sent just after the answer. */
+export async function waitForMails(dbFile: string, to: string, count: number) {
+  for (let i = 0; i < 100; i++) {
+    const mails = await mailsTo(dbFile, to);
+    if (mails.length >= count) return mails;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`Fewer than ${count} mails to ${to} after 10 s`);
+}
+
+/** The token of the newest reset link mailed to `to`, once it has arrived. */
+export async function resetTokenFor(dbFile: string, to: string): Promise<string> {
+  for (let i = 0; i < 100; i++) {
+    const mail = (await mailsTo(dbFile, to)).filter((m) => m.subject === 'Choose a new Hotlap password').pop();
+    const token = mail?.text.match(/token=([A-Za-z0-9_-]{43})/)?.[1];
+    if (token) return token;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`No reset link mailed to ${to} after 10 s`);
+}
+
 export const median = (xs: number[]) => {
   const s = [...xs].sort((a, b) => a - b);
   return s[Math.floor(s.length / 2)];

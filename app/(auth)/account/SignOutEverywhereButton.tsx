@@ -10,6 +10,8 @@ export function SignOutEverywhereButton() {
     setError(null);
     const res = await fetch('/api/account/sessions', { method: 'DELETE' }).catch(() => null);
     if (res?.ok) {
+      // A full page load, not a client-side push: nothing of the ended session stays in memory.
+      // eslint-disable-next-line @next/next/no-location-assign-relative-destination
       window.location.assign('/signin');
       return;
     }
