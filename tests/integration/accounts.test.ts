@@ -14,7 +14,8 @@ async function latestMail(to: string, subject?: string) {
     expect(res.status).toBe(200);
     const { messages } = (await res.json()) as { messages: { subject: string; text: string }[] };
     const mail = subject ? messages.find((m) => m.subject === subject) : messages[0];
-    if (mail || i >= 100) return mail;
+    if (mail) return mail;
+    if (i >= 100) throw new Error(`No mail${subject ? ` "${subject}"` : ''} to ${to} after 10 s`);
     await new Promise((r) => setTimeout(r, 100));
   }
 }
