@@ -1,4 +1,5 @@
 /** Account lifecycle: sign-up, e-mail confirmation, password reset, roles. */
+import { UniqueConstraintError } from 'sequelize';
 import { User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { hashPassword } from '@/lib/auth/password';
@@ -31,38 +32,48 @@ async function sendVerification(user: User) {
   );
 }
 
+/** Runs work now, or later: route handlers pass Next.js's `after` so it runs once the answer is sent. */
+export type Defer = (work: () => Promise<void>) => void | Promise<void>;
+const now: Defer = (work) => work();
+
 /**
- * The two branches below (address taken / new) do the same expensive work — one bcrypt hash, one
- * mail — so the time of the answer does not tell whether an address has an account.
+ * Same answer, same timing, whether the address is taken: the limit check and the password hash
+ * (the expensive part) happen for both before answering; looking the address up, creating the
+ * account and mailing (a confirmation link, or a reminder to the owner) happen in `defer`, after
+ * the answer is sent.
  */
-export async function signUp(input: SignUpInput, ip: string | null): Promise<{ message: string }> {
+export async function signUp(input: SignUpInput, ip: string | null, defer: Defer = now): Promise<{ message: string }> {
   await countMailRequest(input.email, ip);
   const passwordHash = await hashPassword(input.password);
-  const existing = await User.findOne({ where: { email: input.email } });
-  if (existing) {
-    // Tell the owner of the address, not the person at the form.
-    await sendMail(
-      linkMail(
-        existing.email,
-        'You already have a Hotlap account',
-        'Someone (maybe you) tried to create a Hotlap account with this address, which already has one. Nothing was changed.',
-        'Reset your password',
-        appUrl('/forgot'),
-        'If it was not you, you can ignore this message.',
-      ),
-    );
-    return { message: SIGNUP_SENT };
-  }
-  const user = await User.create({
-    email: input.email,
-    name: input.name,
-    passwordHash,
-    roles: ['entrant'],
-    emailVerifiedAt: null,
+  await defer(async () => {
+    const existing = await User.findOne({ where: { email: input.email } });
+    if (existing) return sendAccountExists(existing.email);
+    let user: User;
+    try {
+      user = await User.create({ email: input.email, name: input.name, passwordHash, roles: ['entrant'], emailVerifiedAt: null });
+    } catch (err) {
+      // Two sign-ups for one address at once: the second finds it taken, like any later one.
+      if (err instanceof UniqueConstraintError) return sendAccountExists(input.email);
+      throw err;
+    }
+    await audit('user.signup', { type: 'user', id: user.id }, { actorId: user.id, ip });
+    await sendVerification(user);
   });
-  await audit('user.signup', { type: 'user', id: user.id }, { actorId: user.id, ip });
-  await sendVerification(user);
   return { message: SIGNUP_SENT };
+}
+
+/** Tells the owner of the address, not the person at the form. */
+async function sendAccountExists(email: string): Promise<void> {
+  await sendMail(
+    linkMail(
+      email,
+      'You already have a Hotlap account',
+      'Someone (maybe you) tried to create a Hotlap account with this address, which already has one. Nothing was changed.',
+      'Reset your password',
+      appUrl('/forgot'),
+      'If it was not you, you can ignore this message.',
+    ),
+  );
 }
 
 /**
@@ -83,11 +94,13 @@ async function sendNoLinkNotice(email: string, what: string): Promise<void> {
   );
 }
 
-export async function resendVerification(email: string, ip: string | null = null): Promise<{ message: string }> {
+export async function resendVerification(email: string, ip: string | null = null, defer: Defer = now): Promise<{ message: string }> {
   await countMailRequest(email, ip);
-  const user = await User.findOne({ where: { email } });
-  if (user && !user.emailVerifiedAt) await sendVerification(user);
-  else await sendNoLinkNotice(email, 'a new confirmation link');
+  await defer(async () => {
+    const user = await User.findOne({ where: { email } });
+    if (user && !user.emailVerifiedAt) await sendVerification(user);
+    else await sendNoLinkNotice(email, 'a new confirmation link');
+  });
   return { message: SIGNUP_SENT };
 }
 
@@ -102,9 +115,6 @@ export async function verifyEmail(token: string, ip: string | null): Promise<{ e
   });
 }
 
-/** Runs work now, or later: route handlers pass Next.js's `after` so it runs once the answer is sent. */
-export type Defer = (work: () => Promise<void>) => void | Promise<void>;
-const now: Defer = (work) => work();
 
 /**
  * The answer is the same whether the address has an account, and so is its timing: only the limit

@@ -57,6 +57,14 @@ describe('the route list matches the route files', () => {
     }
     expect(API_ROUTES.map((r) => r.path).sort()).toEqual(onDisk.map((r) => r.route).sort());
   });
+
+  it('every exported handler goes through route() (origin check, body limit, typed errors)', () => {
+    for (const file of walk(path.join(ROOT, 'app', 'api'), 'route.ts')) {
+      const src = fs.readFileSync(file, 'utf8');
+      expect(src, file).not.toMatch(/export\s+(async\s+)?function\s+(GET|POST|PUT|PATCH|DELETE)\b/);
+      for (const m of src.matchAll(/export\s+const\s+(GET|POST|PUT|PATCH|DELETE)\s*=\s*([^\n]*)/g)) expect(m[2], `${file} ${m[1]}`).toMatch(/^route(<.*>)?\(/);
+    }
+  });
 });
 
 describe('role matrix: every route × method × role', () => {

@@ -1,6 +1,7 @@
 /** Helpers for the attack tests: fresh accounts of their own, raw sign-in posts, the outbox. */
 import { Client } from '../support/client';
 import { sql } from '../support/db';
+import { waitForAccount } from '../support/demo';
 
 let n = 0;
 export const uniqueEmail = (tag: string) => `${tag}.${Date.now()}.${++n}.${Math.floor(Math.random() * 1e6)}@example.org`;
@@ -13,6 +14,7 @@ export async function freshAccount(base: string, dbFile: string, tag = 'sec') {
   const email = uniqueEmail(tag);
   const res = await new Client(base, randomIp()).post('/api/account/signup', { name: 'Test Maker', email, password: STRONG_PASSWORD });
   if (res.status !== 202) throw new Error(`sign-up failed: ${res.status} ${await res.text()}`);
+  await waitForAccount(dbFile, email);
   await sql(dbFile, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
   return { email, password: STRONG_PASSWORD };
 }
