@@ -71,10 +71,10 @@ async function watch(page: Page) {
 
 const SCREENS: Record<string, string[]> = {
   anonymous: ['/', '/seasons', '/seasons/frostbite-sprint', '/seasons/frostbite-sprint/rulebook', '/seasons/frostbite-sprint/overview', '/safety', '/api-docs', '/signin', '/signup', '/forgot'],
-  entrant: ['/me', '/me/machines', '/me/entries/new?season=frostbite-sprint'],
-  judge: ['/judging'],
-  organizer: ['/organize', '/organize/seasons/new'],
-  admin: ['/admin/users', '/admin/audit', '/admin/outbox'],
+  entrant: ['/me', '/me/machines', '/me/entries/new?season=frostbite-sprint', '/account'],
+  judge: ['/judging', '/account'],
+  organizer: ['/organize', '/organize/seasons/new', '/organize/seasons/{season}', '/account'],
+  admin: ['/admin/users', '/admin/audit', '/admin/outbox', '/account'],
 };
 
 for (const [who, paths] of Object.entries(SCREENS)) {
@@ -82,7 +82,8 @@ for (const [who, paths] of Object.entries(SCREENS)) {
     test.setTimeout(120_000);
     const problems = await watch(page);
     if (who !== 'anonymous') await signIn(page, demoEmail(who));
-    for (const p of paths) {
+    const season = (await sql<{ id: number }>(db(), "SELECT id FROM seasons WHERE slug = 'frostbite-sprint'"))[0].id;
+    for (const p of paths.map((x) => x.replace('{season}', String(season)))) {
       const res = await page.goto(p);
       expect(res?.status(), p).toBeLessThan(400);
       expect(res?.headers()['content-security-policy'], p).toContain("'strict-dynamic'");
