@@ -13,7 +13,7 @@ const base = inject('baseUrl');
 function chunkedPost(path: string, totalBytes: number): Promise<{ status: number; body: string; sentBytes: number }> {
   return new Promise((resolve, reject) => {
     const url = new URL(path, base);
-    const req = http.request({ host: url.hostname, port: url.port, path: url.pathname, method: 'POST', headers: { 'content-type': 'application/json', 'transfer-encoding': 'chunked' } });
+    const req = http.request({ host: url.hostname, port: url.port, path: url.pathname, method: 'POST', agent: false, headers: { 'content-type': 'application/json', 'transfer-encoding': 'chunked' } });
     let sent = 0;
     const chunk = Buffer.alloc(64 * 1024, 0x20);
     let answered = false;

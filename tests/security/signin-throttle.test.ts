@@ -5,7 +5,7 @@
 import { describe, it, expect, inject } from 'vitest';
 import { sql } from '../support/db';
 import { freshAccount, rawSignIn, formBody, randomIp, resetTokenFor } from './support';
-import { SIGN_IN_LIMITS } from '@/lib/auth/limits';
+import { SIGN_IN_LIMITS, slowDownMs } from '@/lib/auth/limits';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
@@ -83,6 +83,13 @@ describe('sign-in throttling', () => {
     expect((await new Client(base, cafe).post('/api/account/password-reset/confirm', { token, password: newPassword })).status).toBe(200);
     const after = await rawSignIn(base, cafe, (csrf) => formBody([['email', email], ['password', newPassword], ['csrfToken', csrf], ['json', 'true']]));
     expect(after.status).toBe(200);
+  });
+
+  it('slows down before refusing: no wait for the first failures, then one second more each, at most five', () => {
+    const free = SIGN_IN_LIMITS.freePairFailures;
+    expect([0, 1, 2, 3, 4, 5, 9, 20].map((f) => slowDownMs(f, free))).toEqual([0, 0, 0, 0, 1000, 2000, 5000, 5000]);
+    // The refusal comes only after the slow-down has had its turns.
+    expect(SIGN_IN_LIMITS.pair.points).toBeGreaterThan(free + 1);
   });
 
   it('answers a wrong password and an unknown e-mail alike', async () => {
