@@ -7,7 +7,9 @@ import { defineConfig } from '@playwright/test';
 const port = Number(process.env.HOTLAP_E2E_PORT || 3200);
 
 export default defineConfig({
-  testDir: 'tests/e2e',
+  testDir: 'tests',
+  // Journeys per role, and the browser half of the attack tests (cross-site forms, CSP, redirects).
+  testMatch: ['e2e/**/*.spec.ts', 'security/**/*.spec.ts'],
   globalSetup: './tests/e2e/global-setup.ts',
   fullyParallel: false,
   workers: 1,

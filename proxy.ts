@@ -1,20 +1,69 @@
 /**
- * Routing help only: visitors without a session cookie who open a members' page go to sign-in
- * first. Authorization happens again in every page, route handler and server action.
+ * Runs before page requests that carry no body:
+ * - a Content-Security-Policy with a fresh nonce (the static security headers come from
+ *   next.config.mjs), HSTS over https;
+ * - 405 for a method no page has;
+ * - routing help: visitors without a session cookie who open a members' page go to sign-in first.
+ *   Authorization happens again in every page, route handler and server action.
+ *
+ * Not for /api, nor for any request with a body (see `config`): when a proxy runs for a request,
+ * Next.js copies its body in memory (up to proxyClientMaxBodySize, 10 MB; the rest is silently cut)
+ * and waits for the whole body before the handler starts. Uploads would be truncated, and route()
+ * could not refuse an oversized body before it was read.
  */
 import { NextResponse, type NextRequest } from 'next/server';
+import { contentSecurityPolicy, HSTS_VALUE } from '@/lib/security/headers';
 
-const MEMBER_PREFIXES = ['/me', '/judging', '/organize', '/admin'];
+const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
 const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
+const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
+
+function isHttps(req: NextRequest) {
+  // Behind a TLS-terminating proxy the app sees http; the proxy says what the browser used.
+  const forwarded = process.env.TRUST_PROXY ? req.headers.get('x-forwarded-proto')?.split(',')[0].trim() : null;
+  return (forwarded ?? req.nextUrl.protocol.replace(':', '')) === 'https';
+}
+
+function withSecurityHeaders(res: NextResponse, csp: string, req: NextRequest) {
+  res.headers.set('Content-Security-Policy', csp);
+  if (isHttps(req)) res.headers.set('Strict-Transport-Security', HSTS_VALUE);
+  return res;
+}
 
 export function proxy(req: NextRequest) {
   const { pathname, search } = req.nextUrl;
-  if (!MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`))) return NextResponse.next();
-  if (SESSION_COOKIES.some((c) => req.cookies.has(c))) return NextResponse.next();
-  const url = req.nextUrl.clone();
-  url.pathname = '/signin';
-  url.search = `?callbackUrl=${encodeURIComponent(pathname + search)}`;
-  return NextResponse.redirect(url);
+  const nonce = Buffer.from(crypto.getRandomValues(new Uint8Array(16))).toString('base64');
+  const csp = contentSecurityPolicy(nonce, process.env.NODE_ENV === 'development');
+
+  if (!PAGE_METHODS.split(', ').includes(req.method)) {
+    const res = NextResponse.json({ error: `Pages accept ${PAGE_METHODS}.` }, { status: 405, headers: { Allow: PAGE_METHODS } });
+    return withSecurityHeaders(res, csp, req);
+  }
+
+  if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !SESSION_COOKIES.some((c) => req.cookies.has(c))) {
+    const url = req.nextUrl.clone();
+    url.pathname = '/signin';
+    url.search = `?callbackUrl=${encodeURIComponent(pathname + search)}`;
+    return withSecurityHeaders(NextResponse.redirect(url), csp, req);
+  }
+
+  // Next.js reads the nonce from the request's CSP header and puts it on its own scripts.
+  const requestHeaders = new Headers(req.headers);
+  requestHeaders.set('x-nonce', nonce);
+  requestHeaders.set('Content-Security-Policy', csp);
+  return withSecurityHeaders(NextResponse.next({ request: { headers: requestHeaders } }), csp, req);
 }
 
-export const config = { matcher: ['/me/:path*', '/judging/:path*', '/organize/:path*', '/admin/:path*'] };
+export const config = {
+  matcher: [
+    {
+      // Pages only: not the API, the build's static files or the icon (those get the static headers).
+      source: '/((?!api/|_next/static|_next/image|favicon.svg).*)',
+      // Only requests without a body (a body always comes with one of these two headers in HTTP/1.1).
+      missing: [
+        { type: 'header', key: 'content-length' },
+        { type: 'header', key: 'transfer-encoding' },
+      ],
+    },
+  ],
+};

@@ -16,7 +16,8 @@ export default defineConfig({
         resolve: { alias: { '@': path.resolve(__dirname) } },
         test: {
           name: 'integration',
-          include: ['tests/integration/**/*.test.ts'],
+          // tests/security: one test per attack, and the route × role matrix, against the same server.
+          include: ['tests/integration/**/*.test.ts', 'tests/security/**/*.test.ts'],
           environment: 'node',
           globalSetup: ['tests/integration/global-setup.ts'],
           testTimeout: 60_000,

@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import localFont from 'next/font/local';
 import Link from 'next/link';
+import { headers } from 'next/headers';
 import { SiteHeader } from '@/components/SiteHeader';
 import './globals.css';
 
@@ -21,7 +22,11 @@ export const metadata: Metadata = {
   icons: { icon: '/favicon.svg' },
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // proxy.ts puts a fresh nonce into the request's Content-Security-Policy; Next.js adds it to its
+  // own scripts. Reading the request headers here renders every page per request, which a nonce
+  // needs (a page built ahead of time would carry a stale nonce and its scripts would be blocked).
+  await headers();
   return (
     <html lang="en" className={`${manrope.variable} ${jetbrains.variable}`}>
       <body>

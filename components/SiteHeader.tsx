@@ -26,7 +26,7 @@ export async function SiteHeader() {
         <div className="flex items-center gap-3 text-sm">
           {user ? (
             <>
-              <span className="text-ink-300" data-testid="signed-in-as">{user.name}</span>
+              <Link href="/account" className="text-ink-300" data-testid="signed-in-as" title="Your account">{user.name}</Link>
               <SignOutButton />
             </>
           ) : (

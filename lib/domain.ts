@@ -48,6 +48,7 @@ export type TokenPurpose = (typeof TOKEN_PURPOSES)[number];
 /** Audit actions written by the app. */
 export const AUDIT_ACTIONS = [
   'user.signup',
+  'user.sessions_ended',
   'user.verify',
   'user.password_reset',
   'user.roles_changed',

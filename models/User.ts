@@ -9,6 +9,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   /** Every account is an entrant; judge, organizer and admin are granted on top. */
   declare roles: CreationOptional<Role[]>;
   declare emailVerifiedAt: Date | null;
+  /** Sessions issued under an older version are refused (lib/auth/sessions.ts). */
+  declare sessionVersion: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -21,6 +23,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         passwordHash: { type: DataTypes.STRING(100), allowNull: false },
         roles: { type: DataTypes.JSON, allowNull: false, defaultValue: ['entrant'] },
         emailVerifiedAt: { type: DataTypes.DATE, allowNull: true },
+        sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

@@ -5,7 +5,6 @@
 import { getSequelize } from '@/lib/db';
 import { User } from './User';
 import { AuthToken } from './AuthToken';
-import { Throttle } from './Throttle';
 import { Season } from './Season';
 import { TestPiece } from './TestPiece';
 import { SeasonJudge } from './SeasonJudge';
@@ -26,13 +25,13 @@ import { EntryReinspection } from './EntryReinspection';
 import { GcodeFingerprint } from './GcodeFingerprint';
 
 export {
-  User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
+  User, AuthToken, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
   SeasonSubscription, JudgeInvitation, SeasonOrganizer, EntryReinspection, GcodeFingerprint,
 };
 
 const ALL = [
-  User, AuthToken, Throttle, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
+  User, AuthToken, Season, TestPiece, SeasonJudge, ContestClass, Rule, Machine,
   ExtrusionTest, Entry, StoredFile, Inspection, Review, AuditEvent, SentMail,
   SeasonSubscription, JudgeInvitation, SeasonOrganizer, EntryReinspection, GcodeFingerprint,
 ];

@@ -71,7 +71,9 @@ describe('role changes', () => {
     const res = await clients.admin.put(`/api/admin/users/${target}/roles`, { roles: ['entrant', 'judge'] });
     expect(res.status).toBe(200);
     expect((await res.json()).roles).toEqual(['entrant', 'judge']);
-    // Same session, no new sign-in: roles are read from the database on each request.
+    // A role change ends the account's earlier sessions; signed in again, the new role applies.
+    expect((await pim.get('/api/judging/queue')).status).toBe(401);
+    await pim.signIn(demoEmail('pim'), DEMO_PASSWORD);
     expect((await pim.get('/api/judging/queue')).status).toBe(200);
 
     const audit = await clients.admin.get('/api/admin/audit');

@@ -22,8 +22,19 @@ export async function freshEntrant(base: string, dbFile: string, name: string) {
   const c = new Client(base);
   const res = await c.post('/api/account/signup', { name, email, password });
   if (res.status !== 202) throw new Error(`sign-up failed: ${res.status}`);
+  await waitForAccount(dbFile, email);
   await sql(dbFile, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
   const signin = await c.signIn(email, password);
   if (signin.status !== 200) throw new Error(`sign-in failed: ${signin.status}`);
   return Object.assign(c, { email });
+}
+
+/** Sign-up creates the account just after answering (same timing for taken and new addresses): wait for it. */
+export async function waitForAccount(dbFile: string, email: string) {
+  const { sql } = await import('./db');
+  for (let i = 0; i < 100; i++) {
+    if ((await sql(dbFile, 'SELECT id FROM users WHERE email = ?', [email])).length) return;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`No account for ${email} 10 s after signing up`);
 }

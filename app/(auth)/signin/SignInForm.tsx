@@ -4,6 +4,7 @@ import { signIn } from 'next-auth/react';
 import Link from 'next/link';
 import { Field } from '@/components/forms/Field';
 import { signInError } from '@/lib/auth/messages';
+import { safeCallbackPath } from '@/lib/security/urls';
 
 export function SignInForm({ callbackUrl, initialError }: { callbackUrl: string; initialError: string | null }) {
   const [error, setError] = useState<string | null>(signInError(initialError));
@@ -23,7 +24,8 @@ export function SignInForm({ callbackUrl, initialError }: { callbackUrl: string;
     });
     setBusy(false);
     if (res?.ok && !res.error) {
-      window.location.assign(callbackUrl);
+      // Resolved against this page's own origin once more before leaving it.
+      window.location.assign(safeCallbackPath(callbackUrl, window.location.origin));
       return;
     }
     const c = res?.status === 429 ? 'TooManyAttempts' : (res?.error ?? 'CredentialsSignin');

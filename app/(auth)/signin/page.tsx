@@ -1,18 +1,18 @@
 import { SignInForm } from './SignInForm';
+import { safeCallbackPath } from '@/lib/security/urls';
+import { appOrigin } from '@/lib/http';
 
 export const metadata = { title: 'Sign in' };
 
-/** Only same-site paths are allowed as a return address. */
-function safeCallback(raw: string | undefined) {
-  return raw && raw.startsWith('/') && !raw.startsWith('//') ? raw : '/';
-}
-
-export default async function SignInPage({ searchParams }: { searchParams: Promise<Record<string, string | undefined>> }) {
+export default async function SignInPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const sp = await searchParams;
+  const raw = Array.isArray(sp.callbackUrl) ? sp.callbackUrl[0] : sp.callbackUrl;
+  const error = Array.isArray(sp.error) ? sp.error[0] : sp.error;
   return (
     <div className="mx-auto max-w-md card">
       <h1 className="mb-6">Sign in</h1>
-      <SignInForm callbackUrl={safeCallback(sp.callbackUrl)} initialError={sp.error ?? null} />
+      {/* Only a path on this site survives (lib/auth/callbackUrl.ts); the form checks it again. */}
+      <SignInForm callbackUrl={safeCallbackPath(raw, appOrigin())} initialError={error ?? null} />
     </div>
   );
 }

@@ -1,8 +1,9 @@
+import { after } from 'next/server';
 import { route, readBody, clientIp } from '@/lib/http';
 import { SignUpSchema } from '@/lib/auth/schemas';
 import { signUp } from '@/lib/accounts';
 
 export const POST = route(async (req) => {
   const input = await readBody(req, SignUpSchema);
-  return Response.json(await signUp(input, clientIp(req.headers)), { status: 202 });
+  return Response.json(await signUp(input, clientIp(req.headers), (work) => after(work)), { status: 202 });
 });

@@ -1,35 +1,28 @@
 /**
- * next-auth's handler, with sign-in throttling in front of the credentials callback: slowed answers
- * after a few failures, then HTTP 429 (Retry-After) for a while.
+ * next-auth's handler, through route() like every handler (origin check, body limit). Sign-in
+ * throttling lives inside `authorize` (lib/auth/options.ts), on the e-mail next-auth itself parsed;
+ * here a refusal it signalled becomes HTTP 429 with Retry-After.
  */
 import NextAuth from 'next-auth';
-import { authOptions } from '@/lib/auth/options';
-import { checkThrottle, tooManyMessage } from '@/lib/auth/throttle';
-import { clientIp } from '@/lib/http';
+import { authOptions, signInContext } from '@/lib/auth/options';
+import { route } from '@/lib/http';
 import { appUrl } from '@/lib/mail';
+import { tooManyMessage } from '@/lib/auth/messages';
 
 const handler = NextAuth(authOptions);
 type Ctx = { params: Promise<{ nextauth: string[] }> };
 
-export const GET = handler;
+export const GET = route<Ctx>((req, ctx) => handler(req, ctx));
 
-export async function POST(req: Request, ctx: Ctx) {
-  const { pathname } = new URL(req.url);
-  if (pathname.endsWith('/callback/credentials')) {
-    const form = await req.clone().formData().catch(() => null);
-    const email = String(form?.get('email') ?? '');
-    const verdict = await checkThrottle(email, clientIp(req.headers));
-    if (verdict.refused) {
-      return Response.json(
-        {
-          error: 'TooManyAttempts',
-          message: tooManyMessage(verdict.retryAfterS),
-          url: appUrl(`/signin?error=TooManyAttempts`),
-        },
-        { status: 429, headers: { 'Retry-After': String(verdict.retryAfterS) } },
-      );
-    }
-    if (verdict.delayMs) await new Promise((r) => setTimeout(r, verdict.delayMs));
-  }
-  return handler(req, ctx);
-}
+export const POST = route<Ctx>(async (req, ctx) => {
+  const state: { retryAfterS?: number } = {};
+  const res: Response = await signInContext.run(state, () => handler(req, ctx));
+  if (state.retryAfterS === undefined) return res;
+  const out = Response.json(
+    { error: 'TooManyAttempts', message: tooManyMessage(state.retryAfterS), url: appUrl('/signin?error=TooManyAttempts') },
+    { status: 429, headers: { 'Retry-After': String(state.retryAfterS) } },
+  );
+  // Keep whatever cookies next-auth set (its CSRF cookie).
+  for (const c of res.headers.getSetCookie()) out.headers.append('set-cookie', c);
+  return out;
+});

@@ -1,4 +1,4 @@
-import { route, readBody } from '@/lib/http';
+import { route, readBody, TEXT_FORM_BODY_LIMIT_BYTES } from '@/lib/http';
 import { createSeason, organizerDashboard, requireOrganizer, seasonJson } from '@/lib/seasons';
 import { SeasonInputSchema } from '@/lib/seasons/schemas';
 
@@ -12,4 +12,4 @@ export const POST = route(async (req) => {
   const input = await readBody(req, SeasonInputSchema);
   const season = await createSeason(actor, input);
   return Response.json({ season: seasonJson(season), message: `${season.name} is created as a draft.` }, { status: 201 });
-});
+}, { maxBodyBytes: TEXT_FORM_BODY_LIMIT_BYTES });

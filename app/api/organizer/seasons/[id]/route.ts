@@ -1,4 +1,4 @@
-import { route, readBody, parseInput } from '@/lib/http';
+import { route, readBody, parseInput, TEXT_FORM_BODY_LIMIT_BYTES } from '@/lib/http';
 import { managedSeason, requireOrganizer, seasonJson, updateSeason } from '@/lib/seasons';
 import { SeasonInputSchema, SeasonParams } from '@/lib/seasons/schemas';
 import { organizerSeasonView } from '@/lib/seasons/view';
@@ -19,4 +19,4 @@ export const PUT = route<Ctx>(async (req, ctx) => {
   const input = await readBody(req, SeasonInputSchema);
   const season = await updateSeason(actor, id, input);
   return Response.json({ season: seasonJson(season), message: 'Season settings saved.' });
-});
+}, { maxBodyBytes: TEXT_FORM_BODY_LIMIT_BYTES });

@@ -1,4 +1,4 @@
-import { route, readBody, parseInput } from '@/lib/http';
+import { route, readBody, parseInput, TEXT_FORM_BODY_LIMIT_BYTES } from '@/lib/http';
 import { managedSeason, requireOrganizer, rulebookRules, rulesFreeze, saveRulebook } from '@/lib/seasons';
 import { RulebookInputSchema, SeasonParams } from '@/lib/seasons/schemas';
 
@@ -20,4 +20,4 @@ export const PUT = route<Ctx>(async (req, ctx) => {
   const result = await saveRulebook(actor, id, input);
   const re = result.reinspection ? ` ${result.reinspection.queued} entries are queued for inspection under the new rules.` : '';
   return Response.json({ ...result, message: `Rulebook saved: ${result.saved} rules.${re}` });
-});
+}, { maxBodyBytes: TEXT_FORM_BODY_LIMIT_BYTES });
