@@ -19,6 +19,12 @@ export class Inspection extends Model<InferAttributes<Inspection>, InferCreation
   declare layerHeightMm: number | null;
   declare error: string | null;
   declare finishedAt: Date | null;
+  /** Job record: how many times a worker took this inspection (lib/jobs). */
+  declare attempts: CreationOptional<number>;
+  /** Job record: a running inspection whose lease passed is taken again (its server stopped). */
+  declare leaseUntil: CreationOptional<Date | null>;
+  /** Job record: the order of claims (the queue serves the entrant it served least recently). */
+  declare claimSeq: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -39,6 +45,9 @@ export class Inspection extends Model<InferAttributes<Inspection>, InferCreation
         layerHeightMm: { type: DataTypes.DOUBLE, allowNull: true },
         error: { type: DataTypes.TEXT, allowNull: true },
         finishedAt: { type: DataTypes.DATE, allowNull: true },
+        attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+        leaseUntil: { type: DataTypes.DATE, allowNull: true },
+        claimSeq: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

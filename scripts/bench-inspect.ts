@@ -26,7 +26,6 @@ import { inspectFile, inspectionEngine } from '../lib/inspection/inspect';
 import { readFileLines } from '../lib/inspection/reader';
 import { GcodeParser } from '../lib/inspection/parser';
 import { nativeEngineLoadError } from '../lib/inspection/nativeEngine';
-import { tsRunArgs } from '../lib/tsRun';
 
 const ROOT = join(__dirname, '..');
 const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'prusa-beacon-nozzle06-030'].map((n) =>
@@ -95,7 +94,7 @@ function medianRun(runs: ChildResult[]): ChildResult {
 }
 
 function runChildOnce(mode: string, file: string): ChildResult {
-  const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), __filename, '--child', mode, file], {
+  const r = spawnSync(process.execPath, ['--require', join(ROOT, 'node_modules/tsx/dist/cjs/index.cjs'), __filename, '--child', mode, file], {
     encoding: 'utf8',
     maxBuffer: 1 << 20,
   });

@@ -3,12 +3,16 @@
  * with its headline figures, and read it back for the entrant, the judges and the public pages.
  *
  * Rows are never overwritten by a new upload: each G-code gets its own inspection row, the newest
- * id is the current one. A row left `queued` or `running` by a server that stopped (crash, deploy)
- * is picked up again the next time anyone looks at the entry (resumeInspection).
+ * id is the current one. The row is also the job record (lib/jobs): at most one queued row per
+ * entry (a unique index), and a row left `queued` or `running` by a server that stopped is resumed
+ * when the next server starts (instrumentation.ts), never by a page read.
  */
-import { Op } from 'sequelize';
-import { Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
-import { enqueue, isQueued, inspectInChild, InspectionRunError, ENGINE_VERSION } from '@/lib/jobs';
+import { Op, type Transaction } from 'sequelize';
+import { AuditEvent, Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
+import { inspectInPool, InspectionRunError, ENGINE_VERSION, wakeJobs, jobSettings, type JobClaim } from '@/lib/jobs';
+import { sqlInspectionQueue } from '@/lib/jobs/sqlQueue';
+import { getSequelize } from '@/lib/db';
+import { tooMany } from '@/lib/errors';
 import { localPath } from '@/lib/storage';
 import type { InspectOptions } from '@/lib/inspection';
 import type { Flag } from '@/lib/inspection/types';
@@ -17,8 +21,6 @@ import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
 import { flowSeries } from '@/lib/reviews/report';
 import { rulesForEntry } from './rules';
-
-const jobKey = (inspectionId: number) => `inspection:${inspectionId}`;
 
 /** The current G-code among an entry's files (any kinds, any order): the newest not replaced. */
 export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null {
@@ -78,25 +80,42 @@ export function countFindings(rules: RuleResult[], flags: Flag[]) {
   return { blocking, advisory };
 }
 
-async function runInspection(inspectionId: number) {
-  const row = await Inspection.findByPk(inspectionId);
-  if (!row || row.status === 'done' || row.status === 'failed') return;
+/**
+ * Runs one claimed inspection job (lib/jobs runner): the engine in the worker pool, then the
+ * report stored — only while the job is still ours (status running, same attempt), so a runner
+ * whose lease was taken over writes nothing.
+ */
+export async function runInspectionJob(claim: JobClaim) {
+  const settings = jobSettings();
+  const queue = sqlInspectionQueue(settings);
+  const row = await Inspection.findByPk(claim.id);
+  if (!row || row.status !== 'running' || row.attempts !== claim.attempt) return;
   const [entry, file] = await Promise.all([Entry.findByPk(row.entryId), row.storedFileId ? StoredFile.findByPk(row.storedFileId) : null]);
   if (!entry || !file) {
-    await row.update({ status: 'failed', error: 'The G-code file of this inspection is gone; upload it again.', finishedAt: new Date() });
+    await queue.fail(claim, 'The G-code file of this inspection is gone; upload it again.');
     return;
   }
-  await row.update({ status: 'running', error: null });
   try {
     const options = await inspectionOptions(entry, file.sha256);
-    const report = await inspectInChild(localPath(file.storageKey), { ...options, name: file.originalName });
-    const ruleResults = (report.rules ?? []) as RuleResult[];
-    const flags = [...((report.plausibility ?? []) as Flag[]), ...((report.warnings ?? []) as Flag[])];
-    const { blocking, advisory } = countFindings(ruleResults, flags);
-    const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
-    const time = report.time as { estimated_s: number | null };
-    const layers = report.layers as { height_mm: number | null };
-    await row.update({
+    const report = await inspectInPool(localPath(file.storageKey), { ...options, name: file.originalName }, settings);
+    await runInspection(row, claim, report);
+  } catch (err) {
+    if (!(err instanceof InspectionRunError)) throw err;
+    if (err.kind === 'crashed') await queue.release(claim, err.message);
+    else await queue.fail(claim, err.message);
+  }
+}
+
+/** Stores a finished report with its headline figures, if the job is still this claim's. */
+async function runInspection(row: Inspection, claim: JobClaim, report: Record<string, unknown>) {
+  const ruleResults = (report.rules ?? []) as RuleResult[];
+  const flags = [...((report.plausibility ?? []) as Flag[]), ...((report.warnings ?? []) as Flag[])];
+  const { blocking, advisory } = countFindings(ruleResults, flags);
+  const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
+  const time = report.time as { estimated_s: number | null };
+  const layers = report.layers as { height_mm: number | null };
+  await Inspection.update(
+    {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
@@ -109,34 +128,54 @@ async function runInspection(inspectionId: number) {
       estimatedTimeS: time?.estimated_s ?? null,
       layerHeightMm: layers?.height_mm ?? null,
       error: null,
+      leaseUntil: null,
       finishedAt: new Date(),
-    });
-  } catch (err) {
-    const message = err instanceof InspectionRunError ? err.message : 'The inspection failed on our side; try "Inspect again".';
-    if (!(err instanceof InspectionRunError)) console.error('inspection', inspectionId, err);
-    await row.update({ status: 'failed', error: message, finishedAt: new Date() });
-  }
+    },
+    { where: { id: row.id, status: 'running', attempts: claim.attempt } },
+  );
 }
 
-export function queueInspection(inspectionId: number) {
-  enqueue(jobKey(inspectionId), () => runInspection(inspectionId));
+/** Hands queued rows to the job runner (call after the transaction that created them committed). */
+export function queueInspection() {
+  wakeJobs();
 }
 
-/** Creates a fresh inspection row for the entry's current G-code and queues it. */
+/**
+ * Queues an inspection of `storedFileId` for the entry, inside the caller's transaction: an older
+ * row still queued for the entry (an earlier file, not started) fails with a sentence first, so the
+ * entry keeps one queued inspection (the unique index inspections_one_queued_per_entry holds it).
+ * A row already queued for the same file is returned as it is.
+ */
+export async function queueInspectionRow(entryId: number, storedFileId: number, transaction?: Transaction): Promise<{ row: Inspection; created: boolean }> {
+  const queued = await Inspection.findOne({ where: { entryId, status: 'queued' }, transaction });
+  if (queued && queued.storedFileId === storedFileId) return { row: queued, created: false };
+  if (queued) await queued.update({ status: 'failed', error: 'A newer G-code was uploaded before this inspection started.', finishedAt: new Date() }, { transaction });
+  const row = await Inspection.create(
+    { entryId, storedFileId, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+    { transaction },
+  );
+  return { row, created: true };
+}
+
+/** Throws 429 with a sentence when the entrant asked for too many re-inspections lately (read inside the caller's transaction). */
+export async function checkReinspectRate(entrantId: number, transaction?: Transaction, now = new Date()) {
+  const { reinspectLimit, reinspectWindowMs } = jobSettings();
+  const since = new Date(now.getTime() - reinspectWindowMs);
+  const recent = await AuditEvent.findAll({ where: { actorId: entrantId, action: 'entry.reinspected', createdAt: { [Op.gt]: since } }, attributes: ['createdAt'], order: [['createdAt', 'ASC']], transaction });
+  if (recent.length < reinspectLimit) return;
+  const waitMin = Math.max(1, Math.ceil((recent[0].createdAt.getTime() + reinspectWindowMs - now.getTime()) / 60_000));
+  throw tooMany(
+    `You asked for ${recent.length} re-inspections in the last ${Math.round(reinspectWindowMs / 60_000)} minutes, the most we run for one entrant; try again in ${waitMin} minute${waitMin === 1 ? '' : 's'}.`,
+  );
+}
+
+/** A fresh inspection of the entry's current G-code, queued (or the one already queued for it). */
 export async function reinspect(entry: Entry): Promise<Inspection | null> {
   const gcode = await currentGcode(entry.id);
   if (!gcode) return null;
-  const row = await Inspection.create({ entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null });
-  queueInspection(row.id);
+  const { row } = await getSequelize().transaction((transaction) => queueInspectionRow(entry.id, gcode.id, transaction));
+  queueInspection();
   return row;
-}
-
-/** Picks up an inspection that a stopped server left queued or running. */
-export async function resumeInspection(row: Inspection | null) {
-  if (row && (row.status === 'queued' || row.status === 'running') && !isQueued(jobKey(row.id))) {
-    await row.update({ status: 'queued' });
-    queueInspection(row.id);
-  }
 }
 
 interface ReportShape {

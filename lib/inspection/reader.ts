@@ -183,11 +183,11 @@ export function checkTextStart(chunk: Uint8Array): void {
   }
 }
 
-function isGzipStart(b: Uint8Array): boolean {
+export function isGzipStart(b: Uint8Array): boolean {
   return b.length >= 2 && b[0] === 0x1f && b[1] === 0x8b;
 }
 
-function gzipError(err: unknown): InspectionError {
+export function gzipError(err: unknown): InspectionError {
   const e = err as NodeJS.ErrnoException;
   if (e && (e.code === 'Z_BUF_ERROR' || /unexpected end/i.test(String(e.message)))) {
     return new InspectionError(

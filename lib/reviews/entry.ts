@@ -2,7 +2,6 @@
 import { ContestClass, Entry, ExtrusionTest, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
 import { extrusionTestJson } from '@/lib/machines';
 import { auditEvidenceView } from './evidence';
-import { resumeInspection } from '@/lib/entries/inspection';
 import { reviewableEntry } from './access';
 import { dimensionalDeviation } from './checklist';
 import { inspectionDiff } from './diff';
@@ -69,8 +68,6 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
   const newest = inspections[0] ?? null;
   const latest = done[0] ?? newest;
   const previous = done[1] ?? null;
-  // A re-inspection a stopped server left queued is picked up again when a judge looks.
-  if (newest && (newest.status === 'queued' || newest.status === 'running')) await resumeInspection(newest);
   const pending = newest && newest !== latest ? { id: newest.id, status: newest.status, error: newest.error, createdAt: newest.createdAt.toISOString() } : null;
   const verifiers = roundVerifiers(reviews, entry.submittedAt);
   const reference = testPiece ? { x: testPiece.sizeXMm, y: testPiece.sizeYMm, z: testPiece.sizeZMm } : null;
