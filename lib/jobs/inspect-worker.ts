@@ -11,6 +11,8 @@ import { open } from 'node:fs/promises';
 import { createReadStream } from 'node:fs';
 import { Transform, pipeline, type Readable } from 'node:stream';
 import { createGunzip } from 'node:zlib';
+import { getHeapStatistics } from 'node:v8';
+import { isMainThread, resourceLimits } from 'node:worker_threads';
 import { inspectFile, inspectStream, toJsonReport, InspectionError, type InspectOptions } from '../inspection';
 import { gzipError, isGzipStart } from '../inspection/reader';
 
@@ -77,4 +79,9 @@ export default async function inspectTask(task: InspectTask): Promise<InspectTas
     if (e?.code === 'ENOENT') return { ok: false, reason: 'The stored G-code of this inspection is gone; upload it again.' };
     throw err;
   }
+}
+
+/** What this thread runs under, read from the thread itself (tests prove the pool's limits with it). */
+export function threadLimits(): { resourceLimits: typeof resourceLimits; heapSizeLimitMb: number; isMainThread: boolean } {
+  return { resourceLimits, heapSizeLimitMb: Math.round(getHeapStatistics().heap_size_limit / MB), isMainThread };
 }

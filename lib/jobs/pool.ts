@@ -42,9 +42,9 @@ function pool(s: JobSettings): Piscina {
   return h.pool;
 }
 
-/** Threads the pool has now (tests read it from the running server). */
-export function poolThreads(): number {
-  return holder().pool?.threads.length ?? 0;
+/** The limits a pool thread runs under, as the thread reads them (tests). */
+export async function poolThreadLimits(settings: JobSettings = jobSettings()) {
+  return (await pool(settings).run(null, { name: 'threadLimits' })) as ReturnType<typeof import('./inspect-worker').threadLimits>;
 }
 
 /** Runs one inspection in the pool; rejects with InspectionRunError whose message is a sentence for the entrant. */
@@ -67,6 +67,7 @@ export async function inspectInPool(file: string, options: InspectOptions, setti
 }
 
 function limitText(ms: number): string {
+  if (ms < 1000) return `${ms} ms`;
   return ms >= 60_000 && ms % 60_000 === 0 ? `${ms / 60_000} minute${ms === 60_000 ? '' : 's'}` : `${Math.round(ms / 100) / 10} s`;
 }
 
