@@ -22,10 +22,9 @@ import { closeSync, createReadStream, fsyncSync, mkdtempSync, openSync, readFile
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
-import { inspectFile, inspectionEngine } from '../lib/inspection/inspect';
+import { inspectFile } from '../lib/inspection/inspect';
 import { readFileLines } from '../lib/inspection/reader';
 import { GcodeParser } from '../lib/inspection/parser';
-import { nativeEngineLoadError } from '../lib/inspection/nativeEngine';
 
 const ROOT = join(__dirname, '..');
 const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'prusa-beacon-nozzle06-030'].map((n) =>
@@ -65,7 +64,7 @@ async function child(mode: string, file: string): Promise<void> {
     parser.end();
     detail = `${st.lines} lines, ${parser.stats.moves} moves`;
   } else {
-    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine', engine: mode === 'inspect-ts' ? 'typescript' : 'auto' });
+    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine' });
     detail = `${r.layers.count} layers, ${(r.filament.lengthMm / 1000).toFixed(1)} m filament, est. ${(r.time.estimatedS / 3600).toFixed(1)} h, walls measured ${r.settings.walls.measured}`;
   }
   const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
@@ -141,7 +140,7 @@ function rowLabels(engine: string): Record<string, string> {
 async function main(): Promise<void> {
   const args = process.argv.slice(2);
   if (args[0] === '--child') return child(args[1], args[2]);
-  const ENGINE = inspectionEngine();
+  const ENGINE = 'typescript';
   const ROW = rowLabels(ENGINE);
   const si = args.indexOf('--sizes');
   const sizes = (si >= 0 ? args[si + 1] : '100,500').split(',').map(Number);
@@ -153,7 +152,6 @@ async function main(): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
   const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
   console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
-  console.log(`Inspection engine: ${ENGINE}${ENGINE === 'typescript' ? ` (native engine not available: ${nativeEngineLoadError() ?? 'HOTLAP_ENGINE=ts'})` : ''}`);
   if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; each row is its median run by wall time, peak RSS the highest of its runs`);
   try {
     const rows: { what: string; size: number; r: ChildResult }[] = [];
@@ -162,7 +160,7 @@ async function main(): Promise<void> {
       console.log(`built ${file} (${mb(statSync(file).size).toFixed(1)} MB)`);
       // This machine's speed drifts by ±20 % between minutes (shared host), so the modes are
       // interleaved round by round: the ratio to the peer compares runs made side by side.
-      const modes = i === 0 ? ['inspect', ...(ENGINE === 'native' ? ['inspect-ts'] : []), 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
+      const modes = i === 0 ? ['inspect', 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
       const runs = new Map<string, ChildResult[]>(modes.map((m) => [m, []]));
       for (let round = 0; round < repeat; round++) {
         for (const mode of modes) runs.get(mode)!.push(runChildOnce(mode, file));

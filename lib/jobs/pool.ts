@@ -1,6 +1,6 @@
 /**
  * The inspection pool: piscina worker threads running the compiled worker
- * (build/engine/inspect-worker.js), each with a heap cap, each task with a time limit. Threads die
+ * (.hotlap/engine/inspect-worker.cjs), each with a heap cap, each task with a time limit. Threads die
  * with the server process, so a killed server leaves no inspection running behind it.
  */
 import fs from 'node:fs';

@@ -44,6 +44,6 @@ export function jobSettings(): JobSettings {
     pollMs: intEnv('HOTLAP_JOB_POLL_MS', 5_000, 100),
     reinspectLimit: intEnv('HOTLAP_REINSPECT_LIMIT', 6),
     reinspectWindowMs: intEnv('HOTLAP_REINSPECT_WINDOW_MS', 10 * 60_000),
-    workerFile: process.env.HOTLAP_INSPECT_WORKER || path.join(process.cwd(), 'build', 'engine', 'inspect-worker.js'),
+    workerFile: process.env.HOTLAP_INSPECT_WORKER || path.join(process.cwd(), '.hotlap', 'engine', 'inspect-worker.cjs'),
   };
 }

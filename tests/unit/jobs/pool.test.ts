@@ -19,8 +19,8 @@ const MB = 1024 * 1024;
 let base: JobSettings;
 
 beforeAll(() => {
-  execFileSync(process.execPath, [path.join(ROOT, 'scripts/build-engine.mjs')], { cwd: ROOT, stdio: 'pipe' });
-  base = { ...jobSettings(), workerFile: path.join(ROOT, 'build/engine/inspect-worker.js'), heapMb: 256 };
+  execFileSync(process.execPath, [path.join(ROOT, 'scripts/build-engine.mjs'), '--quiet', '--only=inspect-worker'], { cwd: ROOT, stdio: 'pipe' });
+  base = { ...jobSettings(), heapMb: 256 };
 }, 120_000);
 
 afterAll(async () => {
