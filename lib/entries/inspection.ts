@@ -15,12 +15,12 @@ import { getSequelize } from '@/lib/db';
 import { tooMany } from '@/lib/errors';
 import { localPath } from '@/lib/storage';
 import type { InspectOptions } from '@/lib/inspection';
-import type { Flag } from '@/lib/inspection/types';
-import type { RuleResult } from '@/lib/inspection/rules';
 import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
-import { flowSeries } from '@/lib/reviews/report';
 import { rulesForEntry } from './rules';
+import { reportColumns } from './inspectionView';
+
+export { countFindings, inspectionJson, type InspectionJson } from './inspectionView';
 
 /** The current G-code among an entry's files (any kinds, any order): the newest not replaced. */
 export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null {
@@ -72,14 +72,6 @@ export async function inspectionOptions(entry: Entry, gcodeSha256: string): Prom
   };
 }
 
-/** Counts for the headline columns: blocking = failing blocking rules + blocking flags; advisory = the rest judges should see. */
-export function countFindings(rules: RuleResult[], flags: Flag[]) {
-  const blocking = rules.filter((r) => r.status === 'fail' && r.rule.severity === 'blocking').length + flags.filter((f) => f.severity === 'blocking').length;
-  const advisory =
-    rules.filter((r) => (r.status === 'fail' && r.rule.severity === 'advisory') || r.status === 'unknown').length + flags.filter((f) => f.severity === 'advisory').length;
-  return { blocking, advisory };
-}
-
 /**
  * Runs one claimed inspection job (lib/jobs runner): the engine in the worker pool, then the
  * report stored — only while the job is still ours (status running, same attempt), so a runner
@@ -108,25 +100,12 @@ export async function runInspectionJob(claim: JobClaim) {
 
 /** Stores a finished report with its headline figures, if the job is still this claim's. */
 async function runInspection(row: Inspection, claim: JobClaim, report: Record<string, unknown>) {
-  const ruleResults = (report.rules ?? []) as RuleResult[];
-  const flags = [...((report.plausibility ?? []) as Flag[]), ...((report.warnings ?? []) as Flag[])];
-  const { blocking, advisory } = countFindings(ruleResults, flags);
-  const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
-  const time = report.time as { estimated_s: number | null };
-  const layers = report.layers as { height_mm: number | null };
   await Inspection.update(
     {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
-      ruleResults,
-      flags,
-      blockingFailures: blocking,
-      advisoryFlags: advisory,
-      peakFlowMm3s: flow?.peak_mm3s ?? null,
-      p95FlowMm3s: flow?.p95_mm3s ?? null,
-      estimatedTimeS: time?.estimated_s ?? null,
-      layerHeightMm: layers?.height_mm ?? null,
+      ...reportColumns(report),
       error: null,
       leaseUntil: null,
       finishedAt: new Date(),
@@ -177,55 +156,3 @@ export async function reinspect(entry: Entry): Promise<Inspection | null> {
   queueInspection();
   return row;
 }
-
-interface ReportShape {
-  flow?: { peak_mm3s: number | null; p95_mm3s: number | null; mean_mm3s: number | null; time_series?: { bucket_s: number; max_mm3s: number[]; mean_mm3s: number[] } };
-  time?: { estimated_s: number | null; slicer_estimate_s: number | null };
-  layers?: { count: number; height_mm: number | null; first_height_mm: number | null };
-  size_mm?: { x: number; y: number; z: number } | null;
-  objects?: number;
-  filament?: { length_mm: number | null; volume_mm3: number | null; mass_g: number | null; material: string };
-  settings?: Record<string, { declared: number | null; measured: number | null; detail?: string }>;
-  slicer?: { dialect: string; generator: string | null };
-  file?: { name: string | null; bytes: number };
-}
-
-/** The stored inspection as the pages show it: rule results, flags, key figures and the flow series. */
-export function inspectionJson(row: Inspection) {
-  const r = (row.report ?? {}) as ReportShape;
-  const setting = (k: string) => r.settings?.[k] ?? null;
-  return {
-    id: row.id,
-    status: row.status,
-    error: row.error,
-    createdAt: row.createdAt.toISOString(),
-    finishedAt: row.finishedAt?.toISOString() ?? null,
-    fileName: r.file?.name ?? null,
-    blockingFailures: row.blockingFailures,
-    advisoryFlags: row.advisoryFlags,
-    ruleResults: row.ruleResults as RuleResult[],
-    flags: row.flags as Flag[],
-    figures: {
-      peakFlowMm3s: row.peakFlowMm3s,
-      p95FlowMm3s: row.p95FlowMm3s,
-      meanFlowMm3s: r.flow?.mean_mm3s ?? null,
-      estimatedTimeS: row.estimatedTimeS,
-      slicerEstimateS: r.time?.slicer_estimate_s ?? null,
-      layerHeightMm: row.layerHeightMm,
-      firstLayerHeightMm: r.layers?.first_height_mm ?? null,
-      layers: r.layers?.count ?? null,
-      walls: setting('walls'),
-      topLayers: setting('top_layers'),
-      bottomLayers: setting('bottom_layers'),
-      infillPercent: setting('infill_percent'),
-      lineWidthMm: setting('line_width_mm'),
-      sizeMm: r.size_mm ?? null,
-      objects: r.objects ?? null,
-      filamentVolumeMm3: r.filament?.volume_mm3 ?? null,
-      filamentMassG: r.filament?.mass_g ?? null,
-      slicer: r.slicer?.generator ?? r.slicer?.dialect ?? null,
-    },
-    flowSeries: r.flow?.time_series ? flowSeries(r) : null,
-  };
-}
-export type InspectionJson = ReturnType<typeof inspectionJson>;
