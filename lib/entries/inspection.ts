@@ -93,7 +93,7 @@ export async function runInspectionJob(claim: JobClaim) {
     await runInspection(row, claim, report);
   } catch (err) {
     if (!(err instanceof InspectionRunError)) throw err;
-    if (err.kind === 'crashed') await queue.release(claim, err.message);
+    if (err.kind === 'crashed') await queue.release(claim, err.message, new Date());
     else await queue.fail(claim, err.message);
   }
 }

@@ -16,8 +16,8 @@ export interface JobQueue {
   claim(now: Date): Promise<JobClaim | null>;
   /** Extends the lease of a running job; false when the job is no longer ours. */
   renew(claim: JobClaim, now: Date): Promise<boolean>;
-  /** Gives a job back after a crash on our side: taken again, until its attempts run out. */
-  release(claim: JobClaim, sentence: string): Promise<void>;
+  /** Gives a job back after a crash on our side: taken again after a pause growing with its attempts, until they run out. */
+  release(claim: JobClaim, sentence: string, now: Date): Promise<void>;
   /** Fails a job for good with a sentence for the entrant. */
   fail(claim: JobClaim, sentence: string): Promise<boolean>;
   /** Fails jobs whose lease passed after their last allowed attempt; returns how many. */

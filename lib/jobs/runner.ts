@@ -104,7 +104,7 @@ async function run(s: RunnerState, claim: JobClaim) {
     await s.handler(claim);
   } catch (err) {
     console.error('job', claim.id, err);
-    await s.queue.release(claim, 'The inspection stopped unexpectedly on our side; it will be tried again.').catch(() => undefined);
+    await s.queue.release(claim, 'The inspection stopped unexpectedly on our side; it will be tried again.', new Date()).catch(() => undefined);
   } finally {
     s.active.delete(claim.id);
     for (const w of s.idleWaiters.splice(0)) w();

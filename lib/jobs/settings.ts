@@ -24,6 +24,8 @@ export interface JobSettings {
   leaseMs: number;
   /** A job started this many times without finishing (its server died each time) fails. */
   maxAttempts: number;
+  /** A job that crashed on our side is taken again after this × its attempts (a broken worker does not burn them at once). */
+  retryMs: number;
   /** How often an idle runner looks for queued or expired jobs (other processes may add them). */
   pollMs: number;
   /** Re-inspections an entrant may ask for per window. */
@@ -41,6 +43,7 @@ export function jobSettings(): JobSettings {
     maxInflatedBytes: intEnv('HOTLAP_INSPECTION_MAX_INFLATED_BYTES', 4 * GCODE_MAX_BYTES),
     leaseMs: intEnv('HOTLAP_JOB_LEASE_MS', 60_000, 1000),
     maxAttempts: intEnv('HOTLAP_JOB_MAX_ATTEMPTS', 3),
+    retryMs: intEnv('HOTLAP_JOB_RETRY_MS', 30_000, 0),
     pollMs: intEnv('HOTLAP_JOB_POLL_MS', 5_000, 100),
     reinspectLimit: intEnv('HOTLAP_REINSPECT_LIMIT', 6),
     reinspectWindowMs: intEnv('HOTLAP_REINSPECT_WINDOW_MS', 10 * 60_000),

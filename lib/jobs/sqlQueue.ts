@@ -24,7 +24,7 @@ WITH waiting AS (
 SELECT w.id FROM waiting w LEFT JOIN served s ON s.entrant_id = w.entrant_id
 ORDER BY COALESCE(s.last_seq, 0), w.id LIMIT 1`;
 
-export function sqlInspectionQueue(settings: Pick<JobSettings, 'leaseMs' | 'maxAttempts'>): JobQueue {
+export function sqlInspectionQueue(settings: Pick<JobSettings, 'leaseMs' | 'maxAttempts' | 'retryMs'>): JobQueue {
   const leaseFrom = (now: Date) => new Date(now.getTime() + settings.leaseMs);
   const mine = (c: JobClaim) => ({ id: c.id, status: 'running', attempts: c.attempt });
   return {
@@ -52,9 +52,9 @@ export function sqlInspectionQueue(settings: Pick<JobSettings, 'leaseMs' | 'maxA
       const [n] = await Inspection.update({ leaseUntil: leaseFrom(now) }, { where: mine(c) });
       return n > 0;
     },
-    async release(c, sentence) {
-      // Still `running`, lease over: claim() takes it again; expire() fails it after the last attempt.
-      await Inspection.update({ leaseUntil: new Date(0), error: sentence }, { where: mine(c) });
+    async release(c, sentence, now) {
+      // Still `running`, its lease ending after the pause: claim() takes it again then; expire() fails it after the last attempt.
+      await Inspection.update({ leaseUntil: new Date(now.getTime() + settings.retryMs * c.attempt), error: sentence }, { where: mine(c) });
     },
     async fail(c, sentence) {
       const [n] = await Inspection.update({ status: 'failed', error: sentence, leaseUntil: null, finishedAt: new Date() }, { where: mine(c) });

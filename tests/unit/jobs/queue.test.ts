@@ -21,7 +21,7 @@ let q: (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;
 let exec: (sql: string, params?: unknown[]) => Promise<void>;
 const stamp = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' +00:00');
 const T0 = new Date('2026-11-01T00:00:00.000Z');
-const settings = { leaseMs: 60_000, maxAttempts: 3 };
+const settings = { leaseMs: 60_000, maxAttempts: 3, retryMs: 30_000 };
 
 /** entrant id → its entries' ids (entrants 1..3, five entries each). */
 const entriesOf: Record<number, number[]> = {};
@@ -160,6 +160,21 @@ describe('leases and attempts', () => {
     expect(await queueApi.renew(c1, later)).toBe(false);
     expect(await queueApi.fail(c1, 'stale')).toBe(false);
     expect(await queueApi.renew(c2, later)).toBe(true);
+  });
+
+  it('a job that crashed on our side is taken again after a pause that grows with its attempts', async () => {
+    const id = await queue(1, 0);
+    const queueApi = sqlInspectionQueue(settings);
+    const c1 = (await queueApi.claim(T0))!;
+    await queueApi.release(c1, 'The inspection stopped unexpectedly on our side; it will be tried again.', T0);
+    expect(await queueApi.claim(new Date(T0.getTime() + settings.retryMs - 1))).toBeNull();
+    const t2 = new Date(T0.getTime() + settings.retryMs + 1);
+    const c2 = (await queueApi.claim(t2))!;
+    expect(c2).toEqual({ id, attempt: 2 });
+    await queueApi.release(c2, 'again', t2);
+    // Second pause: twice as long.
+    expect(await queueApi.claim(new Date(t2.getTime() + settings.retryMs + 1))).toBeNull();
+    expect((await queueApi.claim(new Date(t2.getTime() + 2 * settings.retryMs + 1)))!.attempt).toBe(3);
   });
 
   it('after the last attempt a job whose lease passed fails with a sentence', async () => {
