@@ -8,6 +8,7 @@ import { test, expect, type Page } from '@playwright/test';
 import fs from 'node:fs';
 import path from 'node:path';
 import { gunzipSync } from 'node:zlib';
+import sharp from 'sharp';
 import { inspectFile } from '../../lib/inspection/inspect';
 import { toJsonReport } from '../../lib/inspection/report';
 import type { CheckRulebook } from '../../lib/check/rulebook';
@@ -156,23 +157,24 @@ test('an entrant sees the browser verdict while a throttled upload is still runn
   await page.getByLabel('Y (mm)').fill('39');
   await page.getByLabel('Z (mm)').fill('40');
   await page.getByRole('button', { name: 'Next' }).click();
-  // Upload at 64 KB/s (Chromium's network emulation): the ~1.3 MB of files take ~20 s to send.
+  // Upload at 64 KB/s (Chromium's network emulation): the plain G-code (~2 MB) takes ~30 s to send.
   const cdp = await page.context().newCDPSession(page);
   await cdp.send('Network.enable');
   await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 50, downloadThroughput: -1, uploadThroughput: 64 * 1024 });
-  const photo = Buffer.from('/9j/4AAQSkZJRgABAQEASABIAAD/2wBDAP//////////////////////////////////////////////////////////////////////////////////////wgALCAABAAEBAREA/8QAFBABAAAAAAAAAAAAAAAAAAAAAP/aAAgBAQABPxA=', 'base64');
+  const photo = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#d74707' } }).jpeg().toBuffer();
   await page.getByLabel(/^Photos/).setInputFiles([
     { name: 'front.jpg', mimeType: 'image/jpeg', buffer: photo },
     { name: 'window.jpg', mimeType: 'image/jpeg', buffer: photo },
   ]);
-  await page.getByLabel(/^G-code/).setInputFiles(path.join(FIXTURES, 'prusa-beacon-028.gcode.gz'));
+  const plain = gunzipSync(fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-028.gcode.gz')));
+  await page.getByLabel(/^G-code/).setInputFiles({ name: 'beacon-028.gcode', mimeType: 'text/plain', buffer: plain });
   await page.getByRole('button', { name: 'Upload and inspect' }).click();
   await expect(page.getByTestId('upload-progress').first()).toBeVisible();
   const check = page.getByTestId('gcode-check');
   await expect(check.getByTestId('inspection-summary')).toContainText('blocking problem', { timeout: 30_000 });
   // Still uploading: the form is on screen, its bar below 100 %.
-  await expect(page).toHaveURL(/\/entries\/new|\/me\/entries\/new|new/);
-  const pct = Number(await page.getByRole('progressbar', { name: 'Uploading' }).getAttribute('aria-valuenow'));
+  const pct = Number(await page.getByRole('progressbar', { name: 'Uploading' }).getAttribute('aria-valuenow', { timeout: 1000 }));
+  await expect(page).toHaveURL(/\/me\/entries\/new/);
   console.log(`entrant saw the browser verdict with the upload at ${pct} %`);
   expect(pct).toBeLessThan(100);
   await page.screenshot({ path: test.info().outputPath('gcode-check-upload.png'), fullPage: true });
