@@ -54,7 +54,7 @@ export function stopRunner(): void {
 /** Resolves once this runner has nothing running and the queue has nothing it could take. */
 export async function runnerIdle(): Promise<void> {
   const s = g[KEY];
-  if (!s) return;
+  if (!s || s.stopped) return;
   for (;;) {
     await pump(s);
     if (!s.active.size && !(await s.queue.pending(new Date()))) return;
@@ -76,6 +76,7 @@ async function renewAll(s: RunnerState) {
 }
 
 async function pump(s: RunnerState): Promise<void> {
+  if (s.stopped) return;
   if (s.pumping) {
     s.again = true;
     return;
@@ -108,6 +109,6 @@ async function run(s: RunnerState, claim: JobClaim) {
   } finally {
     s.active.delete(claim.id);
     for (const w of s.idleWaiters.splice(0)) w();
-    void pump(s);
+    if (!s.stopped) void pump(s);
   }
 }

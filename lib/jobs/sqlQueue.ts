@@ -16,7 +16,7 @@ import type { JobSettings } from './settings';
 const NEXT_JOB_SQL = `
 WITH waiting AS (
   SELECT i.id, e.entrant_id FROM inspections i JOIN entries e ON e.id = i.entry_id
-  WHERE i.status = 'queued' OR (i.status = 'running' AND i.lease_until < :now AND i.attempts < :maxAttempts)
+  WHERE i.status = 'queued' OR (i.status = 'running' AND (i.lease_until IS NULL OR i.lease_until < :now) AND i.attempts < :maxAttempts)
 ), served AS (
   SELECT e.entrant_id, MAX(i.claim_seq) AS last_seq FROM inspections i JOIN entries e ON e.id = i.entry_id
   WHERE e.entrant_id IN (SELECT entrant_id FROM waiting) GROUP BY e.entrant_id
@@ -41,7 +41,7 @@ export function sqlInspectionQueue(settings: Pick<JobSettings, 'leaseMs' | 'maxA
             leaseUntil: leaseFrom(now),
             error: null,
           },
-          { where: { id, [Op.or]: [{ status: 'queued' }, { status: 'running', leaseUntil: { [Op.lt]: now } }] }, transaction },
+          { where: { id, [Op.or]: [{ status: 'queued' }, { status: 'running', leaseUntil: null }, { status: 'running', leaseUntil: { [Op.lt]: now } }] }, transaction },
         );
         if (!n) return null;
         const row = await Inspection.findByPk(id, { attributes: ['id', 'attempts'], transaction });
@@ -68,11 +68,12 @@ export function sqlInspectionQueue(settings: Pick<JobSettings, 'leaseMs' | 'maxA
           finishedAt: now,
           error: `The inspection was started ${settings.maxAttempts} times and never finished; use "Inspect again", and if it stops again, tell the organizers.`,
         },
-        { where: { status: 'running', leaseUntil: { [Op.lt]: now }, attempts: { [Op.gte]: settings.maxAttempts } } },
+        { where: { status: 'running', attempts: { [Op.gte]: settings.maxAttempts }, [Op.or]: [{ leaseUntil: null }, { leaseUntil: { [Op.lt]: now } }] } },
       );
       return n;
     },
     async pending(now) {
+      // Queued, running under a live lease, or running with attempts left (taken again once the lease passes).
       return Inspection.count({ where: { [Op.or]: [{ status: 'queued' }, { status: 'running', leaseUntil: { [Op.gte]: now } }, { status: 'running', attempts: { [Op.lt]: settings.maxAttempts } }] } });
     },
   };

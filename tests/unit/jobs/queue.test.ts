@@ -162,6 +162,14 @@ describe('leases and attempts', () => {
     expect(await queueApi.renew(c2, later)).toBe(true);
   });
 
+  it('a row left running without a lease (a server before leases, or killed before its first renewal) is taken again', async () => {
+    const entryId = entriesOf[3][0];
+    const t = stamp(T0);
+    await exec("INSERT INTO inspections (entry_id, stored_file_id, engine_version, status, created_at, updated_at) VALUES (?, ?, 'x', 'running', ?, ?)", [entryId, await fileOf(entryId), t, t]);
+    const [{ id }] = await q('SELECT MAX(id) AS id FROM inspections');
+    expect(await sqlInspectionQueue(settings).claim(T0)).toEqual({ id: Number(id), attempt: 1 });
+  });
+
   it('a job that crashed on our side is taken again after a pause that grows with its attempts', async () => {
     const id = await queue(1, 0);
     const queueApi = sqlInspectionQueue(settings);
