@@ -43,12 +43,13 @@ export function wakeJobs(): void {
   if (s && !s.stopped) void pump(s);
 }
 
-/** Stops taking jobs; running ones finish. */
-export function stopRunner(): void {
+/** Stops taking jobs; resolves once a look for work in flight ended (running jobs finish on their own). */
+export async function stopRunner(): Promise<void> {
   const s = g[KEY];
   if (!s) return;
   s.stopped = true;
   for (const t of s.timers) clearInterval(t);
+  while (s.pumping) await new Promise((r) => setTimeout(r, 10));
 }
 
 /** Resolves once this runner has nothing running and the queue has nothing it could take. */

@@ -25,7 +25,7 @@ export async function drainJobs(): Promise<void> {
   try {
     await runnerIdle();
   } finally {
-    stopRunner();
+    await stopRunner();
     await closePool();
   }
 }
