@@ -7,7 +7,7 @@
 import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { tsRunArgs } from '@/lib/tsRun';
-import type { InspectOptions } from '@/lib/inspection';
+import { parseStoredInspection, type InspectOptions, type StoredInspectionJson } from '@/lib/inspection';
 
 export const ENGINE_VERSION = 'hotlap-inspect-1';
 /** A 200 MB file inspects in well under a minute here; ten minutes means something is stuck. */
@@ -75,8 +75,8 @@ export class InspectionRunError extends Error {
   }
 }
 
-/** Runs the inspection engine on `file` in a child process and returns its JSON report. */
-export function inspectInChild(file: string, options: InspectOptions): Promise<Record<string, unknown>> {
+/** Runs the inspection engine on `file` in a child process and returns its report and preview, checked against the contract. */
+export function inspectInChild(file: string, options: InspectOptions): Promise<StoredInspectionJson> {
   const root = process.cwd();
   const worker = path.join(root, 'lib', 'jobs', 'inspect-worker.ts');
   return new Promise((resolve, reject) => {
@@ -106,7 +106,7 @@ export function inspectInChild(file: string, options: InspectOptions): Promise<R
       if (code === 2) return reject(new InspectionRunError(err.trim().split('\n')[0] || 'The G-code could not be read.', 'unreadable'));
       if (code !== 0) return reject(new InspectionRunError(`The inspection stopped unexpectedly (exit ${code}). ${err.trim().split('\n')[0] ?? ''}`.trim(), 'crashed'));
       try {
-        resolve(JSON.parse(Buffer.concat(out).toString('utf8')) as Record<string, unknown>);
+        resolve(parseStoredInspection(JSON.parse(Buffer.concat(out).toString('utf8'))));
       } catch {
         reject(new InspectionRunError('The inspection produced no readable report.', 'crashed'));
       }

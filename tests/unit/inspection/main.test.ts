@@ -5,6 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from 'vitest';
 import { InspectionError } from '../../../lib/inspection/reader';
+import { parseStoredInspection } from '../../../lib/inspection/contract';
 import { firstLine, runInspectionMain } from '../../../lib/inspection/main';
 import { tsRunArgs } from '../../../lib/tsRun';
 
@@ -63,11 +64,13 @@ describe('lib/jobs/inspect-worker.ts', () => {
     return { code: r.status, stdout: r.stdout, stderr: r.stderr };
   };
 
-  it('exits 0 with the JSON report', () => {
+  it('exits 0 with the report contract and the toolpath preview from the same pass', () => {
     const r = run(JSON.stringify({ file: join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz'), options: {} }));
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
-    expect(JSON.parse(r.stdout).layers.count).toBe(200);
+    const out = parseStoredInspection(JSON.parse(r.stdout));
+    expect(out.report.layers.count).toBe(200);
+    expect(out.preview?.layers.length).toBe(201);
   });
 
   it('exits 2 with one unprefixed line for a file it cannot read', () => {
