@@ -98,6 +98,9 @@ class Fanout implements MotionSink {
 
 export const DEFAULT_FILAMENT_DIAMETER_MM = 1.75;
 
+/** Layers with extra wall loops listed in the report (the count says how many there are in all). */
+export const EXTRA_LOOP_LAYERS_LISTED = 200;
+
 /** What the per-move stages hand to the report. */
 interface EngineOutput {
   stats: ParserStats;
@@ -370,7 +373,12 @@ function settingsEvidence(d: DeclaredSettings, t: MeasuredSettings | null, m: Me
   const lw = fig('line_width_mm');
   return {
     infill_percent: pair(v.infill_percent.value, fig('infill_percent').value, fig('infill_percent').detail),
-    walls: pair(v.walls.value, fig('walls').value, fig('walls').detail),
+    walls: {
+      ...pair(v.walls.value, fig('walls').value, fig('walls').detail),
+      ...(t && t.walls.value !== null
+        ? { extraLoopLayers: t.extraLoopLayers.slice(0, EXTRA_LOOP_LAYERS_LISTED), extraLoopLayerCount: t.extraLoopLayers.length }
+        : {}),
+    },
     top_layers: pair(v.top_layers.value, fig('top_layers').value, fig('top_layers').detail),
     bottom_layers: pair(v.bottom_layers.value, fig('bottom_layers').value, fig('bottom_layers').detail),
     layer_height_mm:
