@@ -12,12 +12,13 @@ import { UploadBar } from '@/components/entrant/UploadBar';
 import { reportInspectionJson } from '@/lib/entries/inspectionView';
 import { CHECK_WORKER_URL, type CheckMessage, type CheckRequest } from '@/lib/check/protocol';
 import type { CheckRulebook } from '@/lib/check/rulebook';
+import type { InspectionReport as ReportContract } from '@/lib/inspection/contract';
 import { formatNumber } from '@/lib/format';
 
 type State =
   | { phase: 'idle' }
   | { phase: 'reading'; bytesRead: number; totalBytes: number }
-  | { phase: 'done'; report: Record<string, unknown>; elapsedMs: number; at: Date }
+  | { phase: 'done'; report: ReportContract; elapsedMs: number; at: Date }
   | { phase: 'error'; message: string };
 
 interface Props {

@@ -1,16 +1,23 @@
 import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 import type { InspectionStatus } from '@/lib/domain';
+import type { FlagJson, InspectionReport, RuleResultJson } from '@/lib/inspection/contract';
+import type { ToolpathPreview } from '@/lib/inspection/preview';
 
-/** The engine's report on one entry's G-code. Headline figures are columns for sorting standings. */
+/**
+ * The engine's report on one entry's G-code (the report contract, lib/inspection/contract.ts) and
+ * the toolpath preview built in the same pass. Headline figures are columns for sorting standings.
+ */
 export class Inspection extends Model<InferAttributes<Inspection>, InferCreationAttributes<Inspection>> {
   declare id: CreationOptional<number>;
   declare entryId: ForeignKey<number>;
   declare storedFileId: ForeignKey<number> | null;
   declare engineVersion: string;
   declare status: CreationOptional<InspectionStatus>;
-  declare report: Record<string, unknown> | null;
-  declare ruleResults: CreationOptional<unknown[]>;
-  declare flags: CreationOptional<unknown[]>;
+  declare report: InspectionReport | null;
+  /** Built by the same pass as the report; null for rows inspected before previews were kept here. */
+  declare preview: CreationOptional<ToolpathPreview | null>;
+  declare ruleResults: CreationOptional<RuleResultJson[]>;
+  declare flags: CreationOptional<FlagJson[]>;
   declare blockingFailures: CreationOptional<number>;
   declare advisoryFlags: CreationOptional<number>;
   declare peakFlowMm3s: number | null;
@@ -35,6 +42,7 @@ export class Inspection extends Model<InferAttributes<Inspection>, InferCreation
         engineVersion: { type: DataTypes.STRING(32), allowNull: false },
         status: { type: DataTypes.STRING(16), allowNull: false, defaultValue: 'queued' },
         report: { type: DataTypes.JSON, allowNull: true },
+        preview: { type: DataTypes.JSON, allowNull: true },
         ruleResults: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
         flags: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
         blockingFailures: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },

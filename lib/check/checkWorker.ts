@@ -2,11 +2,10 @@
  * The rulebook check in the visitor's browser: a Web Worker that streams the chosen file
  * (File.stream(), never the whole file in memory), inflates a .gz with DecompressionStream, and
  * pushes the bytes through the same engine the server runs (lib/inspection/engine.ts, createInspector),
- * then posts the same JSON report (toJsonReport). Nothing is uploaded. The server's inspection of an
+ * then posts the same report contract (InspectionReport) the server stores. Nothing is uploaded. The server's inspection of an
  * entry's upload stays the one that counts.
  */
 import { createInspector } from '@/lib/inspection/engine';
-import { toJsonReport } from '@/lib/inspection/report';
 import { InspectionError } from '@/lib/inspection/lines';
 import type { CheckMessage, CheckRequest } from './protocol';
 
@@ -63,7 +62,7 @@ async function check(req: CheckRequest): Promise<CheckMessage> {
   }
   self.postMessage({ type: 'progress', bytesRead, totalBytes });
   const report = inspector.end({ bytesIn: totalBytes, gzip });
-  return { type: 'done', report: toJsonReport(report), elapsedMs: performance.now() - started, bytesRead };
+  return { type: 'done', report, elapsedMs: performance.now() - started, bytesRead };
 }
 
 self.onmessage = (e) => {

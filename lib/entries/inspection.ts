@@ -14,7 +14,7 @@ import { sqlInspectionQueue } from '@/lib/jobs/sqlQueue';
 import { getSequelize } from '@/lib/db';
 import { tooMany } from '@/lib/errors';
 import { localPath } from '@/lib/storage';
-import type { InspectOptions } from '@/lib/inspection';
+import type { InspectOptions, StoredInspectionJson } from '@/lib/inspection';
 import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
 import { rulesForEntry } from './rules';
@@ -35,7 +35,8 @@ export async function currentGcode(entryId: number): Promise<StoredFile | null> 
 }
 
 export async function latestInspection(entryId: number): Promise<Inspection | null> {
-  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']] });
+  // The preview (hundreds of KB) is read only by the review desk's preview route.
+  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']], attributes: { exclude: ['preview'] } });
 }
 
 /** Engine options from the entry, its season and its machine. */
@@ -89,8 +90,8 @@ export async function runInspectionJob(claim: JobClaim) {
   }
   try {
     const options = await inspectionOptions(entry, file.sha256);
-    const report = await inspectInPool(localPath(file.storageKey), { ...options, name: file.originalName }, settings);
-    await runInspection(row, claim, report);
+    const stored = await inspectInPool(localPath(file.storageKey), { ...options, name: file.originalName }, settings);
+    await runInspection(row, claim, stored);
   } catch (err) {
     if (!(err instanceof InspectionRunError)) throw err;
     if (err.kind === 'crashed') await queue.release(claim, err.message, new Date());
@@ -98,13 +99,14 @@ export async function runInspectionJob(claim: JobClaim) {
   }
 }
 
-/** Stores a finished report with its headline figures, if the job is still this claim's. */
-async function runInspection(row: Inspection, claim: JobClaim, report: Record<string, unknown>) {
+/** Stores a finished report (checked against the contract by the pool) with its headline figures and the preview, if the job is still this claim's. */
+async function runInspection(row: Inspection, claim: JobClaim, { report, preview }: StoredInspectionJson) {
   await Inspection.update(
     {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
+      preview,
       ...reportColumns(report),
       error: null,
       leaseUntil: null,

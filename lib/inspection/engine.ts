@@ -1,7 +1,7 @@
 /**
  * The inspection engine's core, environment-neutral: bytes → lines → parser → analyzers
  * (measurements + time planner, declared settings, toolpath settings, optional preview) →
- * InspectionReport, in one pass with flat memory. No node:* imports: the same code runs in Node
+ * EngineReport, in one pass with flat memory. No node:* imports: the same code runs in Node
  * (inspect.ts feeds it from files and streams, zlib for gzip) and in a browser Web Worker (a File
  * stream, DecompressionStream for gzip).
  *
@@ -16,10 +16,12 @@ import { Measurements, type MeasureResult } from './measure';
 import { DEFAULT_LIMITS, type MachineLimits } from './planner';
 import { createDeclaredSettingsReader, type DeclaredSettings, type DeclaredSettingsReader } from './declared';
 import { DEFAULT_MATERIAL_FAMILY, MATERIALS, type MaterialFamily } from './materials';
-import { toJsonReport, type InspectionReport, type ReportSettings } from './report';
+import { toJsonReport, type EngineReport, type ReportSettings } from './report';
+import type { InspectionReport, StoredInspectionJson } from './contract';
+import { PreviewCollector, type PreviewOptions } from './preview';
 import { createToolpathSettingsAnalyzer, type MeasuredSettings, type ToolpathSettingsAnalyzer } from './toolpathSettings';
 import { evaluateRules, settingsMismatchFlags, type Rule } from './rules';
-import type { MetricContext, MetricReport } from './metrics';
+import type { MetricContext } from './metrics';
 import { checkPlausibility, type PlausibilityClaims } from './plausibility';
 
 export interface InspectOptions {
@@ -42,6 +44,16 @@ export interface InspectOptions {
   claims?: PlausibilityClaims;
   /** Skip the toolpath settings analysis (faster; settings.*.measured stay null except layer heights). */
   skipToolpathSettings?: boolean;
+  /** Build the judges' toolpath preview in the same pass (EngineReport.preview). */
+  preview?: boolean | Omit<PreviewOptions, 'filamentDiameterMm' | 'parser'>;
+}
+
+/** What an inspection job keeps: the report contract, and the preview beside it (its own column). */
+export type StoredInspection = StoredInspectionJson;
+
+/** Splits an engine report into what is stored: the contract JSON and the preview. */
+export function toStoredInspection(r: EngineReport): StoredInspection {
+  return { report: toJsonReport(r), preview: r.preview ?? null };
 }
 
 /**
@@ -86,6 +98,9 @@ class Fanout implements MotionSink {
 
 export const DEFAULT_FILAMENT_DIAMETER_MM = 1.75;
 
+/** Layers with extra wall loops listed in the report (the count says how many there are in all). */
+export const EXTRA_LOOP_LAYERS_LISTED = 200;
+
 /** What the per-move stages hand to the report. */
 interface EngineOutput {
   stats: ParserStats;
@@ -120,8 +135,10 @@ export interface Inspector {
   push(chunk: Uint8Array): void;
   /** Bytes pushed so far (for progress). */
   readonly bytes: number;
-  /** Ends the input and returns the report; throws InspectionError for an empty input. */
+  /** Ends the input and returns the report contract (what is stored and served); throws InspectionError for an empty input. */
   end(source?: InspectorSource): InspectionReport;
+  /** Ends the input and returns the engine's full-precision report (with the preview when asked). */
+  finish(source?: InspectorSource): EngineReport;
 }
 
 /** Starts an inspection; push the input's bytes, then end(). Throws RangeError for implausible options. */
@@ -133,10 +150,24 @@ export function createInspector(options: InspectOptions = {}): Inspector {
   const machine = new MachineState();
   const measure = new Measurements({ filamentDiameterMm: diameterMm, limits }, machine);
   const toolpath = options.skipToolpathSettings ? null : createToolpathSettingsAnalyzer({ filamentDiameterMm: diameterMm });
-  const fan = new Fanout(measure, toolpath, declared, options.sinks ?? []);
+  const previewOptions = options.preview ? (options.preview === true ? {} : options.preview) : null;
+  const preview = previewOptions ? new PreviewCollector(diameterMm, previewOptions.maxPoints) : null;
+  const fan = new Fanout(measure, toolpath, declared, preview ? [...(options.sinks ?? []), preview] : (options.sinks ?? []));
   const parser = new GcodeParser(fan, options.parser ?? {}, machine);
   const splitter = new LineSplitter(parser);
   let ended = false;
+  const finish = (source: InspectorSource = {}): EngineReport => {
+    if (ended) throw new Error('This inspection has ended; start a new one.');
+    ended = true;
+    if (splitter.bytes === 0) throw emptyError();
+    splitter.end();
+    parser.end();
+    const out: EngineOutput = { stats: parser.stats, warnings: parser.warnings, machine, measure: measure.result(), toolpath: toolpath ? toolpath.result() : null };
+    const input: ReportInput = { bytesIn: source.bytesIn ?? splitter.bytes, bytesText: splitter.bytes, gzip: source.gzip ?? false };
+    const report = buildReport({ declared, diameterMm }, out, input, options, options.name ?? null);
+    if (preview && previewOptions) report.preview = preview.result(previewOptions);
+    return report;
+  };
   return {
     push(chunk: Uint8Array): void {
       if (ended) throw new Error('This inspection has ended; start a new one.');
@@ -145,16 +176,8 @@ export function createInspector(options: InspectOptions = {}): Inspector {
     get bytes() {
       return splitter.bytes;
     },
-    end(source: InspectorSource = {}): InspectionReport {
-      if (ended) throw new Error('This inspection has ended; start a new one.');
-      ended = true;
-      if (splitter.bytes === 0) throw emptyError();
-      splitter.end();
-      parser.end();
-      const out: EngineOutput = { stats: parser.stats, warnings: parser.warnings, machine, measure: measure.result(), toolpath: toolpath ? toolpath.result() : null };
-      const input: ReportInput = { bytesIn: source.bytesIn ?? splitter.bytes, bytesText: splitter.bytes, gzip: source.gzip ?? false };
-      return buildReport({ declared, diameterMm }, out, input, options, options.name ?? null);
-    },
+    end: (source?: InspectorSource): InspectionReport => toJsonReport(finish(source)),
+    finish,
   };
 }
 
@@ -162,7 +185,7 @@ function pair(declared: number | null | undefined, measured: number | null | und
   return { declared: declared ?? null, measured: measured ?? null, ...(detail ? { detail } : {}) };
 }
 
-function buildReport(p: RunContext, out: EngineOutput, stats: ReportInput, options: InspectOptions, name: string | null): InspectionReport {
+function buildReport(p: RunContext, out: EngineOutput, stats: ReportInput, options: InspectOptions, name: string | null): EngineReport {
   const m: MeasureResult = out.measure;
   const ps = out.stats;
   const d: DeclaredSettings = p.declared.result();
@@ -225,7 +248,7 @@ function buildReport(p: RunContext, out: EngineOutput, stats: ReportInput, optio
   warnings.push(...settingsMismatchFlags(settings));
 
   const mach = out.machine;
-  const report: InspectionReport = {
+  const report: EngineReport = {
     file: { name, bytes: stats.bytesIn, textBytes: stats.bytesText, gzip: stats.gzip, lines: ps.lines },
     slicer: { dialect: d.dialect, generator: d.generator },
     filament: {
@@ -325,7 +348,7 @@ function buildReport(p: RunContext, out: EngineOutput, stats: ReportInput, optio
   };
   if (options.rules || options.claims) {
     const json = toJsonReport(report);
-    if (options.rules) report.rules = evaluateRules(options.rules, json as MetricReport, options.ruleContext);
+    if (options.rules) report.rules = evaluateRules(options.rules, json, options.ruleContext);
     if (options.claims) report.plausibility = checkPlausibility(json, options.claims);
   }
   return report;
@@ -350,7 +373,12 @@ function settingsEvidence(d: DeclaredSettings, t: MeasuredSettings | null, m: Me
   const lw = fig('line_width_mm');
   return {
     infill_percent: pair(v.infill_percent.value, fig('infill_percent').value, fig('infill_percent').detail),
-    walls: pair(v.walls.value, fig('walls').value, fig('walls').detail),
+    walls: {
+      ...pair(v.walls.value, fig('walls').value, fig('walls').detail),
+      ...(t && t.walls.value !== null
+        ? { extraLoopLayers: t.extraLoopLayers.slice(0, EXTRA_LOOP_LAYERS_LISTED), extraLoopLayerCount: t.extraLoopLayers.length }
+        : {}),
+    },
     top_layers: pair(v.top_layers.value, fig('top_layers').value, fig('top_layers').detail),
     bottom_layers: pair(v.bottom_layers.value, fig('bottom_layers').value, fig('bottom_layers').detail),
     layer_height_mm:

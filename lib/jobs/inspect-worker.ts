@@ -10,7 +10,8 @@
 import { basename } from 'node:path';
 import { getHeapStatistics } from 'node:v8';
 import { isMainThread, resourceLimits } from 'node:worker_threads';
-import { createInspector, toJsonReport, InspectionError, type InspectOptions } from '../inspection';
+import { createInspector, InspectionError, type InspectOptions, type StoredInspectionJson } from '../inspection';
+import { toStoredInspection } from '../inspection/engine';
 import { readFileChunks } from '../inspection/reader';
 
 export interface InspectTask {
@@ -21,8 +22,8 @@ export interface InspectTask {
   maxInflatedBytes: number;
 }
 
-/** `ok: false`: the file cannot be inspected; `reason` says why in a sentence for the entrant. */
-export type InspectTaskResult = { ok: true; report: ReturnType<typeof toJsonReport> } | { ok: false; reason: string };
+/** `ok: true`: the report contract and, from the same pass, the judges' toolpath preview. `ok: false`: the file cannot be inspected; `reason` says why in a sentence for the entrant. */
+export type InspectTaskResult = { ok: true; stored: StoredInspectionJson } | { ok: false; reason: string };
 
 const MB = 1024 * 1024;
 
@@ -32,7 +33,7 @@ export function inflatedLimitSentence(maxInflatedBytes: number): string {
 
 export default async function inspectTask(task: InspectTask): Promise<InspectTaskResult> {
   try {
-    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file) });
+    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file), preview: true });
     let inflated = 0;
     const source = await readFileChunks(task.file, {
       push(chunk: Uint8Array) {
@@ -42,7 +43,7 @@ export default async function inspectTask(task: InspectTask): Promise<InspectTas
         inspector.push(chunk);
       },
     });
-    return { ok: true, report: toJsonReport(inspector.end(source)) };
+    return { ok: true, stored: toStoredInspection(inspector.finish(source)) };
   } catch (err) {
     // Input the engine cannot use (and values out of range) is the entrant's to fix; the rest is ours.
     if (err instanceof InspectionError || err instanceof RangeError) {

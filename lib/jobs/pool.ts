@@ -5,7 +5,7 @@
  */
 import fs from 'node:fs';
 import { Piscina } from 'piscina';
-import type { InspectOptions } from '@/lib/inspection';
+import { parseStoredInspection, type InspectOptions, type StoredInspectionJson } from '@/lib/inspection';
 import type { InspectTask, InspectTaskResult } from './inspect-worker';
 import { jobSettings, type JobSettings } from './settings';
 
@@ -47,8 +47,11 @@ export async function poolThreadLimits(settings: JobSettings = jobSettings()) {
   return (await pool(settings).run(null, { name: 'threadLimits' })) as ReturnType<typeof import('./inspect-worker').threadLimits>;
 }
 
-/** Runs one inspection in the pool; rejects with InspectionRunError whose message is a sentence for the entrant. */
-export async function inspectInPool(file: string, options: InspectOptions, settings: JobSettings = jobSettings()): Promise<Record<string, unknown>> {
+/**
+ * Runs one inspection in the pool and returns its report and preview, checked against the report
+ * contract; rejects with InspectionRunError whose message is a sentence for the entrant.
+ */
+export async function inspectInPool(file: string, options: InspectOptions, settings: JobSettings = jobSettings()): Promise<StoredInspectionJson> {
   const task: InspectTask = { file, options, maxInflatedBytes: settings.maxInflatedBytes };
   const signal = AbortSignal.timeout(settings.timeLimitMs);
   let result: InspectTaskResult;
@@ -63,7 +66,12 @@ export async function inspectInPool(file: string, options: InspectOptions, setti
     throw new InspectionRunError('The inspection stopped unexpectedly on our side; it will be tried again.', 'crashed');
   }
   if (!result.ok) throw new InspectionRunError(result.reason, 'unreadable');
-  return result.report;
+  try {
+    return parseStoredInspection(result.stored);
+  } catch (err) {
+    console.error('inspection report contract', err);
+    throw new InspectionRunError('The inspection produced a report we could not read; it will be tried again.', 'crashed');
+  }
 }
 
 function limitText(ms: number): string {

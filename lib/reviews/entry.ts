@@ -133,7 +133,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       error: latest.error,
       finishedAt: latest.finishedAt?.toISOString() ?? null,
       headline: { ...head, estimatedS: latest.estimatedTimeS ?? head.estimatedS, peakFlowMm3s: latest.peakFlowMm3s ?? head.peakFlowMm3s, p95FlowMm3s: latest.p95FlowMm3s ?? head.p95FlowMm3s },
-      ruleResults: (Array.isArray(latest.ruleResults) ? latest.ruleResults : []) as { rule: { metric: string; severity: string; sentence?: string }; status: string; measured: unknown; message: string }[],
+      ruleResults: latest.ruleResults,
       flags: asFlags(latest.flags),
       settings: settingsRows(report),
       flowSeries: flowSeries(report),

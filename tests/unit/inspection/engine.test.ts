@@ -8,6 +8,9 @@ import { dirname, join, resolve } from 'node:path';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { createInspector, inspectFile } from '../../../lib/inspection/inspect';
+import { toJsonReport } from '../../../lib/inspection/report';
+import { InspectionReportSchema, parseInspectionReport, ReportContractError } from '../../../lib/inspection/contract';
+import { readdirSync } from 'node:fs';
 import { InspectionError } from '../../../lib/inspection/lines';
 import { mulberry32 } from '../../support/prng';
 
@@ -55,7 +58,7 @@ describe('createInspector (push API)', () => {
     }
     expect(inspector.bytes).toBe(text.length);
     const report = inspector.end({ bytesIn: gz.length, gzip: true });
-    expect(report).toEqual(expected);
+    expect(report).toEqual(toJsonReport(expected));
   });
 
   it('refuses binary input on the first push and an empty input at end, with the engine error type', () => {
@@ -67,5 +70,25 @@ describe('createInspector (push API)', () => {
     c.push(new TextEncoder().encode('G1 X1 E1\n'));
     c.end();
     expect(() => c.end()).toThrow(/has ended/);
+  });
+});
+
+describe('the report contract (InspectionReportSchema)', () => {
+  const files = readdirSync(FIXTURES).filter((f) => f.endsWith('.gcode.gz'));
+
+  it.each(files)('%s: the report with rules and claims matches the schema exactly (no unknown keys)', async (f) => {
+    const r = await inspectFile(join(FIXTURES, f), {
+      rules: [{ metric: 'walls', comparator: 'gte', value: 2, severity: 'blocking' }],
+      claims: { claimedTimeMs: 600_000 },
+    });
+    const json = JSON.parse(JSON.stringify(toJsonReport(r)));
+    const parsed = InspectionReportSchema.strict().safeParse(json);
+    expect(parsed.error?.issues ?? []).toEqual([]);
+    expect(parseInspectionReport(json)).toEqual(json);
+  });
+
+  it('refuses a report of another shape with a sentence naming the field', () => {
+    expect(() => parseInspectionReport({ time: { estimatedS: 1 } })).toThrow(ReportContractError);
+    expect(() => parseInspectionReport({ time: { estimatedS: 1 } })).toThrow(/does not match the report contract \(file:/);
   });
 });

@@ -41,13 +41,16 @@ describe('inspection pool', () => {
   });
 
   it('returns the report, and the settings reach the worker (filament diameter)', async () => {
-    const r175 = (await inspectInPool(FIXTURE, { name: 'beacon.gcode.gz' }, base)) as { layers: { count: number }; filament: { volume_mm3: number }; file: { name: string } };
+    const stored = await inspectInPool(FIXTURE, { name: 'beacon.gcode.gz' }, base);
+    const r175 = stored.report;
+    // The judges' preview comes from the same pass, checked against its format by the pool.
+    expect(stored.preview).not.toBeNull();
     // 200 layers: the fixture is the Beacon sliced at 0.2 mm (tests/fixtures/README.md, PrusaSlicer's own settings).
     expect(r175.layers.count).toBe(200);
     expect(r175.file.name).toBe('beacon.gcode.gz');
-    const r285 = (await inspectInPool(FIXTURE, { filamentDiameterMm: 2.85 }, base)) as typeof r175;
+    const r285 = (await inspectInPool(FIXTURE, { filamentDiameterMm: 2.85 }, base)).report;
     // Volume scales with the filament's cross-section: (2.85 / 1.75)² (geometry, no source needed beyond πd²/4).
-    expect(r285.filament.volume_mm3 / r175.filament.volume_mm3).toBeCloseTo((2.85 / 1.75) ** 2, 4);
+    expect(r285.filament.volume_mm3! / r175.filament.volume_mm3!).toBeCloseTo((2.85 / 1.75) ** 2, 4);
   });
 
   it('a gzip that inflates past the cap fails with a sentence, not a full disk or heap', async () => {
