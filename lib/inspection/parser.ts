@@ -1335,8 +1335,18 @@ function isLetter(c: number): boolean {
   return l >= 97 && l <= 122;
 }
 
+/**
+ * Node's Buffer decoders where they exist (found as a global, not imported: the engine also runs in
+ * a browser Web Worker, where the loops below do the same). utf8Slice replaces invalid sequences
+ * with U+FFFD, as TextDecoder does.
+ */
+const NodeBuffer = (globalThis as { Buffer?: { prototype: { latin1Slice?: (s: number, e: number) => string; utf8Slice?: (s: number, e: number) => string } } }).Buffer;
+const nodeLatin1 = NodeBuffer?.prototype.latin1Slice;
+const nodeUtf8 = NodeBuffer?.prototype.utf8Slice;
+
 /** Bytes as one char each (command names, number words, Klipper arguments: ASCII in practice). */
 function latin1(buf: Uint8Array, s: number, e: number): string {
+  if (nodeLatin1) return nodeLatin1.call(buf, s, e);
   let out = '';
   for (let i = s; i < e; i++) out += String.fromCharCode(buf[i]);
   return out;
@@ -1344,12 +1354,9 @@ function latin1(buf: Uint8Array, s: number, e: number): string {
 
 const UTF8 = new TextDecoder('utf-8');
 
-/**
- * Comment text. Comments are short and nearly always ASCII, built here char by char; anything
- * with a byte ≥ 0x80 goes through TextDecoder (the same in Node and a browser), which replaces
- * invalid sequences with U+FFFD as Buffer.toString('utf8') did.
- */
+/** Comment text, UTF-8. */
 function utf8(buf: Uint8Array, s: number, e: number): string {
+  if (nodeUtf8) return nodeUtf8.call(buf, s, e);
   let out = '';
   for (let i = s; i < e; i++) {
     const c = buf[i];
