@@ -2,7 +2,7 @@ import next from 'eslint-config-next';
 
 const config = [
   ...next,
-  { ignores: ['.next*/**', 'node_modules/**', 'data/**', 'test-results/**', 'playwright-report/**', 'next-env.d.ts'] },
+  { ignores: ['.next*/**', '.hotlap/**', 'node_modules/**', 'data/**', 'test-results/**', 'playwright-report/**', 'next-env.d.ts'] },
 ];
 
 export default config;

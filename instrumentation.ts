@@ -1,12 +1,12 @@
 /**
  * Start-up work of the server process (Next.js calls register() once per server instance).
- * Only in the Node.js runtime: these need Node's server and the database driver.
+ * Only in the Node.js runtime (these need Node's server and the database driver), never while
+ * building. Each start-up task is one line into lib/.
  */
 export async function register() {
-  if (process.env.NEXT_RUNTIME !== 'nodejs') return;
-  const { refuseForbiddenMethods } = await import('@/lib/security/forbiddenMethods');
-  refuseForbiddenMethods();
-  const { startOutbox } = await import('@/lib/mail');
+  if (process.env.NEXT_RUNTIME !== 'nodejs' || process.env.NEXT_PHASE === 'phase-production-build') return;
+  (await import('@/lib/security/forbiddenMethods')).refuseForbiddenMethods();
   // Mail that a stopped server left pending goes out now; retries keep running in the background.
-  startOutbox();
+  (await import('@/lib/mail')).startOutbox();
+  await (await import('@/lib/jobs/start')).startJobs();
 }

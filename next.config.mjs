@@ -33,7 +33,8 @@ const nextConfig = {
   // Separate build folders let several test runs share one checkout (see DEVELOPERS.md).
   distDir: process.env.NEXT_DIST_DIR || '.next',
   // The ORM and the native SQLite driver load dialect modules dynamically; bundling breaks that.
-  serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs', 'rate-limiter-flexible'],
+  // piscina starts its threads from its own worker.js, found relative to its installed files.
+  serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs', 'rate-limiter-flexible', 'piscina'],
   poweredByHeader: false,
   // Type errors are checked once, by `npm run typecheck` (run by .ci/run), not again in every build.
   typescript: { ignoreBuildErrors: true },

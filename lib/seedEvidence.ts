@@ -14,7 +14,7 @@ import { Entry, Review, Season, StoredFile, User } from '@/models';
 import { getSequelize } from '@/lib/db';
 import { checkGcode, checkPhotos, FileWriter } from '@/lib/entries/files';
 import { reinspect } from '@/lib/entries/inspection';
-import { idle } from '@/lib/jobs';
+import { drainJobs } from '@/lib/jobs/start';
 import { freezeStandings } from '@/lib/standings';
 import type { UploadedFile } from '@/lib/uploads';
 import type { ReasonCode } from '@/lib/reviews/reasons';
@@ -92,7 +92,7 @@ export async function seedEvidence(opts: { log?: (s: string) => void } = {}) {
       await reinspect(entry);
       done++;
     }
-    await idle();
+    await drainJobs();
     const final = await Season.findOne({ where: { slug: 'leaf-fall-dash' } });
     if (final && done) await freezeStandings(final.id);
   } finally {

@@ -1,32 +1,31 @@
 /**
  * Benchmark of the inspection engine (a script that prints figures; nothing here is a test).
  *
- *   npm run bench:inspect [-- --sizes 100,500] [--repeat 5] [--keep]   (these are the defaults, but --keep)
+ *   npm run bench:inspect [-- --sizes 100,500] [--repeat 3] [--keep] [--no-peer-file]
  *
  * Builds plain G-code files of the given sizes (MB) in a temp dir by stacking the real slicer
  * fixtures on top of each other (G28 commented out, a Z lift and a G92 Z shift between copies, so
- * every copy prints higher up like one tall part), then, each in its own child process:
- *   - the full inspection (reader, parser, measurements, time planner, declared and toolpath settings)
- *     with the engine inspections use (native when built, lib/inspection/nativeEngine.ts);
- *   - the same with the TypeScript engine, the reference (first size only);
- *   - the engine without the toolpath-settings analyzer;
- *   - our reader and parser alone with a sink that ignores every move (the like-for-like row for
- *     the peer: parsing only, though ours still resolves units, modes, offsets and arcs);
- *   - the npm package gcode-parser (the most-used general G-code parser on the registry) on the
- *     first file, through its streaming GCodeLineStream with a no-op per line (parsing only).
- * Each child reports its wall time, CPU time (user + system) and peak RSS
- * (process.resourceUsage().maxRSS). On a shared machine the CPU-time figures are the ones to compare.
+ * every copy prints higher up like one tall part), compiles the engine (npm run build:engine), then
+ * times whole processes, each its own child, rounds interleaved:
+ *   - inspect: what `npm run inspect -- FILE --json` runs, `node .hotlap/engine/inspect-cli.cjs`
+ *     (the esbuild bundle: reader, parser, measurements, time planner, declared and toolpath
+ *     settings, the JSON report on stdout), from process start to exit;
+ *   - the npm package gcode-parser's parseFile (the most-used general G-code parser on the
+ *     registry) on the first file, a whole `node` process, results kept as parseFile keeps them;
+ *   - the same package's GCodeLineStream with a no-op per line (nothing kept: the stricter peer);
+ *   - diagnostics in this script's own children (through tsx, timed inside): our reader + parser
+ *     alone, and the engine without the toolpath-settings analyzer.
+ * Each run reports wall time, CPU time (user + system) and peak RSS (process.resourceUsage().maxRSS
+ * at exit, read by a preloaded hook). The npm launcher itself (~0.3 s) is not counted.
  */
 import { spawnSync } from 'node:child_process';
-import { closeSync, createReadStream, fsyncSync, mkdtempSync, openSync, readFileSync, rmSync, statSync, writeSync } from 'node:fs';
+import { closeSync, fsyncSync, mkdtempSync, openSync, readFileSync, rmSync, statSync, writeFileSync, writeSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gunzipSync } from 'node:zlib';
-import { inspectFile, inspectionEngine } from '../lib/inspection/inspect';
+import { inspectFile } from '../lib/inspection/inspect';
 import { readFileLines } from '../lib/inspection/reader';
 import { GcodeParser } from '../lib/inspection/parser';
-import { nativeEngineLoadError } from '../lib/inspection/nativeEngine';
-import { tsRunArgs } from '../lib/tsRun';
 
 const ROOT = join(__dirname, '..');
 const FIXTURES = ['prusa-beacon-020', 'cura-beacon-020', 'slic3r-beacon-020', 'prusa-beacon-nozzle06-030'].map((n) =>
@@ -42,38 +41,24 @@ interface ChildResult {
   detail: string;
 }
 
+/** The in-process diagnostic rows (run through tsx; timed from inside, startup not counted). */
 async function child(mode: string, file: string): Promise<void> {
   const t0 = process.hrtime.bigint();
   const c0 = process.cpuUsage();
   let detail = '';
-  if (mode === 'peer') {
-    const { GCodeLineStream } = require('gcode-parser') as { GCodeLineStream: new (o?: object) => NodeJS.ReadWriteStream };
-    let lines = 0;
-    await new Promise<void>((resolve, reject) => {
-      createReadStream(file, { encoding: 'utf8' })
-        .on('error', reject)
-        .pipe(new GCodeLineStream())
-        .on('data', () => {
-          lines++;
-        })
-        .on('end', resolve)
-        .on('error', reject);
-    });
-    detail = `${lines} lines`;
-  } else if (mode === 'parse') {
+  if (mode === 'parse') {
     const parser = new GcodeParser({ segment() {} });
     const st = await readFileLines(file, parser);
     parser.end();
     detail = `${st.lines} lines, ${parser.stats.moves} moves`;
   } else {
-    const r = await inspectFile(file, { skipToolpathSettings: mode === 'engine', engine: mode === 'inspect-ts' ? 'typescript' : 'auto' });
-    detail = `${r.layers.count} layers, ${(r.filament.lengthMm / 1000).toFixed(1)} m filament, est. ${(r.time.estimatedS / 3600).toFixed(1)} h, walls measured ${r.settings.walls.measured}`;
+    const r = await inspectFile(file, { skipToolpathSettings: true });
+    detail = `${r.layers.count} layers`;
   }
-  const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
   const cpu = process.cpuUsage(c0);
   const out: ChildResult = {
     bytes: statSync(file).size,
-    seconds,
+    seconds: Number(process.hrtime.bigint() - t0) / 1e9,
     cpuSeconds: (cpu.user + cpu.system) / 1e6,
     maxRssMb: process.resourceUsage().maxRSS / 1024,
     detail,
@@ -82,11 +67,11 @@ async function child(mode: string, file: string): Promise<void> {
 }
 
 /**
- * Rounds (--repeat N, default 5): every mode runs once per round, so all rows see the same machine
+ * Rounds (--repeat N, default 3): every mode runs once per round, so all rows see the same machine
  * side by side. Each row reports its median run by wall time (the throughput is wall time); a single
  * run is at the mercy of this shared machine's slow spells, which hit the short runs hardest.
  */
-let repeat = 5;
+let repeat = 3;
 
 /** The run with the median wall time (the slower middle one for an even count), with the highest peak RSS of all runs (memory is not a best case). */
 function medianRun(runs: ChildResult[]): ChildResult {
@@ -94,13 +79,56 @@ function medianRun(runs: ChildResult[]): ChildResult {
   return { ...sorted[Math.floor(sorted.length / 2)], maxRssMb: Math.max(...runs.map((r) => r.maxRssMb)) };
 }
 
-function runChildOnce(mode: string, file: string): ChildResult {
-  const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), __filename, '--child', mode, file], {
-    encoding: 'utf8',
-    maxBuffer: 1 << 20,
-  });
-  if (r.status !== 0) throw new Error(`child ${mode} failed: ${r.stderr}`);
-  return JSON.parse(r.stdout.trim().split('\n').pop() as string) as ChildResult;
+/** Preloaded into whole-process runs: writes the process's peak RSS and CPU time when it exits. */
+const USAGE_HOOK = `process.on('exit', () => {
+  const u = process.resourceUsage();
+  require('fs').writeFileSync(process.env.HOTLAP_BENCH_USAGE, JSON.stringify({ maxRssMb: u.maxRSS / 1024, cpuSeconds: (u.userCPUTime + u.systemCPUTime) / 1e6 }));
+});
+`;
+
+/** The engine's CLI bundle and node flags, as `npm run inspect` runs them (package.json). */
+function inspectCommand(): string[] {
+  const script = (JSON.parse(readFileSync(join(ROOT, 'package.json'), 'utf8')) as { scripts: Record<string, string> }).scripts.inspect;
+  const words = script.split(/\s+/);
+  if (words[0] !== 'node') throw new Error(`npm run inspect no longer starts with node: ${script}`);
+  return words.slice(1).map((w) => (w.startsWith('.') ? join(ROOT, w) : w));
+}
+
+const PEER_FILE = `require('gcode-parser').parseFile(process.argv[1], (err, results) => { if (err) throw err; process.stdout.write(results.length + ' lines'); });`;
+const PEER_STREAM = `const { GCodeLineStream } = require('gcode-parser'); let n = 0;
+require('fs').createReadStream(process.argv[1], { encoding: 'utf8' }).pipe(new GCodeLineStream()).on('data', () => n++).on('end', () => process.stdout.write(n + ' lines'));`;
+
+/** One whole process: wall time from spawn to exit, peak RSS and CPU from the exit hook. */
+function runProcess(dir: string, mode: string, file: string): ChildResult {
+  const hook = join(dir, 'usage-hook.cjs');
+  if (!existsSync(hook)) writeFileSync(hook, USAGE_HOOK);
+  const usage = join(dir, `usage-${process.pid}.json`);
+  const args =
+    mode === 'inspect'
+      ? ['--require', hook, ...inspectCommand(), file, '--json']
+      : mode === 'peer-file'
+        ? ['--max-old-space-size=16384', '--require', hook, '-e', PEER_FILE, file]
+        : ['--require', hook, '-e', PEER_STREAM, file];
+  const t0 = process.hrtime.bigint();
+  const r = spawnSync(process.execPath, args, { cwd: ROOT, encoding: 'utf8', maxBuffer: 64 << 20, env: { ...process.env, HOTLAP_BENCH_USAGE: usage } });
+  const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
+  if (r.status !== 0) throw new Error(`${mode} failed (exit ${r.status}): ${r.stderr.slice(0, 500)}`);
+  const u = JSON.parse(readFileSync(usage, 'utf8')) as { maxRssMb: number; cpuSeconds: number };
+  let detail = r.stdout.slice(0, 60);
+  if (mode === 'inspect') {
+    const rep = JSON.parse(r.stdout) as { layers: { count: number }; filament: { length_mm: number }; time: { estimated_s: number }; settings: { walls: { measured: number | null } } };
+    detail = `${rep.layers.count} layers, ${(rep.filament.length_mm / 1000).toFixed(1)} m filament, est. ${(rep.time.estimated_s / 3600).toFixed(1)} h, walls ${rep.settings.walls.measured}`;
+  }
+  return { bytes: statSync(file).size, seconds, cpuSeconds: u.cpuSeconds, maxRssMb: u.maxRssMb, detail };
+}
+
+function runOnce(dir: string, mode: string, file: string): ChildResult {
+  if (mode === 'parse' || mode === 'engine') {
+    const r = spawnSync(process.execPath, ['--require', join(ROOT, 'node_modules/tsx/dist/cjs/index.cjs'), __filename, '--child', mode, file], { encoding: 'utf8', maxBuffer: 1 << 20 });
+    if (r.status !== 0) throw new Error(`child ${mode} failed: ${r.stderr}`);
+    return JSON.parse(r.stdout.trim().split('\n').pop() as string) as ChildResult;
+  }
+  return runProcess(dir, mode, file);
 }
 
 /** Writes a ≥ sizeMb file of stacked fixture copies; returns its path. */
@@ -128,22 +156,17 @@ function build(dir: string, sizeMb: number): string {
 }
 
 const mb = (b: number) => b / 1e6;
-/** The row labels, for the engine this machine runs (asked in the parent only: a child loads what its mode needs). */
-function rowLabels(engine: string): Record<string, string> {
-  return {
-    inspect: `full inspection (${engine} engine)`,
-    'inspect-ts': 'full inspection (typescript engine)',
-    engine: `${engine} engine without toolpath settings`,
-    parse: 'our reader + parser only (moves ignored)',
-    peer: 'gcode-parser (GCodeLineStream, no-op per line)',
-  };
-}
+const ROW: Record<string, string> = {
+  inspect: 'npm run inspect (whole process, bundled CLI)',
+  'peer-file': 'gcode-parser parseFile (whole process)',
+  'peer-stream': 'gcode-parser GCodeLineStream, no-op (whole process)',
+  engine: 'engine without toolpath settings (in process)',
+  parse: 'our reader + parser only (in process)',
+};
 
 async function main(): Promise<void> {
   const args = process.argv.slice(2);
   if (args[0] === '--child') return child(args[1], args[2]);
-  const ENGINE = inspectionEngine();
-  const ROW = rowLabels(ENGINE);
   const si = args.indexOf('--sizes');
   const sizes = (si >= 0 ? args[si + 1] : '100,500').split(',').map(Number);
   if (sizes.some((s) => !(s > 0))) throw new Error('--sizes takes sizes in MB, e.g. --sizes 100,500');
@@ -151,73 +174,51 @@ async function main(): Promise<void> {
   const ri = args.indexOf('--repeat');
   if (ri >= 0) repeat = Number(args[ri + 1]);
   if (!(Number.isInteger(repeat) && repeat >= 1)) throw new Error('--repeat takes a whole number of runs, e.g. --repeat 3');
+  const b = spawnSync(process.execPath, [join(ROOT, 'scripts/build-engine.mjs'), '--quiet'], { encoding: 'utf8' });
+  if (b.status !== 0) throw new Error(`npm run build:engine failed: ${b.stderr}`);
   const dir = mkdtempSync(join(tmpdir(), 'hotlap-bench-'));
-  const load = readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
-  console.log(`Node ${process.version}, temp dir ${dir}, load average ${load} (wall-clock MB/s suffer on a busy machine)`);
-  console.log(`Inspection engine: ${ENGINE}${ENGINE === 'typescript' ? ` (native engine not available: ${nativeEngineLoadError() ?? 'HOTLAP_ENGINE=ts'})` : ''}`);
+  const load = () => readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
+  console.log(`Node ${process.version}, temp dir ${dir}, load average ${load()} at start (2 cores; wall-clock MB/s suffer on a busy machine)`);
+  console.log(`npm run inspect runs: node ${inspectCommand().map((w) => w.replace(ROOT + '/', '')).join(' ')}`);
   if (repeat > 1) console.log(`${repeat} rounds of all modes, interleaved; each row is its median run by wall time, peak RSS the highest of its runs`);
   try {
-    const rows: { what: string; size: number; r: ChildResult }[] = [];
+    const rows: { mode: string; size: number; r: ChildResult }[] = [];
     for (const [i, size] of sizes.entries()) {
       const file = build(dir, size);
       console.log(`built ${file} (${mb(statSync(file).size).toFixed(1)} MB)`);
-      // This machine's speed drifts by ±20 % between minutes (shared host), so the modes are
-      // interleaved round by round: the ratio to the peer compares runs made side by side.
-      const modes = i === 0 ? ['inspect', ...(ENGINE === 'native' ? ['inspect-ts'] : []), 'engine', 'parse', 'peer'] : ['inspect', 'engine'];
+      const modes = i === 0 ? ['inspect', ...(args.includes('--no-peer-file') ? [] : ['peer-file']), 'peer-stream', 'engine', 'parse'] : ['inspect'];
       const runs = new Map<string, ChildResult[]>(modes.map((m) => [m, []]));
       for (let round = 0; round < repeat; round++) {
-        for (const mode of modes) runs.get(mode)!.push(runChildOnce(mode, file));
+        for (const mode of modes) runs.get(mode)!.push(runOnce(dir, mode, file));
       }
       for (const mode of modes) {
         const r = medianRun(runs.get(mode)!);
-        rows.push({ what: ROW[mode], size, r });
+        rows.push({ mode, size, r });
         console.log(`  ${ROW[mode]}: ${(mb(r.bytes) / r.seconds).toFixed(1)} MB/s, ${r.seconds.toFixed(2)} s (${r.cpuSeconds.toFixed(2)} s CPU), peak RSS ${r.maxRssMb.toFixed(0)} MB (${r.detail})`);
       }
       if (!keep) rmSync(file);
     }
-    console.log('\nSummary');
+    console.log(`\nSummary (load average ${load()} at the end)`);
     console.log('what'.padEnd(52), 'size MB'.padStart(8), 'MB/s'.padStart(8), 'MB/CPU-s'.padStart(9), 'seconds'.padStart(9), 'peak RSS MB'.padStart(12));
-    for (const { what, size, r } of rows) {
-      console.log(
-        what.padEnd(52),
-        String(size).padStart(8),
-        (mb(r.bytes) / r.seconds).toFixed(1).padStart(8),
-        (mb(r.bytes) / r.cpuSeconds).toFixed(1).padStart(9),
-        r.seconds.toFixed(2).padStart(9),
-        r.maxRssMb.toFixed(0).padStart(12),
-      );
+    for (const { mode, size, r } of rows) {
+      console.log(ROW[mode].padEnd(52), String(size).padStart(8), (mb(r.bytes) / r.seconds).toFixed(1).padStart(8), (mb(r.bytes) / r.cpuSeconds).toFixed(1).padStart(9), r.seconds.toFixed(2).padStart(9), r.maxRssMb.toFixed(0).padStart(12));
     }
-    const first = sizes[0];
-    const peer = rows.find((x) => x.what === ROW.peer)!.r;
     const speed = (r: ChildResult) => mb(r.bytes) / r.seconds;
-    console.log(
-      '\nWhat each row does: the full inspection reads, parses, measures filament, flow, layers and size, plans the print time' +
-        ' with acceleration and cornering, reads the declared settings and measures settings from the toolpaths; the peer' +
-        ' turns each line into an object of its words and numbers (no units, modes, positions, arcs, filament or time), so the like-for-like comparison' +
-        ' is the "reader + parser only" row.',
-    );
-    for (const what of [ROW.inspect, ROW['inspect-ts'], ROW.engine, ROW.parse]) {
-      const ours = rows.find((x) => x.what === what && x.size === first)?.r;
-      if (!ours) continue;
-      const cpuRatio = peer.cpuSeconds / ours.cpuSeconds;
-      console.log(`${what} vs gcode-parser on ${first} MB: ${(speed(ours) / speed(peer)).toFixed(1)}× the peer's throughput (${cpuRatio.toFixed(1)}× by CPU time)`);
+    const first = sizes[0];
+    const at = (mode: string, size = first) => rows.find((x) => x.mode === mode && x.size === size)?.r;
+    const ours = at('inspect')!;
+    console.log('');
+    for (const peer of ['peer-file', 'peer-stream']) {
+      const p = at(peer);
+      if (p) console.log(`npm run inspect vs ${ROW[peer]} on ${first} MB: ${(speed(ours) / speed(p)).toFixed(1)}× its throughput (${(p.cpuSeconds / ours.cpuSeconds).toFixed(1)}× by CPU time)`);
     }
-    if (sizes.length > 1) {
-      for (const what of [ROW.inspect, ROW.engine]) {
-        const a = rows.find((x) => x.what === what && x.size === sizes[0])!.r;
-        const b = rows.find((x) => x.what === what && x.size === sizes[sizes.length - 1])!.r;
-        console.log(`${what}: peak RSS ${a.maxRssMb.toFixed(0)} MB at ${sizes[0]} MB → ${b.maxRssMb.toFixed(0)} MB at ${sizes[sizes.length - 1]} MB`);
-      }
-    }
-    console.log('Targets: full inspection ≥ 60 MB/s and ≥ 10× the peer; peak RSS < 200 MB and flat from 100 MB to 500 MB.');
-    // The verdict of this run against the targets (flat: within 10 % of the smallest size's peak).
-    const full = rows.filter((x) => x.what === ROW.inspect);
-    const yes = (ok: boolean) => (ok ? 'met' : 'NOT met');
-    const rates = full.map((x) => `${speed(x.r).toFixed(1)} MB/s at ${x.size} MB`).join(', ');
-    const ratio = speed(full[0].r) / speed(peer);
+    const full = rows.filter((x) => x.mode === 'inspect');
     const rss = full.map((x) => x.r.maxRssMb);
-    console.log(`This run: ≥ 60 MB/s ${yes(full.every((x) => speed(x.r) >= 60))} (${rates}); ≥ 10× the peer ${yes(ratio >= 10)} (${ratio.toFixed(1)}×);`);
-    console.log(`  peak RSS < 200 MB ${yes(rss.every((r) => r < 200))} and flat ${full.length > 1 ? yes(Math.max(...rss) <= rss[0] * 1.1) : '(needs two sizes)'} (${rss.map((r) => r.toFixed(0)).join(' → ')} MB).`);
+    const yes = (ok: boolean) => (ok ? 'met' : 'NOT met');
+    const pf = at('peer-file');
+    console.log('Targets: ≥ 10× parseFile\'s throughput; peak RSS ≤ 150 MB and flat from 100 MB to 500 MB.');
+    if (pf) console.log(`This run: ≥ 10× parseFile ${yes(speed(ours) / speed(pf) >= 10)} (${(speed(ours) / speed(pf)).toFixed(1)}×);`);
+    console.log(`  peak RSS ≤ 150 MB ${yes(rss.every((r) => r <= 150))} and flat ${full.length > 1 ? yes(Math.max(...rss) <= rss[0] * 1.1) : '(needs two sizes)'} (${rss.map((r) => r.toFixed(0)).join(' → ')} MB).`);
   } finally {
     if (!keep) rmSync(dir, { recursive: true, force: true });
   }

@@ -14,8 +14,8 @@ if [ ! -x "${CHROMIUM_PATH:-/usr/bin/chromium}" ]; then
 fi
 
 [ -d node_modules ] || npm ci
-# A checkout that predates the native engine, or whose C++ changed since the last install.
-[ -f build/Release/hotlap_inspection.node ] && [ -z "$(find lib/inspection/native binding.gyp -newer build/Release/hotlap_inspection.node)" ] || npm run build:native
+# The compiled inspection engine (CLI, job worker, browser bundle): scripts/build-engine.mjs.
+npm run build:engine
 npx next build
 npx vitest run
 npx playwright test

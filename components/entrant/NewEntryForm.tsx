@@ -10,6 +10,7 @@ import Link from 'next/link';
 import { MATERIAL_FAMILIES, MATERIALS, materialCaution } from '@/lib/inspection/materials';
 import type { entryFormOptions } from '@/lib/entries';
 import { uploadWithProgress } from './upload';
+import { GcodeCheck } from '@/components/GcodeCheck';
 import { UploadBar } from './UploadBar';
 
 type Options = Awaited<ReturnType<typeof entryFormOptions>>;
@@ -203,6 +204,8 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
             <label htmlFor="e-gcode" className="label">G-code (.gcode or .gcode.gz, up to 200 MB)</label>
             <input id="e-gcode" type="file" accept={GCODE_ACCEPT} onChange={(e) => setGcode(e.target.files?.[0] ?? null)} {...aria('gcode')} />
             <FieldError id="e-gcode" error={errors.gcode} />
+            {/* The same check in this browser: the verdict shows before the upload finishes. */}
+            <GcodeCheck seasonSlug={s.slug} classId={classId} file={gcode} />
           </div>
           <div>
             <label htmlFor="e-photos" className="label">Photos ({s.photosRequired} required: JPEG, PNG, WebP or HEIC)</label>

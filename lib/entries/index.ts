@@ -20,8 +20,7 @@ import { MATERIALS, type MaterialFamily } from '@/lib/inspection/materials';
 import { EntryDetailsSchema, parseClaimedTime, type EntryDetails } from './schema';
 import { classEligibility } from './eligibility';
 import { checkGcode, checkPhotos, ENTRY_UPLOAD_SPEC, FileWriter, type CheckedGcode, type CheckedPhoto } from './files';
-import { ENGINE_VERSION } from '@/lib/jobs';
-import { currentGcodeOf, inspectionJson, latestInspection, queueInspection, reinspect, resumeInspection } from './inspection';
+import { checkReinspectRate, currentGcode, currentGcodeOf, inspectionJson, latestInspection, queueInspection, queueInspectionRow, reinspect } from './inspection';
 
 export { ENTRY_UPLOAD_SPEC } from './files';
 
@@ -120,10 +119,7 @@ async function writeFiles(entry: Entry, userId: number, files: CheckedFiles, tra
     await markReplaced(entry.id, ['gcode'], transaction);
     const g = await writer.gcode(files.gcode);
     await entry.update({ gcodeSha256: g.sha256 }, { transaction });
-    const row = await Inspection.create(
-      { entryId: entry.id, storedFileId: g.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
-      { transaction },
-    );
+    const { row } = await queueInspectionRow(entry.id, g.id, transaction);
     inspectionId = row.id;
   }
   if (files.photos.length) {
@@ -159,7 +155,7 @@ async function withUpload<T extends { entryId: number; inspectionId: number | nu
       await (writer as FileWriter | null)?.undo();
       throw err;
     }
-    if (result.inspectionId) queueInspection(result.inspectionId);
+    if (result.inspectionId) queueInspection();
     return { id: result.entryId, inspectionId: result.inspectionId };
   } finally {
     await cleanupPhotos(files);
@@ -342,9 +338,16 @@ export async function withdrawEntry(user: User, id: number) {
 export async function reinspectEntry(user: User, id: number) {
   const entry = await ownEntry(user.id, id);
   if (!EDITABLE_STATES.includes(entry.state)) throw conflict(`Only a draft or a returned entry can be inspected again; this one is ${entry.state}.`);
-  const row = await reinspect(entry);
-  if (!row) throw new HttpError(400, 'Upload the G-code first.');
-  await audit('entry.reinspected', { type: 'entry', id: entry.id }, { actorId: user.id });
+  const gcode = await currentGcode(entry.id);
+  if (!gcode) throw new HttpError(400, 'Upload the G-code first.');
+  // The rate check, the queued row and the audit event that the next check counts: one transaction.
+  const row = await getSequelize().transaction(async (transaction) => {
+    await checkReinspectRate(user.id, transaction);
+    const { row } = await queueInspectionRow(entry.id, gcode.id, transaction);
+    await audit('entry.reinspected', { type: 'entry', id: entry.id }, { actorId: user.id, transaction });
+    return row;
+  });
+  queueInspection();
   return { id: entry.id, inspectionId: row.id };
 }
 
@@ -378,7 +381,6 @@ export async function entryView(user: User, id: number) {
     TestPiece.findOne({ where: { seasonId: entry.seasonId } }),
   ]);
   const current = await latestInspection(entry.id);
-  await resumeInspection(current);
   const live = files.filter((f) => !f.meta?.replacedAt);
   const byId = new Map(files.map((f) => [f.id, f]));
   const windowProblem = entryWindowProblem(season!);
@@ -427,7 +429,6 @@ export type EntryView = Awaited<ReturnType<typeof entryView>>;
 export async function entryInspection(user: User, id: number) {
   const entry = await ownEntry(user.id, id);
   const row = await latestInspection(entry.id);
-  await resumeInspection(row);
   return { inspection: row ? inspectionJson(row) : null, blockers: EDITABLE_STATES.includes(entry.state) ? await submitBlockers(entry) : [] };
 }
 

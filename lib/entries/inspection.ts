@@ -3,24 +3,26 @@
  * with its headline figures, and read it back for the entrant, the judges and the public pages.
  *
  * Rows are never overwritten by a new upload: each G-code gets its own inspection row, the newest
- * id is the current one. A row left `queued` or `running` by a server that stopped (crash, deploy)
- * is picked up again the next time anyone looks at the entry (resumeInspection).
+ * id is the current one. The row is also the job record (lib/jobs): at most one queued row per
+ * entry (a unique index), and a row left `queued` or `running` by a server that stopped is resumed
+ * when the next server starts (instrumentation.ts), never by a page read.
  */
 import { Op, type Transaction } from 'sequelize';
-import { Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
-import { enqueue, isQueued, inspectInChild, InspectionRunError, ENGINE_VERSION } from '@/lib/jobs';
+import { AuditEvent, Entry, ExtrusionTest, Inspection, StoredFile, TestPiece } from '@/models';
+import { inspectInPool, InspectionRunError, ENGINE_VERSION, wakeJobs, jobSettings, type JobClaim } from '@/lib/jobs';
+import { sqlInspectionQueue } from '@/lib/jobs/sqlQueue';
+import { getSequelize } from '@/lib/db';
+import { tooMany } from '@/lib/errors';
 import { localPath } from '@/lib/storage';
-import type { InspectOptions } from '@/lib/inspection';
-import type { Flag } from '@/lib/inspection/types';
-import type { RuleResult } from '@/lib/inspection/rules';
+import type { InspectOptions, StoredInspectionJson } from '@/lib/inspection';
 import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
-import { flowSeries } from '@/lib/reviews/report';
 import { rulesForEntry } from './rules';
+import { reportColumns } from './inspectionView';
 import { duplicateClaim, findDuplicate } from './duplicates';
 import { afterInspectionStored } from '@/lib/reviews/reinspection';
 
-const jobKey = (inspectionId: number) => `inspection:${inspectionId}`;
+export { countFindings, inspectionJson, type InspectionJson } from './inspectionView';
 
 /** The current G-code among an entry's files (any kinds, any order): the newest not replaced. */
 export function currentGcodeOf(files: readonly StoredFile[]): StoredFile | null {
@@ -35,7 +37,8 @@ export async function currentGcode(entryId: number, transaction?: Transaction): 
 }
 
 export async function latestInspection(entryId: number, transaction?: Transaction): Promise<Inspection | null> {
-  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']], transaction });
+  // The preview (hundreds of KB) is read only by the review desk's preview route.
+  return Inspection.findOne({ where: { entryId }, order: [['id', 'DESC']], attributes: { exclude: ['preview'] }, transaction });
 }
 
 /** Engine options from the entry, its season and its machine. */
@@ -68,148 +71,96 @@ export async function inspectionOptions(entry: Entry, gcodeSha256: string): Prom
   };
 }
 
-/** Counts for the headline columns: blocking = failing blocking rules + blocking flags; advisory = the rest judges should see. */
-export function countFindings(rules: RuleResult[], flags: Flag[]) {
-  const blocking = rules.filter((r) => r.status === 'fail' && r.rule.severity === 'blocking').length + flags.filter((f) => f.severity === 'blocking').length;
-  const advisory =
-    rules.filter((r) => (r.status === 'fail' && r.rule.severity === 'advisory') || r.status === 'unknown').length + flags.filter((f) => f.severity === 'advisory').length;
-  return { blocking, advisory };
-}
-
 /**
- * Writes an inspection's outcome, trying again a few times: a report that was computed must not be
- * lost to a transient database error, which would leave the row `running` until someone opens the
- * entry (resumeInspection).
+ * Runs one claimed inspection job (lib/jobs runner): the engine in the worker pool, then the
+ * report stored — only while the job is still ours (status running, same attempt), so a runner
+ * whose lease was taken over writes nothing.
  */
-async function storeOutcome(row: Inspection, values: Parameters<Inspection['update']>[0]) {
-  for (let attempt = 1; ; attempt++) {
-    try {
-      await row.update(values);
-      return;
-    } catch (err) {
-      if (attempt >= 4) throw err;
-      await new Promise((r) => setTimeout(r, 250 * 2 ** attempt));
-    }
-  }
-}
-
-async function runInspection(inspectionId: number) {
-  const row = await Inspection.findByPk(inspectionId);
-  if (!row || row.status === 'done' || row.status === 'failed') return;
+export async function runInspectionJob(claim: JobClaim) {
+  const settings = jobSettings();
+  const queue = sqlInspectionQueue(settings);
+  const row = await Inspection.findByPk(claim.id);
+  if (!row || row.status !== 'running' || row.attempts !== claim.attempt) return;
   const [entry, file] = await Promise.all([Entry.findByPk(row.entryId), row.storedFileId ? StoredFile.findByPk(row.storedFileId) : null]);
   if (!entry || !file) {
-    await row.update({ status: 'failed', error: 'The G-code file of this inspection is gone; upload it again.', finishedAt: new Date() });
+    await queue.fail(claim, 'The G-code file of this inspection is gone; upload it again.');
     return;
   }
-  await row.update({ status: 'running', error: null });
   try {
     const options = await inspectionOptions(entry, file.sha256);
-    const report = await inspectInChild(localPath(file.storageKey), { ...options, name: file.originalName });
-    const ruleResults = (report.rules ?? []) as RuleResult[];
-    const flags = [...((report.plausibility ?? []) as Flag[]), ...((report.warnings ?? []) as Flag[])];
-    const { blocking, advisory } = countFindings(ruleResults, flags);
-    const flow = report.flow as { peak_mm3s: number | null; p95_mm3s: number | null };
-    const time = report.time as { estimated_s: number | null };
-    const layers = report.layers as { height_mm: number | null };
-    await storeOutcome(row, {
+    const stored = await inspectInPool(localPath(file.storageKey), { ...options, name: file.originalName }, settings);
+    await runInspection(row, claim, stored);
+  } catch (err) {
+    if (!(err instanceof InspectionRunError)) throw err;
+    if (err.kind === 'crashed') await queue.release(claim, err.message, new Date());
+    else await queue.fail(claim, err.message);
+  }
+}
+
+/** Stores a finished report (checked against the contract by the pool) with its headline figures and the preview, if the job is still this claim's. */
+async function runInspection(row: Inspection, claim: JobClaim, { report, preview }: StoredInspectionJson) {
+  const [n] = await Inspection.update(
+    {
       status: 'done',
       engineVersion: ENGINE_VERSION,
       report,
-      ruleResults,
-      flags,
-      blockingFailures: blocking,
-      advisoryFlags: advisory,
-      peakFlowMm3s: flow?.peak_mm3s ?? null,
-      p95FlowMm3s: flow?.p95_mm3s ?? null,
-      estimatedTimeS: time?.estimated_s ?? null,
-      layerHeightMm: layers?.height_mm ?? null,
+      preview,
+      ...reportColumns(report),
       error: null,
+      leaseUntil: null,
       finishedAt: new Date(),
-    });
-  } catch (err) {
-    const message = err instanceof InspectionRunError ? err.message : 'The inspection failed on our side; try "Inspect again".';
-    if (!(err instanceof InspectionRunError)) console.error('inspection', inspectionId, err);
-    await storeOutcome(row, { status: 'failed', error: message, finishedAt: new Date() });
-  }
-  await afterInspectionStored(row.id);
+    },
+    { where: { id: row.id, status: 'running', attempts: claim.attempt } },
+  );
+  // What a re-inspection changes for the entry (a verified entry failing a tightened rule, …).
+  if (n === 1) await afterInspectionStored(row.id);
 }
 
-export function queueInspection(inspectionId: number) {
-  enqueue(jobKey(inspectionId), () => runInspection(inspectionId));
+/** Hands queued rows to the job runner (call after the transaction that created them committed). */
+export function queueInspection() {
+  wakeJobs();
 }
 
 /**
- * Creates a fresh inspection row for the entry's current G-code and queues it — inside
- * `transaction` when given, queued once it commits.
+ * Queues an inspection of `storedFileId` for the entry, inside the caller's transaction: an older
+ * row still queued for the entry (an earlier file, not started) fails with a sentence first, so the
+ * entry keeps one queued inspection (the unique index inspections_one_queued_per_entry holds it).
+ * A row already queued for the same file is returned as it is.
  */
+export async function queueInspectionRow(entryId: number, storedFileId: number, transaction?: Transaction): Promise<{ row: Inspection; created: boolean }> {
+  const queued = await Inspection.findOne({ where: { entryId, status: 'queued' }, transaction });
+  if (queued && queued.storedFileId === storedFileId) return { row: queued, created: false };
+  if (queued) await queued.update({ status: 'failed', error: 'A newer G-code was uploaded before this inspection started.', finishedAt: new Date() }, { transaction });
+  const row = await Inspection.create(
+    { entryId, storedFileId, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
+    { transaction },
+  );
+  return { row, created: true };
+}
+
+/** Throws 429 with a sentence when the entrant asked for too many re-inspections lately (read inside the caller's transaction). */
+export async function checkReinspectRate(entrantId: number, transaction?: Transaction, now = new Date()) {
+  const { reinspectLimit, reinspectWindowMs } = jobSettings();
+  const since = new Date(now.getTime() - reinspectWindowMs);
+  const recent = await AuditEvent.findAll({ where: { actorId: entrantId, action: 'entry.reinspected', createdAt: { [Op.gt]: since } }, attributes: ['createdAt'], order: [['createdAt', 'ASC']], transaction });
+  if (recent.length < reinspectLimit) return;
+  const waitMin = Math.max(1, Math.ceil((recent[0].createdAt.getTime() + reinspectWindowMs - now.getTime()) / 60_000));
+  throw tooMany(
+    `You asked for ${recent.length} re-inspections in the last ${Math.round(reinspectWindowMs / 60_000)} minutes, the most we run for one entrant; try again in ${waitMin} minute${waitMin === 1 ? '' : 's'}.`,
+  );
+}
+
+/** A fresh inspection of the entry's current G-code, queued (or the one already queued for it). */
 export async function reinspect(entry: Entry, transaction?: Transaction): Promise<Inspection | null> {
   const gcode = await currentGcode(entry.id, transaction);
   if (!gcode) return null;
-  const row = await Inspection.create(
-    { entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
-    { transaction },
-  );
-  if (transaction) transaction.afterCommit(() => queueInspection(row.id));
-  else queueInspection(row.id);
+  if (transaction) {
+    // Inside the caller's transaction; handed to the runner once it commits.
+    const { row } = await queueInspectionRow(entry.id, gcode.id, transaction);
+    transaction.afterCommit(() => queueInspection());
+    return row;
+  }
+  const { row } = await getSequelize().transaction((t) => queueInspectionRow(entry.id, gcode.id, t));
+  queueInspection();
   return row;
 }
-
-/** Picks up an inspection that a stopped server left queued or running. */
-export async function resumeInspection(row: Inspection | null) {
-  if (row && (row.status === 'queued' || row.status === 'running') && !isQueued(jobKey(row.id))) {
-    await row.update({ status: 'queued' });
-    queueInspection(row.id);
-  }
-}
-
-interface ReportShape {
-  flow?: { peak_mm3s: number | null; p95_mm3s: number | null; mean_mm3s: number | null; time_series?: { bucket_s: number; max_mm3s: number[]; mean_mm3s: number[] } };
-  time?: { estimated_s: number | null; slicer_estimate_s: number | null };
-  layers?: { count: number; height_mm: number | null; first_height_mm: number | null };
-  size_mm?: { x: number; y: number; z: number } | null;
-  objects?: number;
-  filament?: { length_mm: number | null; volume_mm3: number | null; mass_g: number | null; material: string };
-  settings?: Record<string, { declared: number | null; measured: number | null; detail?: string }>;
-  slicer?: { dialect: string; generator: string | null };
-  file?: { name: string | null; bytes: number };
-}
-
-/** The stored inspection as the pages show it: rule results, flags, key figures and the flow series. */
-export function inspectionJson(row: Inspection) {
-  const r = (row.report ?? {}) as ReportShape;
-  const setting = (k: string) => r.settings?.[k] ?? null;
-  return {
-    id: row.id,
-    status: row.status,
-    error: row.error,
-    createdAt: row.createdAt.toISOString(),
-    finishedAt: row.finishedAt?.toISOString() ?? null,
-    fileName: r.file?.name ?? null,
-    blockingFailures: row.blockingFailures,
-    advisoryFlags: row.advisoryFlags,
-    ruleResults: row.ruleResults as RuleResult[],
-    flags: row.flags as Flag[],
-    figures: {
-      peakFlowMm3s: row.peakFlowMm3s,
-      p95FlowMm3s: row.p95FlowMm3s,
-      meanFlowMm3s: r.flow?.mean_mm3s ?? null,
-      estimatedTimeS: row.estimatedTimeS,
-      slicerEstimateS: r.time?.slicer_estimate_s ?? null,
-      layerHeightMm: row.layerHeightMm,
-      firstLayerHeightMm: r.layers?.first_height_mm ?? null,
-      layers: r.layers?.count ?? null,
-      walls: setting('walls'),
-      topLayers: setting('top_layers'),
-      bottomLayers: setting('bottom_layers'),
-      infillPercent: setting('infill_percent'),
-      lineWidthMm: setting('line_width_mm'),
-      sizeMm: r.size_mm ?? null,
-      objects: r.objects ?? null,
-      filamentVolumeMm3: r.filament?.volume_mm3 ?? null,
-      filamentMassG: r.filament?.mass_g ?? null,
-      slicer: r.slicer?.generator ?? r.slicer?.dialect ?? null,
-    },
-    flowSeries: r.flow?.time_series ? flowSeries(r) : null,
-  };
-}
-export type InspectionJson = ReturnType<typeof inspectionJson>;

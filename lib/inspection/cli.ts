@@ -5,7 +5,7 @@
  */
 import { readFile } from 'node:fs/promises';
 import { inspectFile } from './inspect';
-import { toJsonReport, type InspectionReport } from './report';
+import { toJsonReport, type EngineReport } from './report';
 import { RulebookSchema, type Rule, type RuleResult } from './rules';
 import { MATERIAL_FAMILIES, isMaterialFamily } from './materials';
 import { runInspectionMain, firstLine, type InspectionMainContext } from './main';
@@ -87,7 +87,7 @@ function duration(s: number | null): string {
   return h > 0 ? `${h} h ${m} min ${sec} s` : m > 0 ? `${m} min ${sec} s` : `${sec} s`;
 }
 
-function textReport(r: InspectionReport, rules: RuleResult[] | undefined): string {
+function textReport(r: EngineReport, rules: RuleResult[] | undefined): string {
   const out: string[] = [];
   const row = (k: string, v: string) => out.push(`  ${k.padEnd(26)} ${v}`);
   out.push(`Inspection of ${r.file.name ?? 'input'}${r.file.gzip ? ' (gzip)' : ''} — ${r.slicer.generator ?? `slicer: ${r.slicer.dialect}`}`);
@@ -153,13 +153,13 @@ async function main(ctx: InspectionMainContext): Promise<number> {
     return 2;
   }
   ctx.subject = args.file;
-  const report: InspectionReport = await inspectFile(args.file, {
+  const report: EngineReport = await inspectFile(args.file, {
     filamentDiameterMm: args.diameterMm,
     material: args.material as (typeof MATERIAL_FAMILIES)[number] | undefined,
     rules,
   });
   if (args.json) process.stdout.write(`${JSON.stringify(toJsonReport(report))}\n`);
-  else process.stdout.write(`${textReport(report, report.rules as RuleResult[] | undefined)}\n`);
+  else process.stdout.write(`${textReport(report, report.rules)}\n`);
   return 0;
 }
 

@@ -1,14 +1,9 @@
 /**
- * The caps, bins and tunables that both inspection engines use: this module is their one
- * definition. The TypeScript engine imports them; the C++ engine includes
- * lib/inspection/native/engine_constants.h, which `npm run gen:native-constants` writes from this
- * module (tests/unit/inspection/engineConstants.test.ts fails when the header is stale).
- *
- * Only numbers (and arrays of numbers) belong here; each becomes a `constexpr` of the C++ type the
- * generator's table gives it (scripts/gen-native-constants.ts).
+ * The engine's caps, bins and tunables: this module is their one definition. Only numbers (and
+ * arrays of numbers) belong here.
  */
 
-// Reader and parser (reader.ts, parser.ts; native/parser.cc).
+// Reader and parser (reader.ts, parser.ts).
 
 /** Longest line kept; the rest of a longer line is dropped with a warning. */
 export const MAX_LINE_BYTES = 64 * 1024;
@@ -31,7 +26,7 @@ export const MAX_ARC_CHORDS = 10000;
 /** Tools tracked (T0 … T15); a higher tool number is ignored with a warning. */
 export const MAX_TOOLS = 16;
 
-// Measurements (measure.ts; native/measure.h).
+// Measurements (measure.ts).
 
 /** Flow histogram: fixed bins of 0.05 mm³/s up to 250 mm³/s plus one overflow bin. */
 export const FLOW_BIN_MM3S = 0.05;
@@ -54,12 +49,12 @@ export const WIDTH_BINS = 1000;
 /** Z keys per mm: Z values closer than 1 / this (mm) are the same layer. */
 export const Z_KEY_PER_MM = 1000;
 
-// Time planner (planner.ts; native/planner.h).
+// Time planner (planner.ts).
 
 /** Moves in the look-ahead window; 128 is in the range firmware uses (Marlin BLOCK_BUFFER_SIZE 16–64, Klipper ~2 s). */
 export const PLANNER_RING = 128;
 
-// Toolpath settings (toolpathSettings.ts, toolpath/*.ts; native/toolpath.cc, layer_grid.h, columns.cc).
+// Toolpath settings (toolpathSettings.ts, toolpath/*.ts).
 
 /** Nozzle sizes sold for FFF printers, for snapping the width-based estimate (common practice, no source). */
 export const STANDARD_NOZZLES_MM = [0.2, 0.25, 0.3, 0.4, 0.5, 0.6, 0.8, 1.0, 1.2] as const;

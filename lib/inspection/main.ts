@@ -1,13 +1,10 @@
 /**
- * The shared tail of the engine's entry points (the inspect CLI and lib/jobs/inspect-worker.ts):
- * how a run ends. Framework-free: node built-ins only.
+ * The tail of the engine's command-line entry point (the inspect CLI): how a run ends. Framework-free: node built-ins only.
  *
  *   exit 0  main wrote its report (or whatever code main returns)
  *   exit 2  the input could not be inspected (InspectionError, or a RangeError for a value out of
  *           range): its first line on stderr, nothing on stdout
  *   exit 1  anything else: "internal error:" and the stack on stderr
- *
- * lib/jobs/index.ts reads these codes (2 = unreadable, other non-zero = crashed).
  */
 import { InspectionError } from './reader';
 

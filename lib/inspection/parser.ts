@@ -14,7 +14,7 @@
  * 9.7–11.8 MB per CPU-second against 125–134 for this reader + parser (npm run bench:inspect).
  */
 import type { FeatureKind, Segment, SegmentSink } from './types';
-import type { LineSink } from './reader';
+import type { LineSink } from './lines';
 import * as C from './engineConstants';
 
 /** Extra callbacks the time planner uses; optional on any sink. */
@@ -403,7 +403,7 @@ export class GcodeParser implements LineSink {
    * Parses one line, [start, end) without its line break. Also the worker of lines(): the scan
    * stops at an LF, whose index it returns (else end).
    */
-  line(buf: Buffer, start: number, end: number): number {
+  line(buf: Uint8Array, start: number, end: number): number {
     this.lineNo++;
     this.stats.lines++;
     this.beginStatement();
@@ -442,7 +442,7 @@ export class GcodeParser implements LineSink {
         if (!isTerminator(nc) && !isLetter(nc)) {
           this.warn(
             'malformed-number',
-            `Line ${this.lineNo}: malformed number '${buf.toString('latin1', i, Math.min(skipWord(buf, j, end), i + 32))}' for ${String.fromCharCode(letter + 65)}; word ignored.`,
+            `Line ${this.lineNo}: malformed number '${latin1(buf, i, Math.min(skipWord(buf, j, end), i + 32))}' for ${String.fromCharCode(letter + 65)}; word ignored.`,
           );
           i = skipWord(buf, j, end);
           continue;
@@ -506,7 +506,7 @@ export class GcodeParser implements LineSink {
    * LF first (Buffer.indexOf cost ~0.1 s per 100 MB in per-line calls). A line longer than
    * MAX_LINE_BYTES is read to that length and reported as LineSplitter would report it.
    */
-  lines(buf: Buffer, start: number, end: number): number {
+  lines(buf: Uint8Array, start: number, end: number): number {
     let s = start;
     let n = 0;
     while (s < end) {
@@ -567,7 +567,7 @@ export class GcodeParser implements LineSink {
    * Parses [+-]digits[.digits][e±dd] by hand from char codes into numVal; returns the index after
    * it, or −1 when no digits (see readExponent for when an 'e' belongs to the number).
    */
-  private readNumber(buf: Buffer, i: number, end: number, spaced: boolean): number {
+  private readNumber(buf: Uint8Array, i: number, end: number, spaced: boolean): number {
     // The common number (sign, up to nine digits, a dot, no exponent) is scanned here; this body
     // is kept small so V8 inlines it into line(). Longer numbers and exponents continue in
     // readLongNumber() and readExponent(), which are called rarely.
@@ -605,7 +605,7 @@ export class GcodeParser implements LineSink {
   }
 
   /** readNumber() past nine digits: goes on in doubles from the same exact value (exact below 2^53, ≈ 15 digits). */
-  private readLongNumber(buf: Buffer, i: number, end: number, spaced: boolean, neg: boolean, dotAt: number, mantInt: number): number {
+  private readLongNumber(buf: Uint8Array, i: number, end: number, spaced: boolean, neg: boolean, dotAt: number, mantInt: number): number {
     let mant = mantInt;
     while (i < end) {
       const d = buf[i] - D0;
@@ -626,7 +626,7 @@ export class GcodeParser implements LineSink {
    * exponent is followed by a separator; otherwise 'E' starts the next word, as in Marlin's
    * parser, which strips 'E' so "X10E5" is X10 E5 (Marlin GCodeParser::value_float).
    */
-  private readExponent(buf: Buffer, i: number, end: number): number {
+  private readExponent(buf: Uint8Array, i: number, end: number): number {
     let k = i + 1;
     let eneg = false;
     if (buf[k] === MINUS || buf[k] === PLUS) {
@@ -647,7 +647,7 @@ export class GcodeParser implements LineSink {
     return i;
   }
 
-  private checksum(buf: Buffer, stmtStart: number, star: number, end: number): number {
+  private checksum(buf: Uint8Array, stmtStart: number, star: number, end: number): number {
     let j = star + 1;
     let want = 0;
     let nd = 0;
@@ -670,7 +670,7 @@ export class GcodeParser implements LineSink {
     return j;
   }
 
-  private handleComment(buf: Buffer, s: number, e: number): void {
+  private handleComment(buf: Uint8Array, s: number, e: number): void {
     // Trim.
     while (s < e && (buf[s] === SPACE || buf[s] === TAB)) s++;
     while (e > s && (buf[e - 1] === SPACE || buf[e - 1] === TAB || buf[e - 1] === CR)) e--;
@@ -691,7 +691,7 @@ export class GcodeParser implements LineSink {
       buf[s + 6] === 69 &&
       buf[s + 7] === 58;
     if (!this.wantsComments && !isType && !isFeature && (this.firstWord || this.labelsSeen)) return;
-    const text = buf.toString('utf8', s, e);
+    const text = utf8(buf, s, e);
     if (isType || isFeature) {
       const label = text.slice(isType ? 5 : 8);
       let f = this.featureCache.get(label);
@@ -709,10 +709,10 @@ export class GcodeParser implements LineSink {
   }
 
   /** Klipper-style extended command: NAME KEY=VALUE … */
-  private textCommand(buf: Buffer, i: number, end: number): number {
+  private textCommand(buf: Uint8Array, i: number, end: number): number {
     let j = i;
     while (j < end && buf[j] !== SPACE && buf[j] !== TAB && buf[j] !== SEMI && buf[j] !== CR && buf[j] !== LF) j++;
-    const name = buf.toString('latin1', i, j).toUpperCase();
+    const name = latin1(buf, i, j).toUpperCase();
     this.firstWord = false;
     this.stats.commands++;
     this.stats.textCommands++;
@@ -720,10 +720,10 @@ export class GcodeParser implements LineSink {
     let k = j;
     while (k < end && buf[k] !== SEMI && buf[k] !== CR && buf[k] !== LF) k++;
     if (name === 'SET_VELOCITY_LIMIT') {
-      const args = buf.toString('latin1', j, k);
+      const args = latin1(buf, j, k);
       this.setVelocityLimit(args);
     } else if (name === 'SET_RETRACTION') {
-      const args = parseKeyValues(buf.toString('latin1', j, k));
+      const args = parseKeyValues(latin1(buf, j, k));
       const len = args.get('RETRACT_LENGTH');
       const spd = args.get('RETRACT_SPEED');
       if (len !== undefined && len >= 0 && len < 100) this.fwRetractMm = len;
@@ -1335,7 +1335,38 @@ function isLetter(c: number): boolean {
   return l >= 97 && l <= 122;
 }
 
-function skipWord(buf: Buffer, i: number, end: number): number {
+/**
+ * Node's Buffer decoders where they exist (found as a global, not imported: the engine also runs in
+ * a browser Web Worker, where the loops below do the same). utf8Slice replaces invalid sequences
+ * with U+FFFD, as TextDecoder does.
+ */
+const NodeBuffer = (globalThis as { Buffer?: { prototype: { latin1Slice?: (s: number, e: number) => string; utf8Slice?: (s: number, e: number) => string } } }).Buffer;
+const nodeLatin1 = NodeBuffer?.prototype.latin1Slice;
+const nodeUtf8 = NodeBuffer?.prototype.utf8Slice;
+
+/** Bytes as one char each (command names, number words, Klipper arguments: ASCII in practice). */
+function latin1(buf: Uint8Array, s: number, e: number): string {
+  if (nodeLatin1) return nodeLatin1.call(buf, s, e);
+  let out = '';
+  for (let i = s; i < e; i++) out += String.fromCharCode(buf[i]);
+  return out;
+}
+
+const UTF8 = new TextDecoder('utf-8');
+
+/** Comment text, UTF-8. */
+function utf8(buf: Uint8Array, s: number, e: number): string {
+  if (nodeUtf8) return nodeUtf8.call(buf, s, e);
+  let out = '';
+  for (let i = s; i < e; i++) {
+    const c = buf[i];
+    if (c >= 0x80) return UTF8.decode(buf.subarray(s, e));
+    out += String.fromCharCode(c);
+  }
+  return out;
+}
+
+function skipWord(buf: Uint8Array, i: number, end: number): number {
   while (i < end && !isTerminator(buf[i])) i++;
   return i;
 }

@@ -12,13 +12,14 @@
  * where x/y are grid units from `originMm` (unit = `unitMm`), the first point absolute and the rest
  * differences from the previous point. `bucket` indexes `flowBucketsMm3s` (lower edges, mm³/s).
  *
- * Framework-free: imports only the engine.
+ * Built by the inspection pass itself: the PreviewCollector is one more sink of the engine's move
+ * stream (InspectOptions.preview), so the preview is stored with the report and no web request
+ * parses G-code. Environment-neutral (no node:* imports).
  */
+import { z } from 'zod';
 import type { Segment, SegmentSink } from './types';
-import { GcodeParser, type ParserOptions } from './parser';
-import { readFileLines, readStreamLines } from './reader';
+import type { ParserOptions } from './parser';
 import { filamentAreaMm2 } from './materials';
-import type { Readable } from 'node:stream';
 
 /**
  * Lower edges of the commanded-flow buckets, mm³/s. Our own scale: fine steps where desktop
@@ -346,27 +347,25 @@ export function decodeLayer(preview: Pick<ToolpathPreview, 'unitMm' | 'originMm'
   return out;
 }
 
-function makeParser(options: PreviewOptions) {
-  const collector = new PreviewCollector(options.filamentDiameterMm ?? 1.75, options.maxPoints);
-  const parser = new GcodeParser(collector, options.parser ?? {});
-  return { collector, parser };
-}
+const nums = z.array(z.number());
 
-/** Builds the preview of a .gcode or .gcode.gz file. Throws InspectionError for unreadable input. */
-export async function buildPreviewFromFile(path: string, options: PreviewOptions = {}): Promise<ToolpathPreview> {
-  if (options.filamentDiameterMm !== undefined && !(options.filamentDiameterMm > 0 && options.filamentDiameterMm < 10)) {
-    throw new RangeError(`Filament diameter ${options.filamentDiameterMm} mm is not plausible (expected e.g. 1.75 or 2.85).`);
-  }
-  const { collector, parser } = makeParser(options);
-  await readFileLines(path, parser);
-  parser.end();
-  return collector.result(options);
-}
+/** The stored preview (inspections.preview), checked where it is read back. */
+export const ToolpathPreviewSchema = z.object({
+  version: z.number().int(),
+  unitMm: z.number(),
+  toleranceMm: z.number(),
+  originMm: z.object({ x: z.number(), y: z.number() }),
+  sizeUnits: z.object({ x: z.number(), y: z.number() }),
+  focusUnits: z.object({ x0: z.number(), y0: z.number(), x1: z.number(), y1: z.number() }),
+  flowBucketsMm3s: nums,
+  bucketLengthMm: nums,
+  layers: z.array(z.object({ zMm: z.number(), paths: nums, extrudedMm: z.number(), peakFlowMm3s: z.number() })),
+  stats: z.object({ segments: z.number(), pointsIn: z.number(), pointsOut: z.number(), polylines: z.number() }),
+  warnings: z.array(z.string()),
+});
 
-/** Builds the preview from a byte stream (plain or gzip). */
-export async function buildPreviewFromStream(input: Readable, options: PreviewOptions = {}): Promise<ToolpathPreview> {
-  const { collector, parser } = makeParser(options);
-  await readStreamLines(input, parser);
-  parser.end();
-  return collector.result(options);
+/** A stored preview of the current format, or null (an older format, or not a preview). */
+export function parseStoredPreview(json: unknown): ToolpathPreview | null {
+  const r = ToolpathPreviewSchema.safeParse(json);
+  return r.success && r.data.version === PREVIEW_VERSION ? r.data : null;
 }

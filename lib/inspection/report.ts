@@ -1,9 +1,13 @@
 /**
- * The inspection report: camelCase for TypeScript callers, and the snake_case JSON object (units in
- * the key names) that the CLI prints, the API stores, and the rule metrics read.
+ * The engine's report in memory (EngineReport: camelCase, full precision, for the CLI's text
+ * report and the engine's own tests) and toJsonReport(), which turns it into the report contract
+ * (contract.ts: snake_case, units in the key names) that everything outside the engine reads.
  */
 import type { FeatureKind, Flag, SettingsEvidence } from './types';
 import type { BBox, MeasureResult } from './measure';
+import type { RuleResult } from './rules';
+import type { InspectionReport, SettingKey, SettingPairJson } from './contract';
+import type { ToolpathPreview } from './preview';
 
 export interface SettingPairOut {
   declared: number | null;
@@ -11,9 +15,16 @@ export interface SettingPairOut {
   detail?: string;
 }
 
+/** A layer printed with more wall loops than most (Slic3r's extra perimeters on slopes, say). */
+export interface ExtraLoopLayer {
+  zMm: number;
+  walls: number;
+}
+
 export type ReportSettings = SettingsEvidence & {
   first_layer_height_mm: SettingPairOut;
   line_width_mm: SettingPairOut;
+  walls: SettingPairOut & { extraLoopLayers?: ExtraLoopLayer[]; extraLoopLayerCount?: number };
 };
 
 export interface FeatureReport {
@@ -25,7 +36,7 @@ export interface FeatureReport {
   speedMms: { min: number | null; max: number | null; mean: number | null };
 }
 
-export interface InspectionReport {
+export interface EngineReport {
   file: { name: string | null; bytes: number; textBytes: number; gzip: boolean; lines: number };
   slicer: { dialect: string; generator: string | null };
   filament: {
@@ -101,8 +112,10 @@ export interface InspectionReport {
   };
   slicerReports: { filamentLengthMm: number | null; estimatedTimeS: number | null };
   settings: ReportSettings;
-  /** Results of the rulebook, when one was given (shape from lib/inspection/rules.ts). */
-  rules?: unknown[];
+  /** Results of the rulebook, when one was given. */
+  rules?: RuleResult[];
+  /** The judges' toolpath preview, when asked for (InspectOptions.preview); stored beside the report, not in it. */
+  preview?: ToolpathPreview;
   /** Plausibility flags, when claims were given. */
   plausibility?: Flag[];
   warnings: Flag[];
@@ -110,18 +123,22 @@ export interface InspectionReport {
 
 const r3 = (v: number | null): number | null => (v === null || !Number.isFinite(v) ? null : Math.round(v * 1000) / 1000);
 const r1 = (v: number | null): number | null => (v === null || !Number.isFinite(v) ? null : Math.round(v * 10) / 10);
+/** A figure that is always there (0 if a hostile file made it non-finite). */
+const r3f = (v: number): number => (Number.isFinite(v) ? Math.round(v * 1000) / 1000 : 0);
 const r3s = (xs: number[]): number[] => xs.map((x) => (Number.isFinite(x) ? Math.round(x * 1000) / 1000 : 0));
 
-function settingsJson(s: ReportSettings): Record<string, SettingPairOut> {
-  const out: Record<string, SettingPairOut> = {};
-  for (const [k, v] of Object.entries(s) as [string, SettingPairOut][]) {
-    out[k] = { declared: r3(v.declared), measured: r3(v.measured), ...(v.detail ? { detail: v.detail } : {}) };
+function settingsJson(s: ReportSettings): InspectionReport['settings'] {
+  const pair = (v: SettingPairOut): SettingPairJson => ({ declared: r3(v.declared), measured: r3(v.measured), ...(v.detail ? { detail: v.detail } : {}) });
+  const out = Object.fromEntries((Object.entries(s) as [SettingKey, SettingPairOut][]).map(([k, v]) => [k, pair(v)])) as InspectionReport['settings'];
+  if (s.walls.extraLoopLayers) {
+    out.walls.extra_loop_layers = s.walls.extraLoopLayers.map((l) => ({ z_mm: r3(l.zMm) ?? 0, walls: l.walls }));
+    out.walls.extra_loop_layer_count = s.walls.extraLoopLayerCount ?? s.walls.extraLoopLayers.length;
   }
   return out;
 }
 
-/** snake_case JSON with units in the key names; numbers rounded for reading, never NaN. */
-export function toJsonReport(r: InspectionReport): Record<string, unknown> {
+/** The report contract (contract.ts): snake_case JSON with units in the key names; numbers rounded for reading, never NaN. */
+export function toJsonReport(r: EngineReport): InspectionReport {
   return {
     file: { name: r.file.name, bytes: r.file.bytes, text_bytes: r.file.textBytes, gzip: r.file.gzip, lines: r.file.lines },
     slicer: { dialect: r.slicer.dialect, generator: r.slicer.generator },
@@ -159,7 +176,7 @@ export function toJsonReport(r: InspectionReport): Record<string, unknown> {
       z_mm: r3s(r.layers.zMm),
       time_s: r3s(r.layers.timeS),
     },
-    size_mm: r.sizeMm ? { x: r3(r.sizeMm.x), y: r3(r.sizeMm.y), z: r3(r.sizeMm.z) } : null,
+    size_mm: r.sizeMm ? { x: r3f(r.sizeMm.x), y: r3f(r.sizeMm.y), z: r3f(r.sizeMm.z) } : null,
     bbox_mm: r.bboxMm
       ? {
           min_x: r3(r.bboxMm.minX),

@@ -52,6 +52,11 @@ export interface MeasuredSettings {
   layers: number;
   /** 1, or n when the slicer prints the sparse infill of n layers as one thick layer. */
   infill_every_layers: number;
+  /**
+   * Layers printed with more wall loops than the count reported (the count most clean layers
+   * have): e.g. the extra perimeters Slic3r adds where a sloped wall needs them. Lowest first.
+   */
+  extraLoopLayers: { zMm: number; walls: number }[];
   /** Layers rasterised in full (all of them unless the file exceeded the work budget). */
   analysedLayers: number;
   /**
@@ -769,6 +774,7 @@ function summarise(
     nozzle_mm: unknown('No wall loops.'),
     layers: layerCount,
     infill_every_layers: 1,
+    extraLoopLayers: [],
     analysedLayers: 0,
     labelledWallAgreement: null,
     // A copy: result() may be called more than once.
@@ -809,9 +815,19 @@ function summarise(
     const m = new Map<number, number>();
     for (const l of wallLayers) m.set(l.walls!, (m.get(l.walls!) ?? 0) + 1);
     const wm = modeOf(m)!;
+    // A judge wants both the count most layers have and where the part has more loops (Slic3r's
+    // extra perimeters on a shallow slope; CuraEngine's skin outlines also show here). Layers
+    // with an infill region only: where walls fill the whole section there is nothing to compare.
+    out.extraLoopLayers = main
+      .filter((l) => hasWalls(l) && l.walls! > wm.value && l.sparseBlocks > 0)
+      .map((l) => ({ zMm: Math.round(l.z * 1000) / 1000, walls: l.walls! }))
+      .sort((a, b) => a.zMm - b.zMm);
+    const extra = out.extraLoopLayers;
     out.walls = {
       value: wm.value,
-      detail: `Closed loops counted from the outside in; mode over ${wm.total} ${wallNote} (Z ${wallLayers[0].z.toFixed(2)}–${wallLayers[wallLayers.length - 1].z.toFixed(2)} mm); ${pct(wm.count, wm.total)} agree.`,
+      detail:
+        `Closed loops counted from the outside in; mode over ${wm.total} ${wallNote} (Z ${wallLayers[0].z.toFixed(2)}–${wallLayers[wallLayers.length - 1].z.toFixed(2)} mm); ${pct(wm.count, wm.total)} agree.` +
+        (extra.length ? ` ${extra.length} layer${extra.length === 1 ? ' has' : 's have'} more loops (Z ${extra[0].zMm.toFixed(2)}–${extra[extra.length - 1].zMm.toFixed(2)} mm) inside the walls (extra perimeters on a slope, or a slicer's skin outlines).` : ''),
     };
   }
 

@@ -1,26 +1,61 @@
 /**
- * Child-process entry point for one inspection: reads {file, options} as JSON on stdin, runs the
- * engine, writes the JSON report on stdout. Runs outside the web server so a 200 MB G-code never
- * touches the server's heap or event loop, and a crash here cannot take the server down.
- * Exit 0 = report written; exit 2 = the file could not be inspected (one line on stderr); exit 1 =
- * anything else (lib/inspection/main.ts).
+ * One inspection on a pool thread (lib/jobs/pool.ts runs this file, compiled by
+ * `npm run build:engine` to .hotlap/engine/inspect-worker.cjs, in piscina worker threads with a
+ * heap cap and a time limit). Runs off the web server's event loop, so a 200 MB G-code never
+ * blocks a request; a thread that dies takes only its task with it.
+ *
+ * The engine is fed through a counting sink: a small .gz can inflate to gigabytes (a "zip bomb"),
+ * so the bytes it inflates to have a cap (`maxInflatedBytes`, a few times the upload limit).
  */
-import { inspectFile, toJsonReport } from '../inspection';
-import { runInspectionMain } from '../inspection/main';
-import type { InspectOptions } from '../inspection';
+import { basename } from 'node:path';
+import { getHeapStatistics } from 'node:v8';
+import { isMainThread, resourceLimits } from 'node:worker_threads';
+import { createInspector, InspectionError, type InspectOptions, type StoredInspectionJson } from '../inspection';
+import { toStoredInspection } from '../inspection/engine';
+import { readFileChunks } from '../inspection/reader';
 
-async function readStdin(): Promise<string> {
-  const chunks: Buffer[] = [];
-  for await (const c of process.stdin) chunks.push(c as Buffer);
-  return Buffer.concat(chunks).toString('utf8');
+export interface InspectTask {
+  /** Path of the stored G-code (plain or gzip). */
+  file: string;
+  options: InspectOptions;
+  /** Cap on the bytes the file may inflate to. */
+  maxInflatedBytes: number;
 }
 
-async function main(): Promise<number> {
-  const job = JSON.parse(await readStdin()) as { file: string; options: InspectOptions };
-  const report = await inspectFile(job.file, job.options);
-  process.stdout.write(JSON.stringify(toJsonReport(report)));
-  return 0;
+/** `ok: true`: the report contract and, from the same pass, the judges' toolpath preview. `ok: false`: the file cannot be inspected; `reason` says why in a sentence for the entrant. */
+export type InspectTaskResult = { ok: true; stored: StoredInspectionJson } | { ok: false; reason: string };
+
+const MB = 1024 * 1024;
+
+export function inflatedLimitSentence(maxInflatedBytes: number): string {
+  return `The compressed G-code inflates to more than ${Math.round(maxInflatedBytes / MB)} MB, the most an inspection reads: upload the plain .gcode, or check that the .gz holds one print's G-code.`;
 }
 
-// No subject: the file is a storage path, not the name the entrant uploaded, so reasons stay as the engine wrote them.
-void runInspectionMain(main);
+export default async function inspectTask(task: InspectTask): Promise<InspectTaskResult> {
+  try {
+    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file), preview: true });
+    let inflated = 0;
+    const source = await readFileChunks(task.file, {
+      push(chunk: Uint8Array) {
+        inflated += chunk.length;
+        // Thrown inside the reader's loop: it stops inflating and passes an InspectionError on as it is.
+        if (inflated > task.maxInflatedBytes) throw new InspectionError('unreadable', inflatedLimitSentence(task.maxInflatedBytes));
+        inspector.push(chunk);
+      },
+    });
+    return { ok: true, stored: toStoredInspection(inspector.finish(source)) };
+  } catch (err) {
+    // Input the engine cannot use (and values out of range) is the entrant's to fix; the rest is ours.
+    if (err instanceof InspectionError || err instanceof RangeError) {
+      const reason = err.message.split('\n')[0];
+      // The engine names the path it could not find; the entrant never saw our storage path.
+      return { ok: false, reason: err instanceof InspectionError && err.code === 'not-found' ? 'The stored G-code of this inspection is gone; upload it again.' : reason };
+    }
+    throw err;
+  }
+}
+
+/** What this thread runs under, read from the thread itself (tests prove the pool's limits with it). */
+export function threadLimits(): { resourceLimits: typeof resourceLimits; heapSizeLimitMb: number; isMainThread: boolean } {
+  return { resourceLimits, heapSizeLimitMb: Math.round(getHeapStatistics().heap_size_limit / MB), isMainThread };
+}

@@ -2,7 +2,6 @@
 import { ContestClass, Entry, ExtrusionTest, Inspection, Machine, Review, Season, StoredFile, TestPiece, User } from '@/models';
 import { extrusionTestJson } from '@/lib/machines';
 import { auditEvidenceView } from './evidence';
-import { resumeInspection } from '@/lib/entries/inspection';
 import { reviewableEntry } from './access';
 import { latestReinspection } from './reinspection';
 import { dimensionalDeviation } from './checklist';
@@ -73,8 +72,6 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
   const newest = inspections[0] ?? null;
   const latest = done[0] ?? newest;
   const previous = done[1] ?? null;
-  // A re-inspection a stopped server left queued is picked up again when a judge looks.
-  if (newest && (newest.status === 'queued' || newest.status === 'running')) await resumeInspection(newest);
   const pending = newest && newest !== latest ? { id: newest.id, status: newest.status, error: newest.error, createdAt: newest.createdAt.toISOString() } : null;
   const verifiers = roundVerifiers(reviews, roundOpenedAt(entry));
   const reference = testPiece ? { x: testPiece.sizeXMm, y: testPiece.sizeYMm, z: testPiece.sizeZMm } : null;
@@ -140,7 +137,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       error: latest.error,
       finishedAt: latest.finishedAt?.toISOString() ?? null,
       headline: { ...head, estimatedS: latest.estimatedTimeS ?? head.estimatedS, peakFlowMm3s: latest.peakFlowMm3s ?? head.peakFlowMm3s, p95FlowMm3s: latest.p95FlowMm3s ?? head.p95FlowMm3s },
-      ruleResults: (Array.isArray(latest.ruleResults) ? latest.ruleResults : []) as { rule: { metric: string; severity: string; sentence?: string }; status: string; measured: unknown; message: string }[],
+      ruleResults: latest.ruleResults,
       flags: asFlags(latest.flags),
       settings: settingsRows(report),
       flowSeries: flowSeries(report),

@@ -3,13 +3,11 @@
  * toolpath preview. Every access goes through the judge's access check and full-size views are
  * written to the audit log.
  */
-import fs from 'node:fs';
-import { HttpError, notFound } from '@/lib/errors';
-import { exists, localPath, putBuffer } from '@/lib/storage';
+import { Inspection } from '@/models';
+import { notFound } from '@/lib/errors';
 import { fileResponse, readableFile, type FileReader } from '@/lib/storage/access';
 import { auditEvidenceView } from './evidenceAudit';
-import { buildPreviewFromFile, PREVIEW_VERSION, type ToolpathPreview } from '@/lib/inspection/preview';
-import { InspectionError } from '@/lib/inspection/reader';
+import { parseStoredPreview } from '@/lib/inspection/preview';
 import { reviewableEntry } from './access';
 import { currentGcode } from '@/lib/entries/inspection';
 
@@ -36,27 +34,28 @@ export async function evidenceLink(judgeId: number, entryId: number, ip?: string
   return entry.evidenceUrl;
 }
 
-/** Computed previews are kept in storage next to the uploads, keyed by the G-code's hash and the format version. */
-const previewKey = (sha256: string) => `previews/${sha256.slice(0, 64)}-v${PREVIEW_VERSION}.json`;
-
-/** The toolpath preview JSON of the entry's latest G-code (computed once, then served from storage). */
+/**
+ * The toolpath preview JSON of the entry's current G-code. The inspection pass builds it and the
+ * job stores it on the inspection row, so serving it reads a column and never parses G-code.
+ */
 export async function entryPreviewJson(judgeId: number, entryId: number, ip?: string | null): Promise<string> {
   const entry = await reviewableEntry(judgeId, entryId);
   const gcode = await currentGcode(entry.id);
   if (!gcode) throw notFound('This entry has no G-code to preview.');
   // The preview draws the entrant's G-code: a view of private evidence like the download.
   await auditEvidenceView(judgeId, entry.id, 'toolpath_preview', { fileId: gcode.id, ip });
-  const key = previewKey(/^[0-9a-f]{64}$/.test(gcode.sha256) ? gcode.sha256 : `file-${gcode.id}`);
-  if (await exists(key)) return fs.promises.readFile(localPath(key), 'utf8');
-  let preview: ToolpathPreview;
-  try {
-    const diameter = typeof gcode.meta?.filamentDiameterMm === 'number' ? gcode.meta.filamentDiameterMm : undefined;
-    preview = await buildPreviewFromFile(localPath(gcode.storageKey), { filamentDiameterMm: diameter });
-  } catch (err) {
-    if (err instanceof InspectionError) throw new HttpError(422, `The G-code cannot be previewed: ${err.message}`);
-    throw err;
+  const row = await Inspection.findOne({
+    where: { entryId: entry.id, storedFileId: gcode.id, status: 'done' },
+    order: [['id', 'DESC']],
+    attributes: ['id', 'preview'],
+  });
+  const preview = row ? parseStoredPreview(row.preview) : null;
+  if (!preview) {
+    throw notFound(
+      row
+        ? 'This G-code was inspected before toolpath previews were kept with the inspection: use "Inspect again" to build one.'
+        : 'The toolpath preview is built by the inspection of this G-code, which has not finished yet: try again in a moment.',
+    );
   }
-  const json = JSON.stringify(preview);
-  await putBuffer(key, Buffer.from(json));
-  return json;
+  return JSON.stringify(preview);
 }

@@ -6,8 +6,7 @@
  */
 import { Op, type Transaction } from 'sequelize';
 import { Entry, Inspection, Season } from '@/models';
-import { ENGINE_VERSION } from '@/lib/jobs';
-import { currentGcode, queueInspection } from '@/lib/entries/inspection';
+import { currentGcode, queueInspection, queueInspectionRow } from '@/lib/entries/inspection';
 
 export interface Reinspection {
   /** inspections newly queued */
@@ -40,10 +39,8 @@ export async function reinspectSeason(seasonId: number, opts: { transaction?: Tr
       out.alreadyQueued += 1;
       continue;
     }
-    const row = await Inspection.create(
-      { entryId: entry.id, storedFileId: gcode.id, engineVersion: ENGINE_VERSION, status: 'queued', report: null, peakFlowMm3s: null, p95FlowMm3s: null, estimatedTimeS: null, layerHeightMm: null, error: null, finishedAt: null },
-      { transaction },
-    );
+    // The same queue as uploads: one queued row per entry, taken fairly across entrants.
+    const { row } = await queueInspectionRow(entry.id, gcode.id, transaction);
     out.inspectionIds.push(row.id);
     out.queued += 1;
   }
@@ -51,7 +48,7 @@ export async function reinspectSeason(seasonId: number, opts: { transaction?: Tr
   return out;
 }
 
-/** Starts the queued inspections (call after the transaction that created them committed). */
+/** Wakes the job runner for the queued inspections (call after the transaction that created them committed). */
 export function startQueued(r: Reinspection | null) {
-  for (const id of r?.inspectionIds ?? []) queueInspection(id);
+  if (r?.inspectionIds.length) queueInspection();
 }

@@ -1,10 +1,8 @@
 /** The inspection in plain words for the public entry page, and the flow series for its chart. */
 import { formatDurationMs, formatDurationS } from '@/lib/format';
 import { flowSeries } from '@/lib/reviews/report';
+import type { InspectionReport } from '@/lib/inspection/contract';
 
-type Json = Record<string, unknown> | null | undefined;
-const obj = (v: unknown): Json => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null);
-const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 const fmt = (v: number, digits: number) => v.toFixed(digits).replace(/\.?0+$/, '') || '0';
 
 export interface FlowSeries {
@@ -16,7 +14,7 @@ export interface FlowSeries {
  * The report's flow time series (read by lib/reviews/report.ts flowSeries) as chart points for the
  * public API, or null when the report has none.
  */
-export function flowSeriesPoints(report: Json): FlowSeries | null {
+export function flowSeriesPoints(report: InspectionReport | null): FlowSeries | null {
   const { bucketS, maxMm3s: max, meanMm3s: mean } = flowSeries(report);
   if (!max.length) return null;
   // A chart needs a few hundred points at most; merge neighbouring buckets, keeping each group's maximum.
@@ -37,18 +35,16 @@ export function flowSeriesPoints(report: Json): FlowSeries | null {
 }
 
 /** Sentences a viewer can read without knowing the report's fields. Missing figures are left out. */
-export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rules: { pass: number; fail: number; unknown: number }; flags: number; judgedThisInspection?: boolean }): string[] {
-  const r = obj(a.report);
+export function inspectionSummary(a: { report: InspectionReport | null; claimedTimeMs: number; rules: { pass: number; fail: number; unknown: number }; flags: number; judgedThisInspection?: boolean }): string[] {
+  const r = a.report;
   const out: string[] = [];
-  const layers = obj(r?.layers);
-  const count = num(layers?.count);
-  const height = num(layers?.height_mm);
-  const first = num(layers?.first_height_mm);
+  const count = r?.layers.count ?? null;
+  const height = r?.layers.height_mm ?? null;
+  const first = r?.layers.first_height_mm ?? null;
   if (count && height) out.push(`The G-code prints ${count} layers of ${fmt(height, 3)} mm${first ? ` (first layer ${fmt(first, 3)} mm)` : ''}.`);
-  const flow = obj(r?.flow);
-  const peak = num(flow?.peak_mm3s);
-  const p95 = num(flow?.p95_mm3s);
-  const mean = num(flow?.mean_mm3s);
+  const peak = r?.flow.peak_mm3s ?? null;
+  const p95 = r?.flow.p95_mm3s ?? null;
+  const mean = r?.flow.mean_mm3s ?? null;
   if (peak != null) {
     out.push(
       `Its fastest extruding move asks the hotend for ${fmt(peak, 1)} mm³/s` +
@@ -57,11 +53,10 @@ export function inspectionSummary(a: { report: Json; claimedTimeMs: number; rule
         '.',
     );
   }
-  const fil = obj(r?.filament);
-  const massG = num(fil?.mass_g);
-  const lengthMm = num(fil?.length_mm);
+  const massG = r?.filament.mass_g ?? null;
+  const lengthMm = r?.filament.length_mm ?? null;
   if (lengthMm != null) out.push(`It extrudes ${fmt(lengthMm / 1000, 2)} m of filament${massG != null ? ` (about ${fmt(massG, 1)} g)` : ''}.`);
-  const est = num(obj(r?.time)?.estimated_s);
+  const est = r?.time.estimated_s ?? null;
   if (est != null) {
     const claimedS = a.claimedTimeMs / 1000;
     const ratio = claimedS / est;

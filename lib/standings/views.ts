@@ -14,6 +14,7 @@ import { isoDate, ranksOf, runFields, standingsPage, type ClassRef, type Standin
 import type { StandingsQuery } from './params';
 import { inspectionSummary, flowSeriesPoints, type FlowSeries } from './summary';
 import { latestReinspection } from '@/lib/reviews/reinspection';
+import { readStoredReport } from '@/lib/inspection/contract';
 
 const seq = () => getSequelize();
 const select = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>): Promise<T[]> =>
@@ -323,7 +324,7 @@ export async function publicEntry(id: number): Promise<PublicEntry> {
     ranksOf({ seasonId: r.season_id, classId: r.class_id, frozen }, [r.id]),
     verified ? select<{ id: number; original_name: string }>("SELECT id, original_name FROM stored_files WHERE entry_id = ? AND kind = 'photo' ORDER BY id", [r.id]) : Promise.resolve([]),
   ]);
-  const report = json<Record<string, unknown> | null>(r.report, null);
+  const report = readStoredReport(r.report);
   const ruleResults = json<{ status?: string }[]>(r.rule_results, []);
   const flags = json<{ code?: string; severity?: string; message?: string }[]>(r.flags, []);
   const count = (st: string) => ruleResults.filter((x) => x?.status === st).length;

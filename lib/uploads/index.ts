@@ -4,12 +4,17 @@
  * (SHA-256) on the way. Limits are checked as early as possible: the declared Content-Length before
  * reading anything, then formidable's per-file, total and count limits while streaming.
  */
-import os from 'node:os';
 import fsp from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import formidable, { type File as FormidableFile } from 'formidable';
 import { HttpError } from '@/lib/errors';
+import { dataDir } from '@/lib/db';
+
+/** Temporary upload folders live under the data folder, so a starting server can clear what a stopped one left (lib/jobs/start.ts). */
+export function uploadTmpRoot(): string {
+  return path.join(dataDir(), 'tmp', 'uploads');
+}
 
 export interface FileFieldSpec {
   maxBytes: number;
@@ -52,7 +57,8 @@ export async function receiveUpload(req: Request, spec: UploadSpec): Promise<Upl
     throw new HttpError(413, `The upload is ${mb(declared)}; the limit is ${mb(spec.maxTotalBytes)} in all.`);
   if (!req.body) throw new HttpError(400, 'The upload is empty.');
 
-  const tmpDir = await fsp.mkdtemp(path.join(os.tmpdir(), 'hotlap-upload-'));
+  await fsp.mkdir(uploadTmpRoot(), { recursive: true });
+  const tmpDir = await fsp.mkdtemp(path.join(uploadTmpRoot(), 'upload-'));
   const cleanup = () => fsp.rm(tmpDir, { recursive: true, force: true });
   const maxFileBytes = Math.max(...Object.values(spec.files).map((f) => f.maxBytes));
   const maxFiles = Object.values(spec.files).reduce((n, f) => n + f.maxCount, 0);

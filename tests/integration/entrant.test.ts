@@ -332,7 +332,7 @@ describe('a returned entry', () => {
 });
 
 describe('crash during inspection', () => {
-  it('an inspection left running by a stopped server is picked up again when the entry is read', async () => {
+  it('an inspection left running by a stopped server is taken again by the job queue (no page read needed)', async () => {
     const entry = (await sql<{ id: number }>(dbFile, "SELECT e.id FROM entries e JOIN users u ON u.id = e.entrant_id WHERE u.email = ? AND e.state = 'draft' ORDER BY e.id DESC LIMIT 1", [pim.email]))[0];
     const latest = (await sql<{ id: number; stored_file_id: number }>(dbFile, 'SELECT id, stored_file_id FROM inspections WHERE entry_id = ? ORDER BY id DESC LIMIT 1', [entry.id]))[0];
     // As a server killed mid-inspection leaves it: a row marked running that no process works on.

@@ -88,15 +88,16 @@ export async function inspectEntryWithFixture(dbFile: string, entryId: number, f
     rules,
     ruleContext: testPieceSizeMm ? { testPieceSizeMm } : {},
     claims: { claimedTimeMs: opts.claimedTimeMs ?? entry.claimed_time_ms, machineFlowLimitMm3s: 30, ...(testPieceSizeMm ? { testPieceSizeMm } : {}), ...(measuredDimensionsMm ? { measuredDimensionsMm } : {}) },
+    preview: true,
   });
-  const json = toJsonReport(report) as { flow: { peak_mm3s: number; p95_mm3s: number }; time: { estimated_s: number }; layers: { height_mm: number }; rules?: { status: string; rule: { severity: string } }[] };
+  const json = toJsonReport(report);
   const ruleResults = json.rules ?? [];
   const flags: Flag[] = [...(report.plausibility ?? []), ...report.warnings];
   const blocking = ruleResults.filter((r) => r.status === 'fail' && r.rule.severity === 'blocking').length + flags.filter((f) => f.severity === 'blocking').length;
   const advisory = ruleResults.filter((r) => r.status === 'fail' && r.rule.severity === 'advisory').length + flags.filter((f) => f.severity === 'advisory').length;
   await sql(dbFile, 'UPDATE entries SET gcode_sha256 = ? WHERE id = ?', [sha, entryId]);
   return insert(dbFile, 'inspections', {
-    entry_id: entryId, stored_file_id: fileId, engine_version: opts.engineVersion ?? 'hotlap-inspect-1', status: 'done', report: JSON.stringify(json),
+    entry_id: entryId, stored_file_id: fileId, engine_version: opts.engineVersion ?? 'hotlap-inspect-1', status: 'done', report: JSON.stringify(json), preview: JSON.stringify(report.preview),
     rule_results: JSON.stringify(ruleResults), flags: JSON.stringify(flags), blocking_failures: blocking, advisory_flags: advisory,
     peak_flow_mm3s: json.flow.peak_mm3s, p95_flow_mm3s: json.flow.p95_mm3s, estimated_time_s: json.time.estimated_s, layer_height_mm: json.layers.height_mm,
     error: null, finished_at: now, created_at: now, updated_at: now,

@@ -4,6 +4,8 @@
  * Dates use the format Sequelize writes ("YYYY-MM-DD HH:MM:SS.SSS +00:00").
  */
 import { sql } from './db';
+import { reportWith } from './reports';
+import type { InspectionReport } from '@/lib/inspection/contract';
 
 export const stamp = (d: Date | string) => new Date(d).toISOString().replace('T', ' ').replace('Z', ' +00:00');
 const now = () => stamp(new Date());
@@ -78,10 +80,10 @@ export async function insertInspection(db: string, entryId: number, f: { peak: n
   });
 }
 
-/** A report shaped like lib/inspection/report.ts toJsonReport output, with the fields the entry page reads. */
-export function sampleReport(peak: number, p95: number, layerMm: number): Record<string, unknown> {
+/** A complete report (the contract) with the figures the entry page reads. */
+export function sampleReport(peak: number, p95: number, layerMm: number): InspectionReport {
   const n = 60;
-  return {
+  return reportWith({
     layers: { count: Math.round(40 / layerMm), height_mm: layerMm, first_height_mm: 0.3 },
     flow: {
       peak_mm3s: peak,
@@ -95,7 +97,7 @@ export function sampleReport(peak: number, p95: number, layerMm: number): Record
     },
     filament: { length_mm: 4200, mass_g: 12.5 },
     time: { estimated_s: 1480 },
-  };
+  });
 }
 
 export async function setSeasonState(db: string, seasonId: number, state: string) {

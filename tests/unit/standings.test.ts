@@ -6,6 +6,7 @@ import { csvField, parseCsv, standingsCsv } from '@/lib/standings/csv';
 import { etagOf, matchesEtag } from '@/lib/standings/http';
 import { niceStep, sample, timeHistogram } from '@/lib/standings/overview';
 import { flowSeriesPoints, inspectionSummary } from '@/lib/standings/summary';
+import { blankReport, reportWith } from '../support/reports';
 import { HttpError } from '@/lib/errors';
 
 const row = (rank: number, o: Partial<StandingsRow> = {}): StandingsRow => ({
@@ -127,12 +128,12 @@ describe('overview figures', () => {
 });
 
 describe('entry summary', () => {
-  const report = {
+  const report = reportWith({
     layers: { count: 160, height_mm: 0.25, first_height_mm: 0.3 },
     flow: { peak_mm3s: 28.4, p95_mm3s: 22.1, mean_mm3s: 15.02, time_series: { bucket_s: 2, max_mm3s: Array.from({ length: 1500 }, (_, i) => (i === 700 ? 28.4 : 10)), mean_mm3s: Array.from({ length: 1500 }, () => 8) } },
     filament: { length_mm: 4210, mass_g: 12.56 },
     time: { estimated_s: 1500 },
-  };
+  });
   it('says what the inspection measured in sentences', () => {
     const s = inspectionSummary({ report, claimedTimeMs: 1_470_000, rules: { pass: 8, fail: 0, unknown: 1 }, flags: 1 });
     expect(s[0]).toBe('The G-code prints 160 layers of 0.25 mm (first layer 0.3 mm).');
@@ -146,18 +147,18 @@ describe('entry summary', () => {
   });
   it('leaves out what the report lacks and never throws on odd input', () => {
     expect(inspectionSummary({ report: null, claimedTimeMs: 1000, rules: { pass: 0, fail: 0, unknown: 0 }, flags: 0 })).toEqual(['The inspection raised no flags.']);
-    expect(inspectionSummary({ report: { flow: 'x', layers: [] } as never, claimedTimeMs: 1000, rules: { pass: 1, fail: 0, unknown: 0 }, flags: 0 })).toEqual(['All 1 rules of the rulebook pass.', 'The inspection raised no flags.']);
+    expect(inspectionSummary({ report: blankReport(), claimedTimeMs: 1000, rules: { pass: 1, fail: 0, unknown: 0 }, flags: 0 })).toEqual([
+      'It extrudes 0 m of filament (about 0 g).',
+      'All 1 rules of the rulebook pass.',
+      'The inspection raised no flags.',
+    ]);
   });
   it('thins a long flow series to at most ~600 points, keeping the peak', () => {
     const f = flowSeriesPoints(report)!;
     expect(f.points.length).toBeLessThanOrEqual(600);
     expect(f.bucket_s).toBe(6);
     expect(Math.max(...f.points.map((p) => p.max_mm3s))).toBe(28.4);
-    expect(flowSeriesPoints({ flow: { time_series: { bucket_s: 0, max_mm3s: [1] } } })).toBeNull();
-    // The camelCase report object reads the same as the engine's snake_case JSON (lib/reviews/report.ts).
-    expect(flowSeriesPoints({ flow: { timeSeries: { bucketS: 2, maxMm3s: [3, 5], meanMm3s: [1, 2] } } })).toEqual({
-      bucket_s: 2,
-      points: [{ t_s: 0, max_mm3s: 3, mean_mm3s: 1 }, { t_s: 2, max_mm3s: 5, mean_mm3s: 2 }],
-    });
+    expect(flowSeriesPoints(reportWith({ flow: { time_series: { bucket_s: 0, max_mm3s: [1], mean_mm3s: [1] } } }))).toBeNull();
+    expect(flowSeriesPoints(null)).toBeNull();
   });
 });

@@ -5,14 +5,13 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { tsRunArgs } from '../../../lib/tsRun';
 
 const ROOT = join(__dirname, '../../..');
 const FIXTURE = join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz');
 const dir = mkdtempSync(join(tmpdir(), 'hotlap-cli-'));
 
 function run(...args: string[]) {
-  const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), join(ROOT, 'lib/inspection/cli.ts'), ...args], {
+  const r = spawnSync(process.execPath, ['--require', join(ROOT, 'node_modules/tsx/dist/cjs/index.cjs'), join(ROOT, 'lib/inspection/cli.ts'), ...args], {
     encoding: 'utf8',
     timeout: 120_000,
   });

@@ -2,7 +2,7 @@
 import { Readable } from 'node:stream';
 import { GcodeParser, MachineState, type ParserOptions } from '../../../lib/inspection/parser';
 import { inspectStream, type InspectOptions } from '../../../lib/inspection/inspect';
-import type { InspectionReport } from '../../../lib/inspection/report';
+import type { EngineReport } from '../../../lib/inspection/report';
 import type { Segment } from '../../../lib/inspection/types';
 
 export interface Parsed {
@@ -45,7 +45,7 @@ export function sum(xs: number[]): number {
 }
 
 /** Inspects in-memory bytes through the streaming reader (chunkSize splits the input to test chunk borders). */
-export function inspectBytes(bytes: Buffer | string, options: InspectOptions = {}, chunkSize = 64 * 1024): Promise<InspectionReport> {
+export function inspectBytes(bytes: Buffer | string, options: InspectOptions = {}, chunkSize = 64 * 1024): Promise<EngineReport> {
   const buf = typeof bytes === 'string' ? Buffer.from(bytes, 'latin1') : bytes;
   const chunks: Buffer[] = [];
   for (let i = 0; i < buf.length; i += chunkSize) chunks.push(buf.subarray(i, i + chunkSize));

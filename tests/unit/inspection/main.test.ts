@@ -1,14 +1,7 @@
-/** runInspectionMain: the exit code and stderr line the CLI and the inspection worker share. */
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+/** runInspectionMain: the exit code and stderr line of the inspect CLI. */
 import { afterEach, beforeEach, describe, expect, it, vi, type MockInstance } from 'vitest';
 import { InspectionError } from '../../../lib/inspection/reader';
 import { firstLine, runInspectionMain } from '../../../lib/inspection/main';
-import { tsRunArgs } from '../../../lib/tsRun';
-
-const ROOT = join(__dirname, '../../..');
 
 describe('runInspectionMain', () => {
   let stderr: MockInstance;
@@ -53,35 +46,5 @@ describe('runInspectionMain', () => {
   it('firstLine keeps only the first line', () => {
     expect(firstLine('one\ntwo')).toBe('one');
     expect(firstLine('')).toBe('');
-  });
-});
-
-describe('lib/jobs/inspect-worker.ts', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'hotlap-worker-'));
-  const run = (stdin: string) => {
-    const r = spawnSync(process.execPath, [...tsRunArgs(ROOT), join(ROOT, 'lib/jobs/inspect-worker.ts')], { input: stdin, encoding: 'utf8', timeout: 120_000 });
-    return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-  };
-
-  it('exits 0 with the JSON report', () => {
-    const r = run(JSON.stringify({ file: join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz'), options: {} }));
-    expect(r.stderr).toBe('');
-    expect(r.code).toBe(0);
-    expect(JSON.parse(r.stdout).layers.count).toBe(200);
-  });
-
-  it('exits 2 with one unprefixed line for a file it cannot read', () => {
-    const empty = join(dir, 'empty.gcode');
-    writeFileSync(empty, '');
-    const r = run(JSON.stringify({ file: empty, options: {} }));
-    expect(r.code).toBe(2);
-    expect(r.stdout).toBe('');
-    expect(r.stderr).toMatch(/^The file is empty[^\n]*\n$/);
-  });
-
-  it('exits 1 on a job it cannot parse', () => {
-    const r = run('not json');
-    expect(r.code).toBe(1);
-    expect(r.stderr).toMatch(/^internal error: SyntaxError/);
   });
 });

@@ -3,9 +3,8 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { Readable } from 'node:stream';
+import { buildPreviewFromFile, buildPreviewFromStream } from '@/lib/inspection/inspect';
 import {
-  buildPreviewFromFile,
-  buildPreviewFromStream,
   decodeLayer,
   flowBucket,
   simplify,

@@ -56,7 +56,7 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
       </section>
       <section>
         <h2 className="mb-3">Rulebook</h2>
-        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/rulebook`}>Full rulebook with class rules and safety notes</Link></p>
+        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/rulebook`}>Full rulebook with class rules and safety notes</Link> · <Link href={`/seasons/${season.slug}/check`}>Check a G-code against this rulebook</Link></p>
         <ol className="card list-decimal space-y-1 pl-10">
           {seasonRules.map((r) => (
             <li key={r.id}>

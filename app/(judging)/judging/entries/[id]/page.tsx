@@ -126,7 +126,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
                 <thead><tr><th>Rule</th><th>Severity</th><th>Measured</th><th>Result</th></tr></thead>
                 <tbody>
                   {insp.ruleResults.map((x, i) => (
-                    <tr key={i}><td>{x.rule?.sentence || x.message}</td><td>{x.rule?.severity}</td><td className="num">{formatRuleMeasured(x.rule?.metric, x.measured as number | boolean | null | undefined)}</td><td><span className={`pill ${STATUS_TONE[x.status] ?? ''}`}>{x.status}</span></td></tr>
+                    <tr key={i}><td>{x.rule?.sentence || x.message}</td><td>{x.rule?.severity}</td><td className="num">{formatRuleMeasured(x.rule?.metric, x.measured)}</td><td><span className={`pill ${STATUS_TONE[x.status] ?? ''}`}>{x.status}</span></td></tr>
                   ))}
                 </tbody>
               </table>
@@ -138,7 +138,15 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
                 <tbody>
                   {insp.settings.map((s) => (
                     <tr key={s.key} className={s.declared !== null && s.measured !== null && Math.abs(s.declared - s.measured) > 1e-6 ? 'bg-ember-50' : ''}>
-                      <td>{s.key.replace(/_/g, ' ')}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">{s.detail}</td>
+                      <td>{s.key.replace(/_/g, ' ')}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">
+                        {s.detail}
+                        {s.extraLoopLayers && (
+                          <span className="block text-ink-700" data-testid="extra-loop-layers">
+                            More loops on {s.extraLoopLayerCount} layer{s.extraLoopLayerCount === 1 ? '' : 's'}: {s.extraLoopLayers.map((l) => `Z ${l.zMm} mm (${l.walls})`).join(', ')}
+                            {(s.extraLoopLayerCount ?? 0) > s.extraLoopLayers.length ? ', …' : ''}
+                          </span>
+                        )}
+                      </td>
                     </tr>
                   ))}
                 </tbody>

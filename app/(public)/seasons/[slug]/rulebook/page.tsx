@@ -30,7 +30,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
   return (
     <div className="space-y-8">
       <header className="space-y-2">
-        <p className="text-sm"><Link href={`/seasons/${season.slug}`}>← {season.name}</Link></p>
+        <p className="text-sm"><Link href={`/seasons/${season.slug}`}>← {season.name}</Link> · <Link href={`/seasons/${season.slug}/check`}>Check a G-code against this rulebook</Link></p>
         <div className="flex flex-wrap items-center gap-3">
           <h1>Rulebook · {season.name}</h1>
           <StatePill state={season.state} />

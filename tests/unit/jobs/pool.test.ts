@@ -1,0 +1,83 @@
+/**
+ * The inspection pool with the compiled worker (built here by npm run build:engine's script):
+ * reports, settings that reach the worker, limits read back from a pool thread, the inflated-size
+ * cap on gzip, a truncated gzip and the time limit, each with its sentence.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { gzipSync } from 'node:zlib';
+import { inspectInPool, InspectionRunError, jobSettings, type JobSettings } from '@/lib/jobs';
+import { closePool, poolThreadLimits } from '@/lib/jobs/pool';
+
+const ROOT = path.resolve(__dirname, '../../..');
+const FIXTURE = path.join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz');
+const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-pool-'));
+const MB = 1024 * 1024;
+let base: JobSettings;
+
+beforeAll(() => {
+  execFileSync(process.execPath, [path.join(ROOT, 'scripts/build-engine.mjs'), '--quiet', '--only=inspect-worker'], { cwd: ROOT, stdio: 'pipe' });
+  base = { ...jobSettings(), heapMb: 256 };
+}, 120_000);
+
+afterAll(async () => {
+  await closePool();
+  fs.rmSync(dir, { recursive: true, force: true });
+});
+
+const failure = (p: Promise<unknown>) => p.then(() => null, (e: unknown) => e as InspectionRunError);
+
+describe('inspection pool', () => {
+  it('runs in a worker thread under the heap cap it was given (read back from the thread)', async () => {
+    const t = await poolThreadLimits(base);
+    expect(t.isMainThread).toBe(false);
+    expect(t.resourceLimits.maxOldGenerationSizeMb).toBe(256);
+    // V8's heap limit is old + young generation (+ a little): well under the server's own.
+    expect(t.heapSizeLimitMb).toBeGreaterThanOrEqual(256);
+    expect(t.heapSizeLimitMb).toBeLessThan(400);
+  });
+
+  it('returns the report, and the settings reach the worker (filament diameter)', async () => {
+    const stored = await inspectInPool(FIXTURE, { name: 'beacon.gcode.gz' }, base);
+    const r175 = stored.report;
+    // The judges' preview comes from the same pass, checked against its format by the pool.
+    expect(stored.preview).not.toBeNull();
+    // 200 layers: the fixture is the Beacon sliced at 0.2 mm (tests/fixtures/README.md, PrusaSlicer's own settings).
+    expect(r175.layers.count).toBe(200);
+    expect(r175.file.name).toBe('beacon.gcode.gz');
+    const r285 = (await inspectInPool(FIXTURE, { filamentDiameterMm: 2.85 }, base)).report;
+    // Volume scales with the filament's cross-section: (2.85 / 1.75)² (geometry, no source needed beyond πd²/4).
+    expect(r285.filament.volume_mm3! / r175.filament.volume_mm3!).toBeCloseTo((2.85 / 1.75) ** 2, 4);
+  });
+
+  it('a gzip that inflates past the cap fails with a sentence, not a full disk or heap', async () => {
+    const bomb = path.join(dir, 'bomb.gcode.gz');
+    fs.writeFileSync(bomb, gzipSync(Buffer.from('G1 X10 Y10 E0.1 F3000\n'.repeat(Math.ceil((3 * MB) / 22)))));
+    expect(fs.statSync(bomb).size).toBeLessThan(64 * 1024);
+    const err = await failure(inspectInPool(bomb, {}, { ...base, maxInflatedBytes: MB }));
+    expect(err).toBeInstanceOf(InspectionRunError);
+    expect(err!.kind).toBe('unreadable');
+    expect(err!.message).toBe('The compressed G-code inflates to more than 1 MB, the most an inspection reads: upload the plain .gcode, or check that the .gz holds one print\'s G-code.');
+    // Under the cap the same file inspects.
+    await expect(inspectInPool(bomb, {}, { ...base, maxInflatedBytes: 4 * MB })).resolves.toBeTruthy();
+  });
+
+  it('a truncated gzip fails with the engine\'s sentence', async () => {
+    const cut = path.join(dir, 'cut.gcode.gz');
+    const whole = fs.readFileSync(FIXTURE);
+    fs.writeFileSync(cut, whole.subarray(0, Math.floor(whole.length / 2)));
+    const err = await failure(inspectInPool(cut, {}, base));
+    expect(err!.kind).toBe('unreadable');
+    expect(err!.message).toMatch(/^The compressed file ends early \(truncated gzip\)/);
+  });
+
+  it('a job past its time limit is stopped with a sentence, and the pool goes on', async () => {
+    const err = await failure(inspectInPool(FIXTURE, {}, { ...base, timeLimitMs: 5 }));
+    expect(err!.kind).toBe('timeout');
+    expect(err!.message).toMatch(/^The inspection took longer than 5 ms and was stopped: check that the file is one print's G-code/);
+    await expect(inspectInPool(FIXTURE, {}, base)).resolves.toBeTruthy();
+  });
+});
