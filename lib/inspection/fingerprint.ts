@@ -54,13 +54,13 @@ class FingerprintSink implements LineSink {
   lineCount = 0;
   moveLines = 0;
 
-  line(buf: Buffer, start: number, end: number): void {
+  line(buf: Uint8Array, start: number, end: number): void {
     this.lineCount++;
     // A line is at most MAX_LINE_BYTES (the reader cuts longer ones), so one flush always makes room.
     if (this.rawLen + (end - start) + 1 > OUT_BYTES || this.outLen + (end - start) + 1 > OUT_BYTES) this.flush();
     // The reader splits on LF and hands a CRLF line with its CR: leave it out, so line endings do not count.
     const rawEnd = end > start && buf[end - 1] === CR ? end - 1 : end;
-    buf.copy(this.raw, this.rawLen, start, rawEnd);
+    this.raw.set(buf.subarray(start, rawEnd), this.rawLen);
     this.rawLen += rawEnd - start;
     this.raw[this.rawLen++] = LF;
     // A normalized line is never longer than the raw one.

@@ -21,8 +21,9 @@ const dbFile = inject('dbFile');
 const dataDir = path.dirname(dbFile);
 
 /** A G-code that passes the demo season's blocking rules, made unique (the duplicate check). */
+// A command, not a comment, makes each copy unique: the duplicate check ignores comments.
 const passingGcode = () =>
-  gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURE_GCODE_DIR, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\n; integrity test ${crypto.randomUUID()}\n`)]));
+  gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURE_GCODE_DIR, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\nM117 integrity test ${crypto.randomUUID()}\n`)]));
 const failingGcode = fs.readFileSync(path.join(FIXTURE_GCODE_DIR, 'prusa-beacon-028.gcode.gz'));
 
 const photo = () => sharp({ create: { width: 400, height: 300, channels: 3, background: '#2a6f97' } }).jpeg().toBuffer();

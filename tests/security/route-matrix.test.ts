@@ -119,7 +119,7 @@ describe('unsupported methods', () => {
 const PAGES: Record<string, Access> = {
   '/': 'public', '/api-docs': 'public', '/entrants/[id]': 'public', '/entries/[id]': 'public', '/machines/[id]': 'public',
   '/safety': 'public', '/seasons': 'public', '/seasons/[slug]': 'public', '/seasons/[slug]/classes/[class]': 'public',
-  '/seasons/[slug]/overview': 'public', '/seasons/[slug]/rulebook': 'public',
+  '/seasons/[slug]/overview': 'public', '/seasons/[slug]/rulebook': 'public', '/seasons/[slug]/check': 'public',
   '/forgot': 'public', '/invite': 'public', '/reset': 'public', '/signin': 'public', '/signup': 'public', '/verify': 'public',
   '/account': 'member',
   '/me': 'entrant', '/me/entries/[id]': 'entrant', '/me/entries/new': 'entrant', '/me/machines': 'entrant', '/me/machines/[id]': 'entrant',
