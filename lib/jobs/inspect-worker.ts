@@ -20,6 +20,8 @@ export interface InspectTask {
   options: InspectOptions;
   /** Cap on the bytes the file may inflate to. */
   maxInflatedBytes: number;
+  /** Cap on the points of the judges' preview built in the same pass. */
+  previewMaxPoints: number;
 }
 
 /** `ok: true`: the report contract and, from the same pass, the judges' toolpath preview. `ok: false`: the file cannot be inspected; `reason` says why in a sentence for the entrant. */
@@ -33,7 +35,7 @@ export function inflatedLimitSentence(maxInflatedBytes: number): string {
 
 export default async function inspectTask(task: InspectTask): Promise<InspectTaskResult> {
   try {
-    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file), preview: true });
+    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file), preview: { maxPoints: task.previewMaxPoints } });
     let inflated = 0;
     const source = await readFileChunks(task.file, {
       push(chunk: Uint8Array) {

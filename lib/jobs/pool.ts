@@ -52,7 +52,7 @@ export async function poolThreadLimits(settings: JobSettings = jobSettings()) {
  * contract; rejects with InspectionRunError whose message is a sentence for the entrant.
  */
 export async function inspectInPool(file: string, options: InspectOptions, settings: JobSettings = jobSettings()): Promise<StoredInspectionJson> {
-  const task: InspectTask = { file, options, maxInflatedBytes: settings.maxInflatedBytes };
+  const task: InspectTask = { file, options, maxInflatedBytes: settings.maxInflatedBytes, previewMaxPoints: settings.previewMaxPoints };
   const signal = AbortSignal.timeout(settings.timeLimitMs);
   let result: InspectTaskResult;
   try {

@@ -18,6 +18,13 @@ export interface JobSettings {
   timeLimitMs: number;
   /** Heap cap of a pool thread (worker resourceLimits): the engine streams, so this is headroom. */
   heapMb: number;
+  /**
+   * Points in the judges' toolpath preview built by a job. The largest fixture's preview has about
+   * 38 000 (270 KB of JSON); 400 000 keeps ten times that, and keeps a 200 MB upload's preview near
+   * 3 MB instead of the engine's 3 M-point default (21.6 MB, ~400 MB of server memory to clone,
+   * check and store — measured with scripts/bench-entry-upload-memory.ts).
+   */
+  previewMaxPoints: number;
   /** Gzip input may inflate to at most this: four times the upload limit. */
   maxInflatedBytes: number;
   /** A running job's lease: renewed every third of it; a job whose lease passed is taken again. */
@@ -40,6 +47,7 @@ export function jobSettings(): JobSettings {
     workers: intEnv('HOTLAP_INSPECTION_WORKERS', 1),
     timeLimitMs: intEnv('HOTLAP_INSPECTION_TIME_LIMIT_MS', 10 * 60_000),
     heapMb: intEnv('HOTLAP_INSPECTION_HEAP_MB', 512, 64),
+    previewMaxPoints: intEnv('HOTLAP_PREVIEW_MAX_POINTS', 400_000),
     maxInflatedBytes: intEnv('HOTLAP_INSPECTION_MAX_INFLATED_BYTES', 4 * GCODE_MAX_BYTES),
     leaseMs: intEnv('HOTLAP_JOB_LEASE_MS', 60_000, 1000),
     maxAttempts: intEnv('HOTLAP_JOB_MAX_ATTEMPTS', 3),

@@ -53,6 +53,12 @@ describe('inspection pool', () => {
     expect(r285.filament.volume_mm3! / r175.filament.volume_mm3!).toBeCloseTo((2.85 / 1.75) ** 2, 4);
   });
 
+  it("the job's preview cap reaches the worker", async () => {
+    const { preview } = await inspectInPool(FIXTURE, {}, { ...base, previewMaxPoints: 1000 });
+    expect(preview!.stats.pointsIn).toBe(1000);
+    expect(preview!.warnings).toContain('The file has more than 1000 path points; the preview shows the first ones only.');
+  });
+
   it('a gzip that inflates past the cap fails with a sentence, not a full disk or heap', async () => {
     const bomb = path.join(dir, 'bomb.gcode.gz');
     fs.writeFileSync(bomb, gzipSync(Buffer.from('G1 X10 Y10 E0.1 F3000\n'.repeat(Math.ceil((3 * MB) / 22)))));
