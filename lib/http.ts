@@ -75,7 +75,8 @@ export function appOrigin(): string {
 
 /**
  * Refuses a state-changing request that a browser sent on behalf of another site.
- * - Origin present: it must be the app's own origin (another port of the same host is another origin).
+ * - Origin present: it must be the app's own origin (another port of the same host is another origin),
+ *   or the host the visitor reached this server under (originMatchesHost).
  * - Origin absent: Sec-Fetch-Site must be `same-origin` or `none` (typed into the address bar).
  * - Both absent: allowed. Browsers send Origin on every cross-origin POST/PUT/PATCH/DELETE and
  *   Sec-Fetch-Site on every request (Fetch standard, "append a request `Origin` header";
@@ -84,11 +85,26 @@ export function appOrigin(): string {
  *   non-browser client (curl, the tests' HTTP client) that holds its own cookies and cannot be
  *   tricked into riding someone else's session.
  */
+/**
+ * The page was served by this very server under the name the browser used (e.g. 127.0.0.1 where
+ * APP_URL says localhost): the browser sets Host from the URL it requested and a page cannot forge
+ * it, so an Origin whose host:port equals Host is this site as the visitor reached it. Another port
+ * or another name is another origin and still refused.
+ */
+function originMatchesHost(origin: string, host: string | null): boolean {
+  if (!host) return false;
+  try {
+    return new URL(origin).host === host.toLowerCase();
+  } catch {
+    return false;
+  }
+}
+
 export function checkOrigin(req: Request) {
   if (SAFE_METHODS.has(req.method)) return;
   const origin = req.headers.get('origin');
   const site = req.headers.get('sec-fetch-site');
-  const ok = origin !== null ? origin === appOrigin() : site === null || site === 'same-origin' || site === 'none';
+  const ok = origin !== null ? origin === appOrigin() || originMatchesHost(origin, req.headers.get('host')) : site === null || site === 'same-origin' || site === 'none';
   if (!ok) throw new HttpError(403, 'This request came from another site, so it was refused. Use the form on this site.', undefined, 'cross_origin');
 }
 

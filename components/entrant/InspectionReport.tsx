@@ -57,7 +57,8 @@ export function InspectionReport({ inspection, limitMm3s = null, audience = 'ent
                 {blockingFlags.some((x) => CLAIM_FLAGS.has(x.code)) && (
                   <p className="mt-2 text-sm" data-testid="claim-hint">Check the claimed time you entered against your timing (video or printer log) and correct it under “Edit details”; the file itself may be fine.</p>
                 )}
-                {(blockingRules.length > 0 || blockingFlags.some((x) => !CLAIM_FLAGS.has(x.code))) && (
+                {/* A copy of another entry's G-code is not fixed by slicing: the entrant uploads their own print's file. */}
+                {(blockingRules.length > 0 || blockingFlags.some((x) => !CLAIM_FLAGS.has(x.code) && x.code !== 'duplicate_gcode')) && (
                   <p className="mt-2 text-sm">Change the slicer settings named above, slice again and upload the new G-code.</p>
                 )}
               </>

@@ -24,7 +24,7 @@ test('an entrant fixes a blocked draft by editing its details on the draft page,
   expect(machine.status()).toBe(201);
   const [season] = await sql<{ id: number }>(dbFile, "SELECT id FROM seasons WHERE slug = 'frostbite-sprint'");
   const [cls] = await sql<{ id: number }>(dbFile, "SELECT id FROM classes WHERE season_id = ? AND slug = 'open-04'", [season.id]);
-  const gcode = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(FIXTURE)), Buffer.from(`\n; draft fixer ${crypto.randomUUID()}\n`)]));
+  const gcode = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(FIXTURE)), Buffer.from(`\nM117 draft fixer ${crypto.randomUUID()}\n`)]));
   const photo = await sharp({ create: { width: 600, height: 400, channels: 3, background: '#3b6e8f' } }).jpeg().toBuffer();
   const created = await page.request.post('/api/entries', {
     multipart: {

@@ -1,5 +1,8 @@
 import { test, expect } from '@playwright/test';
+import fs from 'node:fs';
 import path from 'node:path';
+import crypto from 'node:crypto';
+import { gunzipSync, gzipSync } from 'node:zlib';
 import sharp from 'sharp';
 import { signIn, demoEmail, readLatestMail } from './helpers';
 
@@ -80,8 +83,10 @@ test('an entrant registers a machine, records an extrusion-limit test, fixes a b
   await expect(page.getByTestId('entry-photos').getByRole('img')).toHaveCount(2);
   await page.screenshot({ path: test.info().outputPath('entrant-blocked.png'), fullPage: true });
 
-  // Fix: upload the compliant G-code
-  await page.getByLabel('New G-code').setInputFiles(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'));
+  // Fix: upload the compliant G-code — this entrant's own copy (a unique command; comments do not
+  // count), since other tests on the same server upload the same fixture and duplicates are flagged.
+  const own = gzipSync(Buffer.concat([gunzipSync(fs.readFileSync(path.join(FIXTURES, 'prusa-beacon-020.gcode.gz'))), Buffer.from(`\nM117 entrant e2e ${crypto.randomUUID()}\n`)]));
+  await page.getByLabel('New G-code').setInputFiles({ name: 'prusa-beacon-020.gcode.gz', mimeType: 'application/gzip', buffer: own });
   await page.getByRole('form', { name: 'Upload new files' }).getByRole('button', { name: 'Upload' }).click();
   await expect(summary).toContainText('No blocking problems', { timeout: 60_000 });
   await expect(page.getByTestId('key-figures')).toContainText('0.20 mm');

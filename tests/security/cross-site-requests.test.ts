@@ -65,6 +65,23 @@ describe('cross-site requests', () => {
     expect(await machineCount()).toBe(before + 2);
   });
 
+  it('the same server reached under another name (localhost where APP_URL says 127.0.0.1) is this site; a page on another name is not', async () => {
+    const before = await machineCount();
+    const byName = base.replace('127.0.0.1', 'localhost');
+    // The browser's Host and Origin agree: the visitor opened this server as http://localhost:PORT.
+    const cookie = (entrant as unknown as { cookieHeader(): string }).cookieHeader();
+    const same = await fetch(`${byName}/api/entrant/machines`, {
+      method: 'POST',
+      headers: { cookie, origin: byName, 'sec-fetch-site': 'same-origin', 'content-type': 'application/json' },
+      body: JSON.stringify({ ...machine, name: 'Reached by name' }),
+    });
+    expect(same.status).toBe(201);
+    // A page served from localhost posting to 127.0.0.1 is another origin (Host 127.0.0.1:PORT).
+    const other = await entrant.request('/api/entrant/machines', { method: 'POST', headers: { origin: byName, 'sec-fetch-site': 'cross-site' }, json: machine });
+    expect(other.status).toBe(403);
+    expect(await machineCount()).toBe(before + 1);
+  });
+
   it('attack: a cross-site post to sign-in or sign-out is refused too (next-auth goes through the same check)', async () => {
     const res = await entrant.request('/api/auth/signout', {
       method: 'POST',
