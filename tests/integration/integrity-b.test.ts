@@ -233,6 +233,32 @@ describe('re-inspection after a tightened rule', () => {
     const again = await clients.judge.post(`/api/judging/entries/${e.id}/decisions`, { decision: 'return', reasonCodes: ['other'], note: 'The tightened wall rule fails; re-slice with 3 walls.', expectedState: 'submitted' });
     expect(again.status, await again.clone().text()).toBe(201);
   });
+
+  it('a pulled-back entry cannot be verified while the re-inspection fails; once the rule is corrected and it passes again, it can', async () => {
+    const s = await season(['alpha']);
+    const a = await entrant('Della Marsh');
+    const e = await entry(s, a, 'submitted');
+    // Submitted through the app, the entry records the inspection it was submitted with.
+    await sql(dbFile, 'UPDATE entries SET submitted_inspection_id = (SELECT MAX(id) FROM inspections WHERE entry_id = ?) WHERE id = ?', [e.id, e.id]);
+    const verify = { decision: 'verify', reasonCodes: ['evidence_consistent'], note: 'Matches the video.', expectedState: 'submitted' };
+    expect((await clients.judge.post(`/api/judging/entries/${e.id}/decisions`, verify)).status).toBe(201);
+    const rules = (walls: number) => ({ rules: [{ metric: 'walls', comparator: 'eq', value: walls, severity: 'blocking', classId: null }], reinspect: true });
+    let prev = await lastInspectionId(e.id);
+    expect((await clients.organizer.put(`/api/organizer/seasons/${s.seasonId}/rules`, rules(3))).status).toBe(200);
+    await inspectionDone(e.id, prev);
+    await until('the pull-back', async () => (await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [e.id]))[0].state === 'submitted');
+    // The current inspection fails a blocking rule: no verification.
+    const refused = await clients.judge.post(`/api/judging/entries/${e.id}/decisions`, verify);
+    expect(refused.status).toBe(409);
+    // The organizer corrects the rule (the fixture prints 2 walls; PrusaSlicer settings, fixtures README) and re-inspects.
+    prev = await lastInspectionId(e.id);
+    expect((await clients.organizer.put(`/api/organizer/seasons/${s.seasonId}/rules`, rules(2))).status).toBe(200);
+    const passing = await inspectionDone(e.id, prev);
+    expect(passing.blocking_failures).toBe(0);
+    // The entrant changed nothing: the passing re-inspection of the submitted file is verifiable.
+    const ok = await clients.judge.post(`/api/judging/entries/${e.id}/decisions`, verify);
+    expect(ok.status, await ok.clone().text()).toBe(201);
+  });
 });
 
 describe('conflicts of interest', () => {
