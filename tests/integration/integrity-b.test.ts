@@ -237,7 +237,9 @@ describe('re-inspection after a tightened rule', () => {
   it('a pulled-back entry cannot be verified while the re-inspection fails; once the rule is corrected and it passes again, it can', async () => {
     const s = await season(['alpha']);
     const a = await entrant('Della Marsh');
-    const e = await entry(s, a, 'submitted');
+    // A fixture no other test uploads: a re-inspection also runs the duplicate check, and an earlier
+    // upload of the same G-code by another entrant would block it (PrusaSlicer cube, 2 walls, fixtures README).
+    const e = await entry(s, a, 'submitted', { fixture: 'prusa-cube20-relative-e.gcode.gz' });
     // Submitted through the app, the entry records the inspection it was submitted with.
     await sql(dbFile, 'UPDATE entries SET submitted_inspection_id = (SELECT MAX(id) FROM inspections WHERE entry_id = ?) WHERE id = ?', [e.id, e.id]);
     const verify = { decision: 'verify', reasonCodes: ['evidence_consistent'], note: 'Matches the video.', expectedState: 'submitted' };
@@ -250,7 +252,7 @@ describe('re-inspection after a tightened rule', () => {
     // The current inspection fails a blocking rule: no verification.
     const refused = await clients.judge.post(`/api/judging/entries/${e.id}/decisions`, verify);
     expect(refused.status).toBe(409);
-    // The organizer corrects the rule (the fixture prints 2 walls; PrusaSlicer settings, fixtures README) and re-inspects.
+    // The organizer corrects the rule (the fixture prints 2 walls) and re-inspects.
     prev = await lastInspectionId(e.id);
     expect((await clients.organizer.put(`/api/organizer/seasons/${s.seasonId}/rules`, rules(2))).status).toBe(200);
     const passing = await inspectionDone(e.id, prev);
