@@ -75,16 +75,18 @@ async function main() {
     for (const t of targets) {
       const url = server.url + t.path;
       let etag: string | null = null;
+      let kept = '';
       for (let i = 0; i < 20; i++) {
         const res = await fetch(url);
         etag = res.headers.get('etag');
+        kept = res.headers.get('x-cache') ?? '';
         await res.arrayBuffer();
       }
       const headers = t.revalidate && etag ? { 'if-none-match': etag } : undefined;
       const r = await autocannon({ url, connections, duration: seconds, headers });
       // 304 counts as an answer for a revalidating client; 404 is the not-found page's own answer.
       const expected = t.revalidate ? r['3xx'] : t.path === '/no-such-page' ? r['4xx'] : r['2xx'];
-      results.push({ label: t.label, rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts });
+      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts });
     }
   } finally {
     await server.stop();
@@ -92,9 +94,9 @@ async function main() {
   }
   const base = results[0].rps;
   console.log(`\nautocannon: ${connections} connections, ${seconds} s per route, ${entries} generated entries`);
-  console.log('route'.padEnd(32) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'unexpected'.padStart(12));
+  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'unexpected'.padStart(12));
   for (const r of results) {
-    console.log(r.label.padEnd(32) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + String(r.bad).padStart(12));
+    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + String(r.bad).padStart(12));
   }
   console.log(`load average after: ${load()}`);
   if (profileDir) console.log(`CPU profiles in ${path.resolve(profileDir)}`);
