@@ -138,6 +138,20 @@ describe('a re-inspection and a season transition', () => {
   });
 });
 
+describe('the session plays no part', () => {
+  it('a signed-in member gets the same kept answer and ETag as an anonymous visitor, and no cookie is set', async () => {
+    const path = '/api/v1/seasons/frostbite-sprint/classes/open-04/standings';
+    const { etag } = await settled<Standings>(path);
+    const judge = new Client(base);
+    expect((await judge.signIn(demoEmail('judge'), DEMO_PASSWORD)).status).toBe(200);
+    const res = await judge.request(path, { headers: { 'if-none-match': etag } });
+    expect(res.status).toBe(304);
+    expect(res.headers.get('x-cache')).toBe('HIT');
+    expect(res.headers.get('set-cookie')).toBeNull();
+    expect(res.headers.get('vary') ?? '').not.toMatch(/cookie/i);
+  });
+});
+
 describe('what is never kept', () => {
   it('an error answer is built each time, and a season that appears is found at once', async () => {
     const s = await insertSeason(db, { state: 'draft', classes: ['open'] });
