@@ -124,9 +124,10 @@ export interface Server {
   stop(): Promise<void>;
 }
 
-export async function startApp(gen: Generated, port: number): Promise<Server> {
+/** `next start` on the generated database; `nodeFlags` (--cpu-prof…) go before the script, as NODE_OPTIONS refuses some. */
+export async function startApp(gen: Generated, port: number, nodeFlags: string[] = []): Promise<Server> {
   if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` first (NEXT_DIST_DIR selects the build folder).');
-  const child: ChildProcess = spawn(process.execPath, [path.join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
+  const child: ChildProcess = spawn(process.execPath, [...nodeFlags, path.join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
     cwd: ROOT,
     env: { ...process.env, ...gen.env, NODE_ENV: 'production' },
     stdio: ['ignore', 'pipe', 'pipe'],
@@ -136,8 +137,10 @@ export async function startApp(gen: Generated, port: number): Promise<Server> {
   return {
     url,
     async stop() {
+      // Waits for the exit (up to 5 s), so that files the server writes on the way out (CPU profiles) are complete.
+      const exited = new Promise((ok) => child.once('exit', ok));
       child.kill('SIGTERM');
-      await new Promise((r) => setTimeout(r, 300));
+      await Promise.race([exited, new Promise((ok) => setTimeout(ok, 5000))]);
     },
   };
 }

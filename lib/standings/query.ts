@@ -8,6 +8,10 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { getSequelize } from '@/lib/db';
 import type { StandingsQuery, SortKey } from './params';
 import { STANDINGS_TRIGGERS } from '@/migrations/20261201-0402-standings-version';
+import { PUBLIC_READ_TRIGGERS } from '@/migrations/20261203-1801-standings-version-public-reads';
+
+/** Every trigger that bumps `standings_version`; without all of them the counter can miss a change. */
+const TRIGGER_NAMES = [...new Set([...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS].map(([name]) => name))];
 
 /** One ranked row, snake_case as the API and CSV publish it. */
 export interface StandingsRow {
@@ -156,11 +160,17 @@ const CACHE_CLASSES = 32;
 const cache = new Map<string, { version: number; rows: Promise<StandingsRow[]> }>();
 let triggersChecked: boolean | null = null;
 
-async function changeVersion(): Promise<number | null> {
+/**
+ * The database's standings change counter, or null when its triggers are missing (then nothing may
+ * be cached on it). Read from the database on every call, so several web servers sharing the
+ * database see each other's writes at once.
+ */
+export async function standingsVersion(): Promise<number | null> {
   const seq = getSequelize();
   if (triggersChecked === null) {
-    const [t] = await seq.query<{ n: number }>("SELECT COUNT(*) AS n FROM sqlite_master WHERE type = 'trigger' AND name LIKE 'standings_bump_%'", { type: QueryTypes.SELECT });
-    triggersChecked = Number(t.n) >= STANDINGS_TRIGGERS.length;
+    const present = await seq.query<{ name: string }>("SELECT name FROM sqlite_master WHERE type = 'trigger' AND name LIKE 'standings_bump_%'", { type: QueryTypes.SELECT });
+    const names = new Set(present.map((t) => t.name));
+    triggersChecked = TRIGGER_NAMES.every((n) => names.has(n));
     if (!triggersChecked) console.warn('standings: change triggers are missing (a table was rebuilt?); ranking every request without the cache.');
   }
   if (!triggersChecked) return null;
@@ -171,7 +181,7 @@ async function changeVersion(): Promise<number | null> {
 export async function rankedRows(ref: ClassRef, opts: { transaction?: Transaction } = {}): Promise<StandingsRow[]> {
   // Inside a caller's transaction the rows must be what that transaction sees: no cache.
   if (opts.transaction) return computeRanked(ref, opts.transaction);
-  const version = ref.frozen ? -1 : await changeVersion();
+  const version = ref.frozen ? -1 : await standingsVersion();
   if (version === null) return computeRanked(ref);
   const key = `${ref.frozen ? 'f' : 'l'}:${ref.seasonId}:${ref.classId}`;
   const hit = cache.get(key);

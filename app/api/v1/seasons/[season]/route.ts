@@ -1,5 +1,5 @@
 import { route } from '@/lib/http';
-import { cachedJson, CACHE_FROZEN, CACHE_LIVE } from '@/lib/standings/http';
+import { CACHE_FROZEN, CACHE_LIVE, jsonAnswer, versionedResponse } from '@/lib/standings/http';
 import { parseSlug, seasonDetail } from '@/lib/standings/views';
 import { rejectQuery } from '@/lib/standings/apiParams';
 
@@ -7,6 +7,9 @@ import { rejectQuery } from '@/lib/standings/apiParams';
 export const GET = route(async (req, ctx: { params: Promise<{ season: string }> }) => {
   rejectQuery(req);
   const { season } = await ctx.params;
-  const body = await seasonDetail(parseSlug(season, 'season'));
-  return cachedJson(req, body, body.season.frozen ? CACHE_FROZEN : CACHE_LIVE);
+  const slug = parseSlug(season, 'season');
+  return versionedResponse(req, async () => {
+    const body = await seasonDetail(slug);
+    return jsonAnswer(body, body.season.frozen ? CACHE_FROZEN : CACHE_LIVE);
+  });
 });

@@ -1,5 +1,5 @@
 import { route } from '@/lib/http';
-import { cachedJson, cachedResponse, CACHE_FROZEN, CACHE_LIVE } from '@/lib/standings/http';
+import { CACHE_FROZEN, CACHE_LIVE, jsonAnswer, versionedResponse } from '@/lib/standings/http';
 import { parseStandingsQuery } from '@/lib/standings/params';
 import { classStandings, parseSlug } from '@/lib/standings/views';
 import { standingsCsv } from '@/lib/standings/csv';
@@ -14,13 +14,18 @@ export const GET = route(async (req, ctx: { params: Promise<{ season: string; cl
   const cls = parseSlug(p.class, 'class');
   const q = parseStandingsQuery(new URL(req.url).searchParams);
   const csv = q.format === 'csv';
-  const view = await classStandings(season, cls, q, { all: csv && !q.paged });
-  const policy = view.season.frozen ? CACHE_FROZEN : CACHE_LIVE;
-  if (csv) {
-    return cachedResponse(req, standingsCsv(view.page.rows), 'text/csv; charset=utf-8', policy, {
-      'Content-Disposition': `attachment; filename="${season}-${cls}-standings.csv"`,
-    });
-  }
-  const { rows, ...paging } = view.page;
-  return cachedJson(req, { season: view.season, class: view.class, ...paging, rows }, policy);
+  return versionedResponse(req, async () => {
+    const view = await classStandings(season, cls, q, { all: csv && !q.paged });
+    const policy = view.season.frozen ? CACHE_FROZEN : CACHE_LIVE;
+    if (csv) {
+      return {
+        body: standingsCsv(view.page.rows),
+        contentType: 'text/csv; charset=utf-8',
+        policy,
+        extra: { 'Content-Disposition': `attachment; filename="${season}-${cls}-standings.csv"` },
+      };
+    }
+    const { rows, ...paging } = view.page;
+    return jsonAnswer({ season: view.season, class: view.class, ...paging, rows }, policy);
+  });
 });

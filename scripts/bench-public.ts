@@ -1,0 +1,111 @@
+/**
+ * Public reads under load, in one run: a fresh SQLite with N generated entries (default 50 000,
+ * scripts/bench-standings.ts), the built app on 127.0.0.1, then autocannon against a static file and
+ * each public route in turn. Prints req/s, p50 and p99 latency and the rate as a share of the static
+ * file's. A measurement to read, not a test: nothing here passes or fails.
+ *
+ *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL]
+ *
+ * --only LABEL measures the static file and the routes whose label contains LABEL.
+ * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import autocannon from 'autocannon';
+import sqlite3 from 'sqlite3';
+import { arg, generate, startApp } from './bench-standings';
+
+function option(name: string): string | undefined {
+  const i = process.argv.indexOf(`--${name}`);
+  return i > 0 ? process.argv[i + 1] : undefined;
+}
+
+async function firstVerifiedEntry(dbFile: string, season: string, cls: string): Promise<number> {
+  const db = new sqlite3.Database(dbFile);
+  const row = await new Promise<{ id: number }>((ok, fail) =>
+    db.get(
+      "SELECT e.id FROM entries e JOIN seasons s ON s.id = e.season_id JOIN classes c ON c.id = e.class_id WHERE s.slug = ? AND c.slug = ? AND e.state = 'verified' ORDER BY e.claimed_time_ms LIMIT 1",
+      [season, cls],
+      (e, r) => (e ? fail(e) : ok(r as { id: number })),
+    ),
+  );
+  await new Promise<void>((ok) => db.close(() => ok()));
+  return row.id;
+}
+
+interface Target {
+  label: string;
+  path: string;
+  /** Send the ETag of a first answer back as If-None-Match (a revalidating client). */
+  revalidate?: boolean;
+}
+
+const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
+
+async function main() {
+  const entries = arg('entries', 50_000);
+  const connections = arg('connections', 20);
+  const seconds = arg('seconds', 10);
+  const profileDir = option('profile');
+  const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 52;
+  console.log(`load average before: ${load()} (${os.cpus().length} cores)`);
+  const gen = await generate(entries, port);
+  if (profileDir) fs.mkdirSync(profileDir, { recursive: true });
+  const cls = 'open-04';
+  const entryId = await firstVerifiedEntry(gen.dbFile, gen.season, cls);
+  const api = `/api/v1/seasons/${gen.season}/classes/${cls}/standings`;
+  const targets: Target[] = [
+    { label: 'static file /favicon.svg', path: '/favicon.svg' },
+    { label: 'home page', path: '/' },
+    { label: 'season page', path: `/seasons/${gen.season}` },
+    { label: 'class standings page', path: `/seasons/${gen.season}/classes/${cls}` },
+    { label: 'entry page', path: `/entries/${entryId}` },
+    { label: 'standings API', path: api },
+    { label: 'standings API, If-None-Match', path: api, revalidate: true },
+    { label: 'standings CSV', path: `${api}?format=csv` },
+    { label: 'seasons API', path: '/api/v1/seasons' },
+    { label: 'not-found page', path: '/no-such-page' },
+  ];
+  const only = option('only');
+  if (only) targets.splice(1, targets.length, ...targets.slice(1).filter((t) => t.label.includes(only)));
+  const server = await startApp(gen, port, profileDir ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(profileDir)}`] : []);
+  const results: { label: string; rps: number; p50: number; p99: number; bad: number }[] = [];
+  try {
+    for (const t of targets) {
+      const url = server.url + t.path;
+      let etag: string | null = null;
+      let kept = '';
+      for (let i = 0; i < 20; i++) {
+        const res = await fetch(url);
+        etag = res.headers.get('etag');
+        kept = res.headers.get('x-cache') ?? '';
+        await res.arrayBuffer();
+      }
+      const headers = t.revalidate && etag ? { 'if-none-match': etag } : undefined;
+      const r = await autocannon({ url, connections, duration: seconds, headers });
+      // 304 counts as an answer for a revalidating client; 404 is the not-found page's own answer.
+      const expected = t.revalidate ? r['3xx'] : t.path === '/no-such-page' ? r['4xx'] : r['2xx'];
+      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts });
+    }
+  } finally {
+    await server.stop();
+    fs.rmSync(gen.dataDir, { recursive: true, force: true });
+  }
+  const base = results[0].rps;
+  console.log(`\nautocannon: ${connections} connections, ${seconds} s per route, ${entries} generated entries`);
+  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'unexpected'.padStart(12));
+  for (const r of results) {
+    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + String(r.bad).padStart(12));
+  }
+  console.log(`load average after: ${load()}`);
+  if (profileDir) console.log(`CPU profiles in ${path.resolve(profileDir)}`);
+}
+
+main().then(
+  () => process.exit(0),
+  (err) => {
+    console.error(err instanceof Error ? err.stack : err);
+    process.exit(1);
+  },
+);
