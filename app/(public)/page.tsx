@@ -15,7 +15,7 @@ export default async function HomePage() {
         <p className="mt-4 max-w-2xl text-ink-300">
           Every entry&apos;s file is inspected against the season&apos;s rulebook: volumetric flow, layer height, walls,
           top and bottom layers, infill and an independent print-time estimate. Judges see the evidence side by side;
-          standings show only verified runs.
+          standings show only verified prints.
         </p>
         <div className="mt-6 flex gap-3">
           <Link href="/seasons" className="btn-primary">Browse seasons</Link>

@@ -2,7 +2,7 @@
 /**
  * The standings table: @tanstack/react-table in manual mode — sorting, filtering and paging run on
  * the server through /api/v1/…/standings, and the URL holds the table state so a link reproduces
- * the view. A row with several verified runs expands to show the entrant's other runs.
+ * the view. A row with several verified prints expands to show the entrant's other prints.
  */
 import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import Link from 'next/link';
@@ -111,7 +111,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
       if (!res.ok) throw new Error(body.error);
       setOlder((o) => ({ ...o, [row.entry_id]: (body.entries as OlderRun[]).filter((e) => e.entry_id !== row.entry_id) }));
     } catch (err) {
-      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other runs.' }));
+      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other prints.' }));
     }
   };
 
@@ -125,7 +125,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
             <Link href={`/entrants/${c.row.original.entrant_id}`}>{c.getValue()}</Link>
             {c.row.original.verified_entries > 1 && (
               <button type="button" className="ml-2 text-xs text-ink-600 underline" aria-expanded={!!older[c.row.original.entry_id]} onClick={() => toggleOlder(c.row.original)}>
-                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more run${c.row.original.verified_entries > 2 ? 's' : ''}`}
+                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more print${c.row.original.verified_entries > 2 ? 's' : ''}`}
               </button>
             )}
           </div>
@@ -253,8 +253,8 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
                     <tr className="bg-ink-50">
                       <td />
                       <td colSpan={columns.length - 1}>
-                        {runs === 'loading' ? 'Loading other runs…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
-                          <ul className="space-y-1 text-sm" aria-label={`Other runs of ${row.original.entrant}`}>
+                        {runs === 'loading' ? 'Loading other prints…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
+                          <ul className="space-y-1 text-sm" aria-label={`Other prints of ${row.original.entrant}`}>
                             {runs.map((r) => (
                               <li key={r.entry_id}>
                                 <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {formatNumber(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}

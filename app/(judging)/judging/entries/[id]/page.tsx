@@ -73,7 +73,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
         </div>
         <div className="card">
           <h2>Evidence</h2>
-          {entry.evidenceLink ? <p><a href={entry.evidenceLink} target="_blank" rel="noopener noreferrer" data-testid="evidence-link">Open the run’s video</a></p> : <p className="text-ink-600">No evidence link.</p>}
+          {entry.evidenceLink ? <p><a href={entry.evidenceLink} target="_blank" rel="noopener noreferrer" data-testid="evidence-link">Open the video of the print</a></p> : <p className="text-ink-600">No evidence link.</p>}
           {r.gcode && <p className="mt-2 text-sm"><a href={r.gcode.url}>Download the G-code</a> <span className="num text-ink-500">({(r.gcode.sizeBytes / 1024).toFixed(0)} KB)</span></p>}
           {entry.notes && <p className="mt-2 whitespace-pre-line text-sm text-ink-700">{entry.notes}</p>}
         </div>

@@ -40,7 +40,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
       </header>
 
       <section className="card space-y-2" aria-labelledby="h-run">
-        <h2 id="h-run">The run</h2>
+        <h2 id="h-run">The timed print</h2>
         <ul className="list-disc space-y-1 pl-5 text-sm">
           {testPiece && (
             <li>Print the test piece <strong>{testPiece.name}</strong> at 100 % scale: <span className="num">{testPiece.sizeXMm.toFixed(2)} × {testPiece.sizeYMm.toFixed(2)} × {testPiece.sizeZMm.toFixed(2)} mm</span>.</li>
@@ -49,7 +49,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
           <li>
             Evidence: {season.photosRequired} photo{season.photosRequired === 1 ? '' : 's'}
             {season.photoKinds?.length ? ` (${season.photoKinds.join('; ')})` : ''}
-            {season.videoRequired ? ', and a link to a video of the whole run' : ''}.
+            {season.videoRequired ? ', and a link to a video of the whole print' : ''}.
           </li>
           <li>At most {season.entryLimit} entr{season.entryLimit === 1 ? 'y' : 'ies'} per entrant and class; an entry counts once {season.verificationsRequired === 1 ? 'a judge verifies it' : `${season.verificationsRequired} judges verify it`}.</li>
           <li><strong>Blocking</strong> rules stop a submission while they fail; <strong>advisory</strong> rules flag the entry for the judges.</li>
