@@ -12,7 +12,7 @@ import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
 import type { StandingsPage, StandingsRow } from '@/lib/standings/query';
-import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
+import { formatDate, formatDurationMs, formatNumber, formatPageStatus } from '@/lib/format';
 
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
 const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
@@ -278,9 +278,12 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
       <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
         <button type="button" className="btn-quiet" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>Previous page</button>
         <span data-testid="page-status" className="text-sm text-ink-700">
-          Page {query.page} of {data.pages} · {data.total} ranked
+          {formatPageStatus(query.page, data.pages, data.total)}
         </span>
         <button type="button" className="btn-quiet" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>Next page</button>
+        {query.page > Math.max(1, data.pages) && (
+          <button type="button" className="btn-quiet" onClick={() => table.setPageIndex(Math.max(1, data.pages) - 1)}>Go to the last page</button>
+        )}
         <label className="ml-auto flex items-center gap-2 text-sm text-ink-700">
           Rows per page
           <select className="input w-auto" value={query.perPage} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>

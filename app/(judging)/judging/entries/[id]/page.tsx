@@ -1,6 +1,7 @@
 import Link from 'next/link';
 import { headers } from 'next/headers';
-import { notFound, forbidden } from 'next/navigation';
+import { notFound } from 'next/navigation';
+import { forbiddenBecause } from '@/components/refusal';
 import { requirePageRole } from '@/lib/auth/guard';
 import { clientIp } from '@/lib/http';
 import { HttpError } from '@/lib/errors';
@@ -13,6 +14,7 @@ import { MOTION_SYSTEM_LABELS, type MotionSystem, type ReviewDecision } from '@/
 import { formatDurationMs, formatDurationS, formatDateTime, formatNumber } from '@/lib/format';
 import { StatePill } from '@/components/StatePill';
 import { formatRuleMeasured } from '@/lib/inspection/rules';
+import { settingLabel, settingOutOfTolerance } from '@/lib/reviews/report';
 import { PhotoGallery } from '@/components/judging/PhotoGallery';
 import { LayerPreview } from '@/components/judging/LayerPreview';
 import { FlowChart } from '@/components/charts/FlowChart';
@@ -28,7 +30,8 @@ async function load(judgeId: number, id: number): Promise<EntryReview> {
     return await entryReview(judgeId, id, { ip: clientIp(await headers()) });
   } catch (err) {
     if (err instanceof HttpError && err.status === 404) notFound();
-    if (err instanceof HttpError && err.status === 403) forbidden();
+    // The 403 page says why (their own entry, a conflict of interest), not just "not for your role".
+    if (err instanceof HttpError && err.status === 403) forbiddenBecause(err.message);
     throw err;
   }
 }
@@ -137,8 +140,8 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
                 <thead><tr><th>Setting</th><th>Declared</th><th>Measured</th><th>How measured</th></tr></thead>
                 <tbody>
                   {insp.settings.map((s) => (
-                    <tr key={s.key} className={s.declared !== null && s.measured !== null && Math.abs(s.declared - s.measured) > 1e-6 ? 'bg-ember-50' : ''}>
-                      <td>{s.key.replace(/_/g, ' ')}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">
+                    <tr key={s.key} className={settingOutOfTolerance(s) ? 'bg-ember-50' : ''} data-off={settingOutOfTolerance(s) ? 'true' : undefined}>
+                      <td>{settingLabel(s.key)}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">
                         {s.detail}
                         {s.extraLoopLayers && (
                           <span className="block text-ink-700" data-testid="extra-loop-layers">

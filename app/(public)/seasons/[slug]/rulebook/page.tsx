@@ -9,7 +9,7 @@ import { metricById } from '@/lib/inspection/metrics';
 import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
-import { formatDateTime } from '@/lib/format';
+import { formatDateTime, formatSeasonWindow } from '@/lib/format';
 import { SeverityPill } from '@/components/SeverityPill';
 
 export async function generateMetadata({ params }: { params: Promise<{ slug: string }> }) {
@@ -35,7 +35,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
           <h1>Rulebook · {season.name}</h1>
           <StatePill state={season.state} />
         </div>
-        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}{season.timeZone !== 'UTC' ? ` (${season.timeZone} time)` : ''}</p>
+        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatSeasonWindow(season.opensAt, season.closesAt, season.timeZone)}</p>
         <SubscribeForm slug={season.slug} back={`/seasons/${season.slug}/rulebook`} subscribed={subscribed} signedIn={!!user} />
       </header>
 
