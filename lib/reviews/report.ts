@@ -72,6 +72,7 @@ export function headline(report: InspectionReport | null) {
     p95FlowMm3s: report?.flow.p95_mm3s ?? null,
     meanFlowMm3s: report?.flow.mean_mm3s ?? null,
     layers: report?.layers.count ?? null,
+    layerZMm: report?.layers.z_mm ?? [],
     layerHeightMm: report?.layers.height_mm ?? null,
     volumeMm3: report?.filament.volume_mm3 ?? null,
     massG: report?.filament.mass_g ?? null,

@@ -43,3 +43,38 @@ describe('settings table labels and highlighting', () => {
     expect(settingOutOfTolerance({ key: 'line_width_mm', declared: 0.45, measured: 0.5 })).toBe(false);
   });
 });
+
+describe('layer preview legend and readout', () => {
+  it('lists every flow band between the lowest and highest used, with no holes', async () => {
+    const { legendBands } = await import('@/components/judging/flowScale');
+    expect(legendBands([0, 1200, 0, 300, 0])).toEqual([{ i: 1, len: 1200 }, { i: 2, len: 0 }, { i: 3, len: 300 }]);
+    expect(legendBands([0, 0])).toEqual([]);
+  });
+  it('numbers layers as the report counts them; a level the report skips says so', async () => {
+    const { layerLabel } = await import('@/components/judging/flowScale');
+    const report = { zMm: [0.2, 0.4, 0.6], count: 3 };
+    // Preview levels: 0.2, 0.3 (a prime line the report leaves out), 0.4, 0.6.
+    expect(layerLabel(0.2, 0, 4, report)).toBe('Layer 1 / 3');
+    expect(layerLabel(0.3, 1, 4, report)).toBe('Not one of the 3 counted layers (prime line or purge)');
+    expect(layerLabel(0.6, 3, 4, report)).toBe('Layer 3 / 3');
+    expect(layerLabel(0.6, 3, 4, null)).toBe('Layer 4 / 4');
+    // A report whose Z list was cut short falls back to the preview's own numbering.
+    expect(layerLabel(0.6, 3, 4, { zMm: [0.2], count: 3 })).toBe('Layer 4 / 4');
+  });
+});
+
+describe('early season steps ask first', () => {
+  const season = { opensAt: '2027-03-01T17:00:00.000Z', closesAt: '2027-04-30T16:00:00.000Z', timeZone: 'Europe/Berlin' };
+  it('asks before opening or closing ahead of the planned time, naming that time in the season zone', async () => {
+    const { earlyTransitionQuestion } = await import('@/components/organizer/earlyTransition');
+    // 17:00 UTC on 1 Mar is 18:00 in Berlin (CET = UTC+1, IANA tz database).
+    expect(earlyTransitionQuestion('open', new Date('2027-02-20T00:00:00Z'), season)).toBe('Open entries now, before the planned opening on 1 Mar 2027, 18:00 (Europe/Berlin)? Entrants can submit from this moment.');
+    expect(earlyTransitionQuestion('judging', new Date('2027-04-01T00:00:00Z'), season)).toMatch(/^Close entries now, before the planned close on 30 Apr 2027, 18:00 \(Europe\/Berlin\)\?/);
+  });
+  it('does not ask on or after the planned time, nor for other steps', async () => {
+    const { earlyTransitionQuestion } = await import('@/components/organizer/earlyTransition');
+    expect(earlyTransitionQuestion('open', new Date('2027-03-01T17:00:00Z'), season)).toBeNull();
+    expect(earlyTransitionQuestion('judging', new Date('2027-05-01T00:00:00Z'), season)).toBeNull();
+    expect(earlyTransitionQuestion('final', new Date('2027-01-01T00:00:00Z'), season)).toBeNull();
+  });
+});

@@ -199,7 +199,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
       {insp?.previewUrl && (
         <section className="card">
           <h2 className="mb-3">Toolpath preview</h2>
-          <LayerPreview url={insp.previewUrl} />
+          <LayerPreview url={insp.previewUrl} reportLayers={{ zMm: insp.headline.layerZMm, count: insp.headline.layers }} />
         </section>
       )}
 
