@@ -1,7 +1,6 @@
 import Link from 'next/link';
 import { headers } from 'next/headers';
-import { notFound } from 'next/navigation';
-import { forbiddenBecause } from '@/components/refusal';
+import { notFound, forbidden } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth/guard';
 import { clientIp } from '@/lib/http';
 import { HttpError } from '@/lib/errors';
@@ -30,8 +29,7 @@ async function load(judgeId: number, id: number): Promise<EntryReview> {
     return await entryReview(judgeId, id, { ip: clientIp(await headers()) });
   } catch (err) {
     if (err instanceof HttpError && err.status === 404) notFound();
-    // The 403 page says why (their own entry, a conflict of interest), not just "not for your role".
-    if (err instanceof HttpError && err.status === 403) forbiddenBecause(err.message);
+    if (err instanceof HttpError && err.status === 403) forbidden();
     throw err;
   }
 }
