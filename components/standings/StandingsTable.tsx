@@ -43,6 +43,9 @@ interface OlderRun {
   date: string | null;
 }
 
+/** Columns left out on a phone, so rank, entrant, machine, time and peak flow fit the screen (the CSV keeps all). */
+const PHONE_HIDDEN = new Set(['motion', 'material', 'nozzle_mm', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
+
 export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
   const router = useRouter();
   const pathname = usePathname();
@@ -217,7 +220,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
                   const sortable = sortableIds.has(h.column.id) && h.column.getCanSort();
                   const dir = h.column.getIsSorted() || (h.column.id === 'rank' && !sorting.length ? 'asc' : false);
                   return (
-                    <th key={h.id} scope="col" aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
+                    <th key={h.id} scope="col" className={PHONE_HIDDEN.has(h.column.id) ? 'hidden sm:table-cell' : undefined} aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
                       {sortable ? (
                         <button
                           type="button"
@@ -247,7 +250,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
               return (
                 <Fragment key={row.id}>
                   <tr data-testid="standings-row" data-entry={row.original.entry_id}>
-                    {row.getVisibleCells().map((cell) => <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={PHONE_HIDDEN.has(cell.column.id) ? 'hidden sm:table-cell' : undefined}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
                   </tr>
                   {runs && (
                     <tr className="bg-ink-50">

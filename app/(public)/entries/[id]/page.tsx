@@ -41,8 +41,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
           Test piece printed on <Link href={`/machines/${e.machine.id}`}>{e.machine.name}</Link>
         </h1>
         <p className="text-ink-700">
-          {material}
-          {e.material_name ? ` (${e.material_name})` : ''} · <span className="num">{e.nozzle_mm} mm</span> nozzle · entered by{' '}
+          {e.material_name || material} · {e.nozzle_mm} mm nozzle · entered by{' '}
           <Link href={`/entrants/${e.entrant.id}`}>{e.entrant.name}</Link> in {e.class.name} · submitted {formatDate(e.submitted_at)}
         </p>
         {e.reinspection && (
@@ -111,7 +110,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
                 <dd className="num text-lg font-semibold">{formatDurationMs(e.time_ms)}</dd>
               </div>
               <div>
-                <dt className="text-ink-600">Place in {e.class.name}</dt>
+                <dt className="text-ink-600">Place in the class</dt>
                 <dd className={e.rank ? 'num text-lg font-semibold' : 'text-ink-700'}>
                   {e.status !== 'verified'
                     ? 'Not ranked while the judges decide again'
