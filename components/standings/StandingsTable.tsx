@@ -43,8 +43,8 @@ interface OlderRun {
   date: string | null;
 }
 
-/** Columns left out on a phone, so rank, entrant, machine, time and peak flow fit the screen (the CSV keeps all). */
-const PHONE_HIDDEN = new Set(['motion', 'material', 'nozzle_mm', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
+/** Columns left out on a phone, so rank, entrant, machine and time fit the screen (the entry page and the CSV have the rest). */
+const PHONE_HIDDEN = new Set(['motion', 'material', 'nozzle_mm', 'peak_flow_mm3s', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
 
 export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
   const router = useRouter();
@@ -272,7 +272,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
               );
             })}
             {!data.rows.length && (
-              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">No verified entry matches this view.</td></tr>
+              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">{query.page > Math.max(1, data.pages) ? 'This page is past the last one: go to the last page.' : 'No verified entry matches this view.'}</td></tr>
             )}
           </tbody>
         </table>
