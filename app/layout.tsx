@@ -36,7 +36,7 @@ export default async function RootLayout({ children }: { children: React.ReactNo
         <SiteHeader />
         <main id="main" className="mx-auto max-w-6xl px-4 py-8">{children}</main>
         <footer className="mx-auto max-w-6xl px-4 pb-10 text-sm text-ink-500">
-          Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a run.
+          Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a timed print.
         </footer>
       </body>
     </html>

@@ -6,7 +6,7 @@ export function SafetyNotes({ compact = false }: { compact?: boolean }) {
       <ul className="list-disc space-y-1 pl-5 text-sm">
         <li>Nozzles run at 200–300 °C and beds at up to 110 °C: let them cool before touching the print or the hotend.</li>
         <li>Never disable thermal-runaway protection or any other firmware safety feature to go faster.</li>
-        <li>Do not leave fast runs unattended; fast, heavy moving parts can pinch fingers and knock things over.</li>
+        <li>Do not leave fast prints unattended; fast, heavy moving parts can pinch fingers and knock things over.</li>
         <li>Ventilate when printing styrene-bearing materials such as ABS and ASA, and keep fumes out of living spaces.</li>
         {!compact && <li>Mains wiring of printer kits and heated beds is for people qualified under local electrical codes.</li>}
       </ul>

@@ -47,3 +47,20 @@ export function formatDateTime(iso: string | Date | null | undefined, timeZone =
   if (!iso) return '—';
   return new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone }).format(new Date(iso)) + (timeZone === 'UTC' ? ' UTC' : '');
 }
+
+/**
+ * A season's entry window in the season's own time zone, the zone named once at the end:
+ * "1 Dec 2026, 18:00 – 12 Jan 2027, 18:00 (Europe/Berlin)"; `withTime: false` gives the dates only.
+ */
+export function formatSeasonWindow(opens: string | Date | null | undefined, closes: string | Date | null | undefined, timeZone = 'UTC', withTime = true): string {
+  const one = (d: string | Date | null | undefined) =>
+    d ? new Intl.DateTimeFormat('en-GB', withTime ? { dateStyle: 'medium', timeStyle: 'short', timeZone } : { dateStyle: 'medium', timeZone }).format(new Date(d)) : '—';
+  return `${one(opens)} – ${one(closes)} (${timeZone})`;
+}
+
+/** The standings pager's status line; a page past the end (an old or edited link) says so instead of "Page 99 of 1". */
+export function formatPageStatus(page: number, pages: number, total: number): string {
+  const last = Math.max(1, pages);
+  if (page > last) return `Page ${page} does not exist: the last page is ${last} · ${total} ranked`;
+  return `Page ${page} of ${last} · ${total} ranked`;
+}

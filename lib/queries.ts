@@ -32,6 +32,6 @@ export async function publicSeasons() {
   });
   return seasons.map((s) => {
     const classes = ((s as unknown as { classes: ContestClass[] }).classes ?? []).sort((a, b) => a.displayOrder - b.displayOrder);
-    return { id: s.id, slug: s.slug, name: s.name, hostName: s.hostName, state: s.state, opensAt: s.opensAt.toISOString(), closesAt: s.closesAt.toISOString(), description: s.description, classes: classes.map((c) => ({ name: c.name, slug: c.slug })) };
+    return { id: s.id, slug: s.slug, name: s.name, hostName: s.hostName, state: s.state, opensAt: s.opensAt.toISOString(), closesAt: s.closesAt.toISOString(), timeZone: s.timeZone, description: s.description, classes: classes.map((c) => ({ name: c.name, slug: c.slug })) };
   });
 }

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { connection } from 'next/server';
 import { publicSeasons } from '@/lib/queries';
 import { StatePill } from '@/components/StatePill';
-import { formatDate } from '@/lib/format';
+import { formatDate, formatSeasonWindow } from '@/lib/format';
 
 export default async function HomePage() {
   await connection();
@@ -15,7 +15,7 @@ export default async function HomePage() {
         <p className="mt-4 max-w-2xl text-ink-300">
           Every entry&apos;s file is inspected against the season&apos;s rulebook: volumetric flow, layer height, walls,
           top and bottom layers, infill and an independent print-time estimate. Judges see the evidence side by side;
-          standings show only verified runs.
+          standings show only verified prints.
         </p>
         <div className="mt-6 flex gap-3">
           <Link href="/seasons" className="btn-primary">Browse seasons</Link>
@@ -34,7 +34,7 @@ export default async function HomePage() {
                   <Link href={`/seasons/${s.slug}`} className="text-lg font-semibold">{s.name}</Link>
                   <StatePill state={s.state} />
                 </div>
-                <p className="text-sm text-ink-600">{s.hostName} · {formatDate(s.opensAt)} – {formatDate(s.closesAt)}</p>
+                <p className="text-sm text-ink-600">{s.hostName} · {formatSeasonWindow(s.opensAt, s.closesAt, s.timeZone, false)}</p>
                 <p className="mt-2 text-sm text-ink-700">{s.classes.map((c) => c.name).join(' · ')}</p>
               </li>
             ))}

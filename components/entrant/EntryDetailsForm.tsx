@@ -41,7 +41,7 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
     e.preventDefault();
     const local: Record<string, string> = {};
     if (!v.claimedTime.trim()) local.claimedTime = 'Enter the claimed time as h:mm:ss.t.';
-    if (entry.season.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your run.';
+    if (entry.season.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your print.';
     setErrors(local);
     if (Object.keys(local).length) return;
     setBusy(true);

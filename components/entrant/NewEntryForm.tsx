@@ -1,6 +1,6 @@
 'use client';
 /**
- * The multi-step entry form: class and machine → the run → files. The last step uploads
+ * The multi-step entry form: class and machine → the timed print → files. The last step uploads
  * everything in one request (with progress); the server creates the draft only when every check
  * passes, then the inspection starts and the entry page shows it.
  */
@@ -15,7 +15,7 @@ import { UploadBar } from './UploadBar';
 
 type Options = Awaited<ReturnType<typeof entryFormOptions>>;
 
-const STEPS = ['Class and machine', 'Your run', 'Files'] as const;
+const STEPS = ['Class and machine', 'Your timed print', 'Files'] as const;
 const STEP_OF_FIELD: Record<string, number> = {
   seasonId: 0, classId: 0, machineId: 0, materialFamily: 0, materialName: 0, nozzleMm: 0,
   claimedTime: 1, evidenceUrl: 1, measuredXMm: 1, measuredYMm: 1, measuredZMm: 1, notes: 1,
@@ -61,7 +61,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
     if (step === 0 && !classId) local.classId = 'This machine is not eligible for any class of this season.';
     if (step === 0 && full) local.classId = `You have used all ${s!.entryLimit} entries of ${chosen!.name}; withdraw a draft to make room, or choose another class.`;
     if (step === 1 && !v.claimedTime.trim()) local.claimedTime = 'Enter the claimed time as h:mm:ss.t.';
-    if (step === 1 && s!.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your run.';
+    if (step === 1 && s!.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your print.';
     else if (step === 1 && v.evidenceUrl.trim() && !/^https?:\/\/\S+$/i.test(v.evidenceUrl.trim())) local.evidenceUrl = 'The evidence link must start with http:// or https://.';
     if (step === 2 && !gcode) local.gcode = 'Add the G-code (.gcode or .gcode.gz).';
     setErrors(local);
@@ -165,7 +165,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
 
       {step === 1 && (
         <fieldset className="space-y-4">
-          <legend className="sr-only">Your run</legend>
+          <legend className="sr-only">Your timed print</legend>
           <div>
             <label htmlFor="e-claimedTime" className="label">Claimed time (h:mm:ss.t)</label>
             <input id="e-claimedTime" className="input num" placeholder="0:24:31.4" value={v.claimedTime} onChange={set('claimedTime')} aria-invalid={errors.claimedTime ? true : undefined} aria-describedby={`e-claimedTime-hint${errors.claimedTime ? ' e-claimedTime-error' : ''}`} />

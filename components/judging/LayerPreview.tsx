@@ -6,7 +6,7 @@
  * 200-layer file stays smooth. The layer below is drawn faintly for context.
  */
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
-import { FLOW_COLOURS, bucketLabel, flowColour } from './flowScale';
+import { FLOW_COLOURS, bucketLabel, flowColour, layerLabel, legendBands } from './flowScale';
 
 interface PreviewLayer { zMm: number; paths: number[]; extrudedMm: number; peakFlowMm3s: number }
 interface Preview {
@@ -46,7 +46,8 @@ function decode(layer: PreviewLayer, buckets: number): (Path2D | null)[] {
   return out;
 }
 
-export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?: number }) {
+/** `reportLayers`: the report's layer Z list and count, so the readout numbers layers as the report does. */
+export function LayerPreview({ url, initialLayer, reportLayers = null }: { url: string; initialLayer?: number; reportLayers?: { zMm: number[]; count: number | null } | null }) {
   const [data, setData] = useState<Preview | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [bytes, setBytes] = useState(0);
@@ -137,7 +138,8 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
   }, [data, layer, showBelow, wholePlate, paths]);
 
   const current = data?.layers[layer];
-  const usedBuckets = useMemo(() => (data ? data.bucketLengthMm.map((len, i) => ({ i, len })).filter((b) => b.len > 0) : []), [data]);
+  const usedBuckets = useMemo(() => (data ? legendBands(data.bucketLengthMm) : []), [data]);
+  const readout = data && current ? layerLabel(current.zMm, layer, data.layers.length, reportLayers) : '';
 
   if (error) return <p className="field-error" role="alert">{error}</p>;
   if (!data) return <p className="text-sm text-ink-500" data-testid="preview-loading">Loading the toolpath preview…</p>;
@@ -157,13 +159,13 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
             value={layer}
             onChange={(e) => setLayer(Number(e.target.value))}
             className="w-72 accent-ember-600"
-            aria-valuetext={`Layer ${layer + 1} of ${data.layers.length}, Z ${current?.zMm} mm`}
+            aria-valuetext={`${readout}, Z ${current?.zMm} mm`}
             data-testid="layer-slider"
           />
           <button type="button" className="btn-quiet px-2 py-1" onClick={() => setLayer((l) => Math.min(data.layers.length - 1, l + 1))} aria-label="Next layer">▶</button>
         </div>
         <p className="num mt-2 text-sm text-ink-700" data-testid="layer-readout">
-          Layer {layer + 1} / {data.layers.length} · Z {current?.zMm.toFixed(2)} mm · peak {current?.peakFlowMm3s.toFixed(1)} mm³/s · {current ? (current.extrudedMm / 1000).toFixed(2) : 0} m extruded
+          {readout} · Z {current?.zMm.toFixed(2)} mm · peak {current?.peakFlowMm3s.toFixed(1)} mm³/s · {current ? (current.extrudedMm / 1000).toFixed(2) : 0} m extruded
         </p>
         <label className="mt-1 flex items-center gap-2 text-sm text-ink-600">
           <input type="checkbox" checked={showBelow} onChange={(e) => setShowBelow(e.target.checked)} /> Show the layer below
@@ -176,7 +178,7 @@ export function LayerPreview({ url, initialLayer }: { url: string; initialLayer?
         <h3 className="text-sm font-semibold text-ink-700">Commanded flow, mm³/s</h3>
         <ul className="mt-2 space-y-1 text-sm" data-testid="flow-legend">
           {usedBuckets.map(({ i, len }) => (
-            <li key={i} className="flex items-center gap-2">
+            <li key={i} className={`flex items-center gap-2${len > 0 ? '' : ' opacity-50'}`}>
               <span className="inline-block h-3 w-6 rounded-sm" style={{ background: FLOW_COLOURS[Math.min(i, FLOW_COLOURS.length - 1)] }} aria-hidden />
               <span className="num">{bucketLabel(data.flowBucketsMm3s, i)}</span>
               <span className="num text-xs text-ink-500">{(len / 1000).toFixed(1)} m</span>

@@ -6,6 +6,7 @@ import { SEASON_STATES, type SeasonState } from '@/lib/domain';
 import { TRANSITION_LABELS } from '@/lib/seasons/schemas';
 import { callApi } from '@/components/organizer/api';
 import { Check, Outcome } from '@/components/organizer/controls';
+import { earlyTransitionQuestion } from '@/components/organizer/earlyTransition';
 
 
 export function LifecyclePanel(props: {
@@ -14,6 +15,8 @@ export function LifecyclePanel(props: {
   next: { to: SeasonState; blockers: string[] } | null;
   subscribers: number;
   canReinspect: boolean;
+  /** The planned window, to ask before opening or closing early (ISO instants, IANA zone). */
+  window?: { opensAt: string; closesAt: string; timeZone: string };
 }) {
   const router = useRouter();
   const [notify, setNotify] = useState(true);
@@ -24,6 +27,8 @@ export function LifecyclePanel(props: {
   async function go() {
     if (!props.next) return;
     if (props.next.to === 'final' && !window.confirm('Publish final standings? They are frozen from then on.')) return;
+    const early = props.window ? earlyTransitionQuestion(props.next.to, new Date(), props.window) : null;
+    if (early && !window.confirm(early)) return;
     setBusy(true);
     setOutcome({});
     const res = await callApi(`/api/organizer/seasons/${props.seasonId}/transition`, 'POST', { to: props.next.to, notify, note });

@@ -123,7 +123,7 @@ export function RulebookEditor(props: {
               <fieldset disabled={locked} className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
                 <Select id={id('scope')} label="Applies to" value={r.classId} onChange={(v) => update(r.key, { classId: v })} options={classOptions} error={e('classId')} />
                 <Select id={id('metric')} label="Metric" value={r.metric} error={e('metric')}
-                  onChange={(v) => update(r.key, { metric: v, ...(metricById(v)?.kind === 'boolean' ? { comparator: 'eq', value: r.value === '0' ? '0' : '1' } : {}) })}
+                  onChange={(v) => update(r.key, { metric: v, ...(metricById(v)?.kind === 'boolean' ? { comparator: 'eq', value: '0' } : {}) })}
                   options={METRICS.map((m) => ({ value: m.id, label: m.unit ? `${m.label} (${m.unit})` : m.label }))} />
                 <Select id={id('comparator')} label="Must be" value={r.comparator} onChange={(v) => update(r.key, { comparator: v })} error={e('comparator')}
                   options={COMPARATORS.map((c) => ({ value: c, label: COMPARATOR_LABELS[c] }))} />

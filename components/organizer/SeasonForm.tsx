@@ -95,7 +95,7 @@ export function SeasonForm({ seasonId, initial, locked }: { seasonId?: number; i
           options={[{ value: '1', label: 'One judge' }, { value: '2', label: 'Two judges' }]} />
       </div>
       <TextArea id={f('photoKinds')} label="What the photos must show (one per line)" rows={3} value={v.photoKinds} onChange={set('photoKinds')} error={errors.photoKinds ?? errors['photoKinds.0']} />
-      <Check id={f('videoRequired')} label="A video link of the whole run is required" checked={v.videoRequired} onChange={set('videoRequired')} />
+      <Check id={f('videoRequired')} label="A video link of the whole print is required" checked={v.videoRequired} onChange={set('videoRequired')} />
       <Outcome error={outcome.error} message={outcome.message} testId="season-form" />
       <button type="submit" className="btn-primary" disabled={busy || !!locked}>{busy ? 'Saving…' : seasonId ? 'Save settings' : 'Create season'}</button>
     </form>

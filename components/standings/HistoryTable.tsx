@@ -18,7 +18,7 @@ export function HistoryTable({ entries, show }: { entries: HistoryEntry[]; show:
           <tr key={e.entry_id}>
             <td><Link href={`/seasons/${e.season.slug}`}>{e.season.name}</Link></td>
             <td><Link href={`/seasons/${e.season.slug}/classes/${e.class.slug}`}>{e.class.name}</Link></td>
-            <td className="num">{e.rank ?? <span className="text-ink-500" title="Not this entrant's best run in the class">—</span>}</td>
+            <td className="num">{e.rank ?? <span className="text-ink-500" title="Not this entrant's best print in the class">—</span>}</td>
             <td><Link className="num" href={`/entries/${e.entry_id}`}>{formatDurationMs(e.time_ms)}</Link></td>
             <td>{show === 'machine' ? <Link href={`/machines/${e.machine.id}`}>{e.machine.name}</Link> : <Link href={`/entrants/${e.entrant.id}`}>{e.entrant.name}</Link>}</td>
             <td>{MATERIALS[e.material as keyof typeof MATERIALS]?.label ?? e.material}</td>

@@ -2,7 +2,7 @@
 /**
  * The standings table: @tanstack/react-table in manual mode — sorting, filtering and paging run on
  * the server through /api/v1/…/standings, and the URL holds the table state so a link reproduces
- * the view. A row with several verified runs expands to show the entrant's other runs.
+ * the view. A row with several verified prints expands to show the entrant's other prints.
  */
 import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import Link from 'next/link';
@@ -12,7 +12,7 @@ import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
 import type { StandingsPage, StandingsRow } from '@/lib/standings/query';
-import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
+import { formatDate, formatDurationMs, formatNumber, formatPageStatus } from '@/lib/format';
 
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
 const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
@@ -42,6 +42,9 @@ interface OlderRun {
   peak_flow_mm3s: number | null;
   date: string | null;
 }
+
+/** Columns left out on a phone, so rank, entrant, machine and time fit the screen (the entry page and the CSV have the rest). */
+const PHONE_HIDDEN = new Set(['motion', 'material', 'nozzle_mm', 'peak_flow_mm3s', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
 
 export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
   const router = useRouter();
@@ -111,7 +114,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
       if (!res.ok) throw new Error(body.error);
       setOlder((o) => ({ ...o, [row.entry_id]: (body.entries as OlderRun[]).filter((e) => e.entry_id !== row.entry_id) }));
     } catch (err) {
-      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other runs.' }));
+      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other prints.' }));
     }
   };
 
@@ -125,7 +128,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
             <Link href={`/entrants/${c.row.original.entrant_id}`}>{c.getValue()}</Link>
             {c.row.original.verified_entries > 1 && (
               <button type="button" className="ml-2 text-xs text-ink-600 underline" aria-expanded={!!older[c.row.original.entry_id]} onClick={() => toggleOlder(c.row.original)}>
-                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more run${c.row.original.verified_entries > 2 ? 's' : ''}`}
+                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more print${c.row.original.verified_entries > 2 ? 's' : ''}`}
               </button>
             )}
           </div>
@@ -217,7 +220,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
                   const sortable = sortableIds.has(h.column.id) && h.column.getCanSort();
                   const dir = h.column.getIsSorted() || (h.column.id === 'rank' && !sorting.length ? 'asc' : false);
                   return (
-                    <th key={h.id} scope="col" aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
+                    <th key={h.id} scope="col" className={PHONE_HIDDEN.has(h.column.id) ? 'hidden sm:table-cell' : undefined} aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
                       {sortable ? (
                         <button
                           type="button"
@@ -247,14 +250,14 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
               return (
                 <Fragment key={row.id}>
                   <tr data-testid="standings-row" data-entry={row.original.entry_id}>
-                    {row.getVisibleCells().map((cell) => <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={PHONE_HIDDEN.has(cell.column.id) ? 'hidden sm:table-cell' : undefined}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
                   </tr>
                   {runs && (
                     <tr className="bg-ink-50">
                       <td />
                       <td colSpan={columns.length - 1}>
-                        {runs === 'loading' ? 'Loading other runs…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
-                          <ul className="space-y-1 text-sm" aria-label={`Other runs of ${row.original.entrant}`}>
+                        {runs === 'loading' ? 'Loading other prints…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
+                          <ul className="space-y-1 text-sm" aria-label={`Other prints of ${row.original.entrant}`}>
                             {runs.map((r) => (
                               <li key={r.entry_id}>
                                 <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {formatNumber(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
@@ -269,7 +272,7 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
               );
             })}
             {!data.rows.length && (
-              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">No verified entry matches this view.</td></tr>
+              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">{query.page > Math.max(1, data.pages) ? 'This page is past the last one: go to the last page.' : 'No verified entry matches this view.'}</td></tr>
             )}
           </tbody>
         </table>
@@ -278,9 +281,12 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
       <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
         <button type="button" className="btn-quiet" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>Previous page</button>
         <span data-testid="page-status" className="text-sm text-ink-700">
-          Page {query.page} of {data.pages} · {data.total} ranked
+          {formatPageStatus(query.page, data.pages, data.total)}
         </span>
         <button type="button" className="btn-quiet" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>Next page</button>
+        {query.page > Math.max(1, data.pages) && (
+          <button type="button" className="btn-quiet" onClick={() => table.setPageIndex(Math.max(1, data.pages) - 1)}>Go to the last page</button>
+        )}
         <label className="ml-auto flex items-center gap-2 text-sm text-ink-700">
           Rows per page
           <select className="input w-auto" value={query.perPage} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>

@@ -67,7 +67,7 @@ async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: nu
   if (!season || season.state === 'draft') throw notFound('No such season.');
   requireOpen(season);
   if (season.videoRequired && !d.evidenceUrl)
-    throw unprocessable(`${season.name} asks for an evidence video: add its link.`, { evidenceUrl: 'This season asks for a link to the video of your run.' });
+    throw unprocessable(`${season.name} asks for an evidence video: add its link.`, { evidenceUrl: 'This season asks for a link to the video of your print.' });
   const cls = await ContestClass.findOne({ where: { id: d.classId, seasonId: season.id }, transaction });
   if (!cls) throw new HttpError(400, 'Choose a class of this season.', { classId: 'Choose a class of this season.' });
   const machine = await Machine.findOne({ where: { id: d.machineId, ownerId: userId }, transaction });
@@ -170,7 +170,7 @@ export async function createEntryFromUpload(user: User, req: Request) {
   const check = async () => {
     details = parseInput(EntryDetailsSchema, up.fields);
     await checkContext(user.id, details);
-    if (!up.files.gcode?.length) throw new HttpError(400, 'Add the G-code of your run (.gcode or .gcode.gz).', { gcode: 'Add the G-code (.gcode or .gcode.gz).' });
+    if (!up.files.gcode?.length) throw new HttpError(400, 'Add the G-code of your print (.gcode or .gcode.gz).', { gcode: 'Add the G-code (.gcode or .gcode.gz).' });
     return checkFiles(up);
   };
   return withUpload(up, user.id, check, async (files, transaction, writerFor) => {
@@ -253,7 +253,7 @@ export async function submitBlockers(entry: Entry, loaded: SubmitContext = {}): 
   if (windowProblem) out.push(windowProblem);
   if (!EDITABLE_STATES.includes(entry.state)) out.push(`The entry is ${entry.state}.`);
   const gcode = currentGcodeOf(files);
-  if (!gcode) out.push('Upload the G-code of your run.');
+  if (!gcode) out.push('Upload the G-code of your print.');
   const photoCount = files.filter((f) => f.kind === 'photo' && !f.meta?.replacedAt).length;
   if (photoCount < season.photosRequired) out.push(`The season asks for ${season.photosRequired} photos; this entry has ${photoCount}.`);
   if (season.videoRequired && !entry.evidenceUrl) out.push('The season asks for an evidence video: add its link under “Edit details”.');

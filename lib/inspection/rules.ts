@@ -135,9 +135,12 @@ export function ruleSentence(rule: Rule): string {
     case 'gt':
       phrase = `more than ${v}${unit}`;
       break;
-    case 'between':
-      phrase = `between ${v} and ${bare(metric, rule.valueMax ?? rule.value)}${unit}`;
+    case 'between': {
+      const hi = bare(metric, rule.valueMax ?? rule.value);
+      // A range whose ends are equal reads as the one value, not "between 110 % and 110 %".
+      phrase = hi === v ? `${v}${unit}` : `between ${v} and ${hi}${unit}`;
       break;
+    }
   }
   const tol = rule.tolerance ? ` (± ${bare(metric, rule.tolerance)}${unit})` : '';
   return `${metric.label} must be ${phrase}${tol}.`;

@@ -2,7 +2,8 @@
  * Figures the review desk and the public pages take from a stored inspection report. The report
  * has one shape, the contract in lib/inspection/contract.ts, so these are plain reads.
  */
-import type { InspectionReport, SettingPairJson } from '@/lib/inspection/contract';
+import type { InspectionReport, SettingKey, SettingPairJson } from '@/lib/inspection/contract';
+import { SETTINGS_TOLERANCES, settingDisagrees, type SettingName } from '@/lib/inspection/toolpath/mismatch';
 
 /**
  * Flow over print time for the chart (components/charts/FlowChart): fixed time buckets, peak and mean,
@@ -22,6 +23,31 @@ export interface SettingRow {
   /** Walls only: layers printed with more loops than the count most layers have. */
   extraLoopLayers?: { zMm: number; walls: number }[];
   extraLoopLayerCount?: number;
+}
+
+const SETTING_LABELS: Record<SettingKey, string> = {
+  infill_percent: 'Sparse infill, %',
+  walls: 'Walls',
+  top_layers: 'Top solid layers',
+  bottom_layers: 'Bottom solid layers',
+  layer_height_mm: 'Layer height, mm',
+  nozzle_mm: 'Nozzle, mm',
+  first_layer_height_mm: 'First layer height, mm',
+  line_width_mm: 'Line width, mm',
+};
+
+/** A report's setting key as a person reads it: "layer_height_mm" → "Layer height, mm". */
+export function settingLabel(key: string): string {
+  return SETTING_LABELS[key as SettingKey] ?? key.replace(/_/g, ' ');
+}
+
+/**
+ * True when declared and measured differ beyond the inspection's own tolerance for that setting (the
+ * same test that raises a settings-mismatch flag); settings without a tolerance are never marked.
+ */
+export function settingOutOfTolerance(row: Pick<SettingRow, 'key' | 'declared' | 'measured'>): boolean {
+  if (!(row.key in SETTINGS_TOLERANCES)) return false;
+  return settingDisagrees(row.key as SettingName, row.declared, row.measured);
 }
 
 export function settingsRows(report: InspectionReport | null): SettingRow[] {
@@ -46,6 +72,7 @@ export function headline(report: InspectionReport | null) {
     p95FlowMm3s: report?.flow.p95_mm3s ?? null,
     meanFlowMm3s: report?.flow.mean_mm3s ?? null,
     layers: report?.layers.count ?? null,
+    layerZMm: report?.layers.z_mm ?? [],
     layerHeightMm: report?.layers.height_mm ?? null,
     volumeMm3: report?.filament.volume_mm3 ?? null,
     massG: report?.filament.mass_g ?? null,

@@ -106,7 +106,7 @@ export async function inviteJudge(actor: Actor, seasonId: number, email: string,
     linkMail(
       email,
       `Invitation to judge ${season.name}`,
-      `${actor.user.name} invites you to judge ${season.name}, hosted by ${season.hostName}. Judges verify, reject or return submitted runs against the rulebook.`,
+      `${actor.user.name} invites you to judge ${season.name}, hosted by ${season.hostName}. Judges verify, reject or return submitted timed prints against the rulebook.`,
       'Accept the invitation',
       appUrl(`/invite?token=${token}`),
       `Sign in (or create an account) with this address, ${email}, to accept. The link works for 7 days.`,

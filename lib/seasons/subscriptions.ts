@@ -21,7 +21,7 @@ export async function subscriberCount(seasonId: number): Promise<number> {
 const WHAT_NOW: Record<SeasonState, (s: Season) => string> = {
   draft: () => 'The season is back in preparation.',
   open: (s) => `Entries are open until ${formatDateTime(s.closesAt, s.timeZone)}. Read the rulebook before you print.`,
-  judging: () => 'Entries are closed; the judges are reviewing the submitted runs.',
+  judging: () => 'Entries are closed; the judges are reviewing the submitted prints.',
   final: () => 'The final standings are published and will not change.',
   archived: () => 'The season is archived; its final standings stay readable.',
 };

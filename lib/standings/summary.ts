@@ -75,6 +75,25 @@ export function inspectionSummary(a: { report: InspectionReport | null; claimedT
           (a.judgedThisInspection === false ? '.' : '; the judges weighed this before verifying.'),
     );
   }
-  out.push(a.flags ? `The inspection raised ${a.flags} flag${a.flags === 1 ? '' : 's'} for the judges (listed below).` : 'The inspection raised no flags.');
+  out.push(a.flags ? `The inspection raised ${a.flags} flag${a.flags === 1 ? '' : 's'} for the judges (listed with the verdict).` : 'The inspection raised no flags.');
   return out;
+}
+
+export interface InspectionVerdict {
+  /** `pass`: every rule passes; `open`: some could not be measured; `fail`: a rule fails; `none`: no rules or no inspection */
+  tone: 'pass' | 'open' | 'fail' | 'none';
+  headline: string;
+  flags: string;
+}
+
+/** The inspection's result in one line, for the top of the public entry page. */
+export function inspectionVerdict(i: { rules: { pass: number; fail: number; unknown: number }; flags: number } | null): InspectionVerdict {
+  if (!i) return { tone: 'none', headline: 'No finished inspection on record', flags: '' };
+  const { pass, fail, unknown } = i.rules;
+  const total = pass + fail + unknown;
+  const flags = i.flags ? `${i.flags} flag${i.flags === 1 ? '' : 's'} for the judges` : 'No flags';
+  if (!total) return { tone: 'none', headline: 'The G-code was inspected; this class has no rules to check', flags };
+  if (fail) return { tone: 'fail', headline: `${fail} of ${total} rule${total === 1 ? '' : 's'} ${fail === 1 ? 'fails' : 'fail'}`, flags };
+  if (unknown) return { tone: 'open', headline: `${pass} of ${total} rule${total === 1 ? '' : 's'} pass; ${unknown} could not be measured`, flags };
+  return { tone: 'pass', headline: total === 1 ? 'The one rule passes' : `All ${total} rules pass`, flags };
 }

@@ -1,6 +1,6 @@
 /**
  * Read models for the public standings pages and the v1 API: seasons, one class's standings, an
- * entrant's older runs, a verified entry, entrant and machine histories, and the season overview.
+ * entrant's older prints, a verified entry, entrant and machine histories, and the season overview.
  * Only non-draft seasons and verified entries are ever shown.
  */
 import { QueryTypes } from 'sequelize';
@@ -211,7 +211,7 @@ interface EntryFigures {
 const LATEST_INSPECTION = `LEFT JOIN inspections i ON i.id = (
   SELECT i2.id FROM inspections i2 WHERE i2.entry_id = e.id AND i2.status = 'done' ORDER BY i2.created_at DESC, i2.id DESC LIMIT 1)`;
 
-/** Every verified entry of one entrant in one class, fastest first: the "older runs" under a standings row. */
+/** Every verified entry of one entrant in one class, fastest first: the "older prints" under a standings row. */
 export async function entrantRunsInClass(seasonSlug: string, classSlug: string, entrantId: number) {
   const season = await findSeason(seasonSlug);
   const cls = await findClass(season, classSlug);

@@ -17,6 +17,15 @@ test('sign up, confirm through the outbox, sign in and sign out', async ({ page,
   await expect(page.getByRole('status')).toContainText('Check your inbox');
 
   const mail = await readLatestMail(browser, email, 'Confirm your e-mail for Hotlap');
+  // In the outbox the mailed address is a link an admin can open.
+  const adminCtx = await browser.newContext();
+  const admin = await adminCtx.newPage();
+  await signIn(admin, demoEmail('admin'));
+  await admin.goto(`/admin/outbox?to=${encodeURIComponent(email)}`);
+  const link = admin.getByTestId('outbox-message').filter({ hasText: 'Confirm your e-mail for Hotlap' }).first().getByTestId('mail-link').first();
+  await expect(link).toBeVisible();
+  expect(await link.getAttribute('href')).toContain(pathOfLink(mail, '/verify'));
+  await adminCtx.close();
   await page.goto(pathOfLink(mail, '/verify'));
   await page.getByRole('button', { name: 'Confirm my e-mail' }).click();
   await expect(page.getByRole('status')).toContainText('is confirmed');

@@ -82,6 +82,6 @@ test('an entrant fixes a blocked draft by editing its details on the draft page,
   await page.getByRole('button', { name: 'Next' }).click();
   await page.getByLabel('Claimed time (h:mm:ss.t)').fill('0:25:10.0');
   await page.getByRole('button', { name: 'Next' }).click();
-  await expect(page.locator('#e-evidenceUrl-error')).toHaveText('This season asks for a link to the video of your run.');
+  await expect(page.locator('#e-evidenceUrl-error')).toHaveText('This season asks for a link to the video of your print.');
   await expect(page.getByLabel('Claimed time (h:mm:ss.t)')).toBeVisible();
 });

@@ -15,7 +15,7 @@ let repeatEntrant: string;
 test.beforeAll(async () => {
   const s = await insertSeason(db(), { classes: ['open'], name: 'Standings Trial' });
   slug = s.slug;
-  // 30 entrants, alternating PLA and PETG, distinct peak flows; the first also has a slower second run.
+  // 30 entrants, alternating PLA and PETG, distinct peak flows; the first also has a slower second print.
   for (let i = 0; i < 30; i++) {
     const who = await insertEntrant(db(), `Trial Entrant ${String(i).padStart(2, '0')}`);
     const m = await insertMachine(db(), who, `Trial Rig ${i}`, i % 3 === 0 ? 'cartesian' : 'corexy');
@@ -89,15 +89,18 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   expect(onScreen.map((r) => Number(r[8]).toFixed(1))).toEqual(shown.map((r) => r.cells[7]));
 });
 
-test('older runs open under the row, and the entry, entrant and machine pages follow', async ({ page }) => {
+test('older prints open under the row, and the entry, entrant and machine pages follow', async ({ page }) => {
   await page.goto(`/seasons/${slug}/classes/open`);
   const row = page.getByTestId('standings-row').filter({ hasText: repeatEntrant });
-  await row.getByRole('button', { name: '1 more run' }).click();
-  const runs = page.getByRole('list', { name: `Other runs of ${repeatEntrant}` });
+  await row.getByRole('button', { name: '1 more print' }).click();
+  const runs = page.getByRole('list', { name: `Other prints of ${repeatEntrant}` });
   await expect(runs).toContainText('0:25:00.0');
   await runs.getByRole('link', { name: '0:25:00.0' }).click();
-  await expect(page.getByRole('heading', { name: /0:25:00\.0 by Trial Entrant 00/ })).toBeVisible();
-  await expect(page.getByText('Not the entrant’s ranked run')).toBeVisible();
+  // The page leads with the printed piece, the machine and the verdict; the time is one figure among others.
+  await expect(page.getByRole('heading', { level: 1 })).toHaveText('Test piece printed on Trial Rig 0');
+  await expect(page.getByTestId('entry-verdict')).toContainText('Inspection verdict');
+  await expect(page.getByTestId('entry-figures')).toContainText('0:25:00.0');
+  await expect(page.getByTestId('entry-figures')).toContainText('Not the entrant’s ranked print');
   await expect(page.getByTestId('inspection-summary')).toContainText('mm³/s');
   await expect(page.getByTestId('flow-chart').locator('svg').first()).toBeVisible();
   await page.getByRole('link', { name: 'Trial Entrant 00' }).click();

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth/guard';
 import { organizerDashboard } from '@/lib/seasons';
 import { StatePill } from '@/components/StatePill';
-import { formatDate, formatDateTime, formatDurationS } from '@/lib/format';
+import { formatDate, formatDateTime, formatDurationS, formatSeasonWindow } from '@/lib/format';
 import { ENTRY_STATES } from '@/lib/domain';
 
 export const metadata = { title: 'Organize' };
@@ -23,7 +23,7 @@ export default async function OrganizePage() {
             <div className="flex flex-wrap items-center gap-3">
               <h2 id={`season-${s.id}`}><Link href={`/organize/seasons/${s.id}`}>{s.name}</Link></h2>
               <StatePill state={s.state} />
-              <span className="text-sm text-ink-600">{formatDate(s.opensAt, s.timeZone)} – {formatDate(s.closesAt, s.timeZone)}</span>
+              <span className="text-sm text-ink-600">{formatSeasonWindow(s.opensAt, s.closesAt, s.timeZone, false)}</span>
             </div>
             <Link href={`/organize/seasons/${s.id}`} className="btn-quiet">Manage<span className="sr-only"> {s.name}</span></Link>
           </div>

@@ -94,7 +94,7 @@ export default async function ApiDocsPage() {
           <a href={`/api/v1/seasons/${s}/classes/${c}/standings?format=csv`}><code>?format=csv</code></a></p>
         {ex && <Example data={ex.standings} />}
         <p className="mt-2 text-sm text-ink-700">
-          An entrant’s other verified runs in the class: <code>GET /api/v1/seasons/{'{season}'}/classes/{'{class}'}/entrants/{'{entrant_id}'}/entries</code>.
+          An entrant’s other verified prints in the class: <code>GET /api/v1/seasons/{'{season}'}/classes/{'{class}'}/entrants/{'{entrant_id}'}/entries</code>.
         </p>
       </section>
 

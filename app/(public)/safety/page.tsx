@@ -7,7 +7,7 @@ export default function SafetyPage() {
     <div className="max-w-3xl space-y-6">
       <h1>Safety notes for fast printing</h1>
       <p className="text-ink-700">
-        Speed runs push machines to their limits. These cautions apply to every season; a season&apos;s rulebook may add more.
+        Timed prints push machines to their limits. These cautions apply to every season; a season&apos;s rulebook may add more.
       </p>
       <SafetyNotes />
     </div>

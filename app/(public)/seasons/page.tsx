@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { connection } from 'next/server';
 import { publicSeasons } from '@/lib/queries';
 import { StatePill } from '@/components/StatePill';
-import { formatDate } from '@/lib/format';
+import { formatDate, formatSeasonWindow } from '@/lib/format';
 
 export const metadata = { title: 'Seasons' };
 
@@ -19,7 +19,7 @@ export default async function SeasonsPage() {
             <tr key={s.id}>
               <td><Link href={`/seasons/${s.slug}`}>{s.name}</Link></td>
               <td>{s.hostName}</td>
-              <td>{formatDate(s.opensAt)} – {formatDate(s.closesAt)}</td>
+              <td>{formatSeasonWindow(s.opensAt, s.closesAt, s.timeZone, false)}</td>
               <td>{s.classes.length}</td>
               <td><StatePill state={s.state} /></td>
             </tr>

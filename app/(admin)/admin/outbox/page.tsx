@@ -5,6 +5,22 @@ import { formatDateTime } from '@/lib/format';
 
 export const metadata = { title: 'Outbox' };
 
+/** The message text with its http(s) addresses as links (opened in a new tab), everything else as text. */
+function linkify(text: string | null) {
+  if (!text) return text;
+  return text.split(/(https?:\/\/[^\s<>"]+)/g).map((part, i) => {
+    if (i % 2 === 0) return part;
+    // A sentence's closing punctuation is not part of the address.
+    const url = part.replace(/[.,;:!?)]+$/, '');
+    return (
+      <span key={i}>
+        <a href={url} target="_blank" rel="noopener noreferrer nofollow" data-testid="mail-link">{url}</a>
+        {part.slice(url.length)}
+      </span>
+    );
+  });
+}
+
 export default async function OutboxPage({ searchParams }: { searchParams: Promise<{ to?: string }> }) {
   await requirePageRole('/admin/outbox', 'admin');
   const { to } = await searchParams;
@@ -34,7 +50,7 @@ export default async function OutboxPage({ searchParams }: { searchParams: Promi
             </p>
             <p className="font-semibold" data-testid="mail-subject">{m.subject}</p>
             {m.status !== 'sent' && m.lastError ? <p className="text-sm text-ink-600">Last error: {m.lastError}</p> : null}
-            {bodies ? <pre className="mt-2 whitespace-pre-wrap break-all font-mono text-xs text-ink-700" data-testid="mail-text">{m.text}</pre> : null}
+            {bodies ? <pre className="mt-2 whitespace-pre-wrap break-all font-mono text-xs text-ink-700" data-testid="mail-text">{linkify(m.text)}</pre> : null}
           </li>
         ))}
       </ul>

@@ -13,7 +13,7 @@ export default async function EntrantPage({ params }: { params: Promise<{ id: st
     <div className="space-y-6">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-600"><Link href="/seasons">Seasons</Link> › Entrants</nav>
       <h1>{h.entrant.name}</h1>
-      <p className="text-ink-700">{h.entries.length} verified entr{h.entries.length === 1 ? 'y' : 'ies'} across {new Set(h.entries.map((e) => e.season.slug)).size} season(s). The rank is shown on the run that counts in each class.</p>
+      <p className="text-ink-700">{h.entries.length} verified entr{h.entries.length === 1 ? 'y' : 'ies'} across {new Set(h.entries.map((e) => e.season.slug)).size} season(s). The rank is shown on the print that counts in each class.</p>
       <TimesOverSeasons points={h.best_per_season} />
       <HistoryTable entries={h.entries} show="machine" />
     </div>

@@ -4,7 +4,7 @@ import { publicSeason } from '@/lib/seasons/view';
 import { StatePill } from '@/components/StatePill';
 import { SeverityPill } from '@/components/SeverityPill';
 import { SafetyNotes } from '@/components/SafetyNotes';
-import { formatDateTime } from '@/lib/format';
+import { formatDateTime, formatSeasonWindow } from '@/lib/format';
 import { Markdown } from '@/components/organizer/Markdown';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
 import { eligibilityText } from '@/lib/seasons/eligibility';
@@ -27,7 +27,7 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
           <StatePill state={season.state} />
         </div>
         <p className="text-ink-600">
-          Hosted by {season.hostName} · {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}
+          Hosted by {season.hostName} · {formatSeasonWindow(season.opensAt, season.closesAt, season.timeZone)}
         </p>
         <Markdown source={season.description} className="mt-3 max-w-3xl text-ink-800" />
         <p className="mt-2 text-sm text-ink-600">Timing: {season.timingConvention}. Evidence: {season.photosRequired} photos{season.videoRequired ? ' and a video link' : ''}.</p>

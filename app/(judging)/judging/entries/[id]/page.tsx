@@ -13,6 +13,7 @@ import { MOTION_SYSTEM_LABELS, type MotionSystem, type ReviewDecision } from '@/
 import { formatDurationMs, formatDurationS, formatDateTime, formatNumber } from '@/lib/format';
 import { StatePill } from '@/components/StatePill';
 import { formatRuleMeasured } from '@/lib/inspection/rules';
+import { settingLabel, settingOutOfTolerance } from '@/lib/reviews/report';
 import { PhotoGallery } from '@/components/judging/PhotoGallery';
 import { LayerPreview } from '@/components/judging/LayerPreview';
 import { FlowChart } from '@/components/charts/FlowChart';
@@ -73,7 +74,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
         </div>
         <div className="card">
           <h2>Evidence</h2>
-          {entry.evidenceLink ? <p><a href={entry.evidenceLink} target="_blank" rel="noopener noreferrer" data-testid="evidence-link">Open the run’s video</a></p> : <p className="text-ink-600">No evidence link.</p>}
+          {entry.evidenceLink ? <p><a href={entry.evidenceLink} target="_blank" rel="noopener noreferrer" data-testid="evidence-link">Open the video of the print</a></p> : <p className="text-ink-600">No evidence link.</p>}
           {r.gcode && <p className="mt-2 text-sm"><a href={r.gcode.url}>Download the G-code</a> <span className="num text-ink-500">({(r.gcode.sizeBytes / 1024).toFixed(0)} KB)</span></p>}
           {entry.notes && <p className="mt-2 whitespace-pre-line text-sm text-ink-700">{entry.notes}</p>}
         </div>
@@ -137,8 +138,8 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
                 <thead><tr><th>Setting</th><th>Declared</th><th>Measured</th><th>How measured</th></tr></thead>
                 <tbody>
                   {insp.settings.map((s) => (
-                    <tr key={s.key} className={s.declared !== null && s.measured !== null && Math.abs(s.declared - s.measured) > 1e-6 ? 'bg-ember-50' : ''}>
-                      <td>{s.key.replace(/_/g, ' ')}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">
+                    <tr key={s.key} className={settingOutOfTolerance(s) ? 'bg-ember-50' : ''} data-off={settingOutOfTolerance(s) ? 'true' : undefined}>
+                      <td>{settingLabel(s.key)}</td><td className="num">{s.declared ?? '—'}</td><td className="num">{s.measured ?? '—'}</td><td className="text-xs text-ink-500">
                         {s.detail}
                         {s.extraLoopLayers && (
                           <span className="block text-ink-700" data-testid="extra-loop-layers">
@@ -196,7 +197,7 @@ export default async function ReviewPage({ params }: { params: Promise<{ id: str
       {insp?.previewUrl && (
         <section className="card">
           <h2 className="mb-3">Toolpath preview</h2>
-          <LayerPreview url={insp.previewUrl} />
+          <LayerPreview url={insp.previewUrl} reportLayers={{ zMm: insp.headline.layerZMm, count: insp.headline.layers }} />
         </section>
       )}
 

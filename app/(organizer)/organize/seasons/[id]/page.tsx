@@ -48,7 +48,8 @@ export default async function SeasonAdminPage({ params }: { params: Promise<{ id
           </p>
         )}
         <LifecyclePanel seasonId={season.id} state={season.state} next={view.next} subscribers={view.subscribers}
-          canReinspect={submitted > 0 && !closed} />
+          canReinspect={submitted > 0 && !closed}
+          window={{ opensAt: new Date(season.opensAt).toISOString(), closesAt: new Date(season.closesAt).toISOString(), timeZone: season.timeZone }} />
       </section>
 
       <section className={section} aria-labelledby="h-settings">

@@ -16,7 +16,7 @@ export default async function SeasonOverviewPage({ params }: { params: Promise<{
       </nav>
       <h1>{o.season.name}: overview</h1>
       <p className="max-w-3xl text-ink-700">
-        Ranked runs only (each entrant’s best verified entry per class).{' '}
+        Ranked prints only (each entrant’s best verified entry per class).{' '}
         {o.classes.map((c, i) => (
           <span key={c.slug}>
             {i ? ' · ' : ''}

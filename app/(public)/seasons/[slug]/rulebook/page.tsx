@@ -9,7 +9,7 @@ import { metricById } from '@/lib/inspection/metrics';
 import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
-import { formatDateTime } from '@/lib/format';
+import { formatDateTime, formatSeasonWindow } from '@/lib/format';
 import { SeverityPill } from '@/components/SeverityPill';
 
 export async function generateMetadata({ params }: { params: Promise<{ slug: string }> }) {
@@ -35,12 +35,12 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
           <h1>Rulebook · {season.name}</h1>
           <StatePill state={season.state} />
         </div>
-        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatDateTime(season.opensAt, season.timeZone)} – {formatDateTime(season.closesAt, season.timeZone)}{season.timeZone !== 'UTC' ? ` (${season.timeZone} time)` : ''}</p>
+        <p className="text-ink-600">Hosted by {season.hostName} · entries {formatSeasonWindow(season.opensAt, season.closesAt, season.timeZone)}</p>
         <SubscribeForm slug={season.slug} back={`/seasons/${season.slug}/rulebook`} subscribed={subscribed} signedIn={!!user} />
       </header>
 
       <section className="card space-y-2" aria-labelledby="h-run">
-        <h2 id="h-run">The run</h2>
+        <h2 id="h-run">The timed print</h2>
         <ul className="list-disc space-y-1 pl-5 text-sm">
           {testPiece && (
             <li>Print the test piece <strong>{testPiece.name}</strong> at 100 % scale: <span className="num">{testPiece.sizeXMm.toFixed(2)} × {testPiece.sizeYMm.toFixed(2)} × {testPiece.sizeZMm.toFixed(2)} mm</span>.</li>
@@ -49,7 +49,7 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
           <li>
             Evidence: {season.photosRequired} photo{season.photosRequired === 1 ? '' : 's'}
             {season.photoKinds?.length ? ` (${season.photoKinds.join('; ')})` : ''}
-            {season.videoRequired ? ', and a link to a video of the whole run' : ''}.
+            {season.videoRequired ? ', and a link to a video of the whole print' : ''}.
           </li>
           <li>At most {season.entryLimit} entr{season.entryLimit === 1 ? 'y' : 'ies'} per entrant and class; an entry counts once {season.verificationsRequired === 1 ? 'a judge verifies it' : `${season.verificationsRequired} judges verify it`}.</li>
           <li><strong>Blocking</strong> rules stop a submission while they fail; <strong>advisory</strong> rules flag the entry for the judges.</li>

@@ -3,7 +3,7 @@ import { cachedJson, CACHE_LIVE } from '@/lib/standings/http';
 import { entrantRunsInClass, parseId, parseSlug } from '@/lib/standings/views';
 import { rejectQuery } from '@/lib/standings/apiParams';
 
-/** GET …/classes/{class}/entrants/{entrant}/entries — every verified run of one entrant in the class. */
+/** GET …/classes/{class}/entrants/{entrant}/entries — every verified timed print of one entrant in the class. */
 export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string; entrant: string }> }) => {
   rejectQuery(req);
   const p = await ctx.params;
