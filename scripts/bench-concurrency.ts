@@ -21,7 +21,8 @@ import { freshEntrant } from '../tests/support/demo';
 const FIXTURE = path.resolve(__dirname, '..', 'tests', 'fixtures', 'gcode', 'prusa-beacon-020.gcode.gz');
 const plain = gunzipSync(fs.readFileSync(FIXTURE));
 /** Each upload its own G-code (a comment differs), so no entry is flagged as another's duplicate. */
-const uniqueGcode = () => gzipSync(Buffer.concat([plain, Buffer.from(`\n; bench ${crypto.randomUUID()}\n`)]));
+// A command, not a comment, makes each copy its own: the duplicate check ignores comments.
+const uniqueGcode = () => gzipSync(Buffer.concat([plain, Buffer.from(`\nM117 bench ${crypto.randomUUID()}\n`)]));
 
 interface Sample { ms: number; status: number }
 
