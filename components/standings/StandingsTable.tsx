@@ -246,19 +246,19 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
           </thead>
           <tbody className={loading ? 'opacity-50' : ''}>
             {table.getRowModel().rows.map((row) => {
-              const runs = older[row.original.entry_id];
+              const prints = older[row.original.entry_id];
               return (
                 <Fragment key={row.id}>
                   <tr data-testid="standings-row" data-entry={row.original.entry_id}>
                     {row.getVisibleCells().map((cell) => <td key={cell.id} className={PHONE_HIDDEN.has(cell.column.id) ? 'hidden sm:table-cell' : undefined}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
                   </tr>
-                  {runs && (
+                  {prints && (
                     <tr className="bg-ink-50">
                       <td />
                       <td colSpan={columns.length - 1}>
-                        {runs === 'loading' ? 'Loading other prints…' : typeof runs === 'string' ? <span className="field-error">{runs}</span> : (
+                        {prints === 'loading' ? 'Loading other prints…' : typeof prints === 'string' ? <span className="field-error">{prints}</span> : (
                           <ul className="space-y-1 text-sm" aria-label={`Other prints of ${row.original.entrant}`}>
-                            {runs.map((r) => (
+                            {prints.map((r) => (
                               <li key={r.entry_id}>
                                 <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {formatNumber(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
                               </li>

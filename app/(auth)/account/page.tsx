@@ -1,4 +1,5 @@
 import { requirePageRole } from '@/lib/auth/guard';
+import { ROLE_LABELS } from '@/lib/domain';
 import { SignOutEverywhereButton } from './SignOutEverywhereButton';
 
 export const metadata = { title: 'Your account' };
@@ -14,7 +15,7 @@ export default async function AccountPage() {
         <dt className="font-semibold">E-mail</dt>
         <dd className="mb-2">{user.email}</dd>
         <dt className="font-semibold">Roles</dt>
-        <dd>{user.roles.join(', ')}</dd>
+        <dd>{user.roles.map((r) => ROLE_LABELS[r]).join(', ')}</dd>
       </dl>
       <section className="space-y-2">
         <h2 className="text-base font-semibold">Sessions</h2>

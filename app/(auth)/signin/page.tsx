@@ -11,7 +11,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
   return (
     <div className="mx-auto max-w-md card">
       <h1 className="mb-6">Sign in</h1>
-      {/* Only a path on this site survives (lib/auth/callbackUrl.ts); the form checks it again. */}
+      {/* Only a path on this site survives (lib/security/urls.ts); the form checks it again. */}
       <SignInForm callbackUrl={safeCallbackPath(raw, appOrigin())} initialError={error ?? null} />
     </div>
   );

@@ -39,8 +39,8 @@ export default async function RulebookPage({ params }: { params: Promise<{ slug:
         <SubscribeForm slug={season.slug} back={`/seasons/${season.slug}/rulebook`} subscribed={subscribed} signedIn={!!user} />
       </header>
 
-      <section className="card space-y-2" aria-labelledby="h-run">
-        <h2 id="h-run">The timed print</h2>
+      <section className="card space-y-2" aria-labelledby="h-timed-print">
+        <h2 id="h-timed-print">The timed print</h2>
         <ul className="list-disc space-y-1 pl-5 text-sm">
           {testPiece && (
             <li>Print the test piece <strong>{testPiece.name}</strong> at 100 % scale: <span className="num">{testPiece.sizeXMm.toFixed(2)} × {testPiece.sizeYMm.toFixed(2)} × {testPiece.sizeZMm.toFixed(2)} mm</span>.</li>
