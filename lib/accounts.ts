@@ -177,7 +177,8 @@ export async function setRoles(actor: User, userId: number, roles: Role[], ip: s
     const before = user.roles;
     await user.update({ roles: [...next] }, { transaction });
     // Sessions from before the change end: the person signs in again under the new roles.
-    if (before.join() !== next.join()) await endAllSessions(user.id, transaction);
+    // Compared as sets: a stored list in another order is the same roles.
+    if (before.length !== next.length || before.some((r) => !next.includes(r))) await endAllSessions(user.id, transaction);
     await audit('user.roles_changed', { type: 'user', id: user.id }, { actorId: actor.id, ip, details: { before, after: next }, transaction });
     return user;
   });
