@@ -327,6 +327,12 @@ describe('organizers are scoped to their seasons', () => {
     const s = await season();
     const other = await freshEntrant(base, dbFile, 'Ola Strand');
     await sql(dbFile, 'UPDATE users SET roles = \'["entrant","organizer"]\' WHERE email = ?', [other.email]);
+    // An open invitation and a co-organizer the outsider must not be able to revoke or remove.
+    const t = sqlDate();
+    await sql(dbFile, `INSERT INTO judge_invitations (season_id, email, token_hash, invited_by_id, expires_at, created_at, updated_at) VALUES (?, 'open-invite@example.org', ?, ?, ?, ?, ?)`,
+      [s.seasonId, crypto.randomBytes(32).toString('hex'), organizerId, sqlDate(new Date(Date.now() + 86_400_000)), t, t]);
+    const [inv] = await sql<{ id: number }>(dbFile, 'SELECT id FROM judge_invitations WHERE season_id = ?', [s.seasonId]);
+    await sql(dbFile, 'INSERT INTO season_organizers (season_id, user_id, added_by_id, created_at, updated_at) VALUES (?, ?, ?, ?, ?)', [s.seasonId, judge2Id, organizerId, t, t]);
     const routes: [string, string, unknown?][] = [
       ['GET', `/api/organizer/seasons/${s.seasonId}`],
       ['PUT', `/api/organizer/seasons/${s.seasonId}`, { name: 'Taken over' }],
@@ -343,6 +349,9 @@ describe('organizers are scoped to their seasons', () => {
       ['POST', `/api/organizer/seasons/${s.seasonId}/reinspect`, { confirm: true }],
       ['GET', `/api/organizer/seasons/${s.seasonId}/organizers`],
       ['POST', `/api/organizer/seasons/${s.seasonId}/organizers`, { email: other.email }],
+      ['DELETE', `/api/organizer/seasons/${s.seasonId}/organizers/${judge2Id}`],
+      ['DELETE', `/api/organizer/seasons/${s.seasonId}/invitations/${inv.id}`],
+      ['POST', `/api/organizer/seasons/${s.seasonId}/test-piece`, {}],
     ];
     for (const [method, p, json] of routes) {
       const res = await other.request(p, { method, ...(json !== undefined ? { json } : {}) });
@@ -354,10 +363,17 @@ describe('organizers are scoped to their seasons', () => {
     // Nothing changed.
     expect((await sql(dbFile, 'SELECT 1 FROM classes WHERE season_id = ?', [s.seasonId])).length).toBe(2);
     expect((await sql(dbFile, 'SELECT 1 FROM season_judges WHERE season_id = ? AND user_id = ?', [s.seasonId, judgeId])).length).toBe(1);
+    expect((await sql(dbFile, 'SELECT 1 FROM season_organizers WHERE season_id = ? AND user_id = ?', [s.seasonId, judge2Id])).length).toBe(1);
+    expect((await sql(dbFile, 'SELECT 1 FROM judge_invitations WHERE id = ? AND revoked_at IS NULL', [inv.id])).length).toBe(1);
+    expect((await sql(dbFile, 'SELECT 1 FROM test_pieces WHERE season_id = ?', [s.seasonId])).length).toBe(0);
 
     // The creator adds them; now they manage it; removed, they are out again.
     const add = await clients.organizer.post(`/api/organizer/seasons/${s.seasonId}/organizers`, { email: other.email });
     expect(add.status, await add.clone().text()).toBe(201);
+    // Added twice (a double click, a replayed request): one row, and a sentence next to the field.
+    const again = await clients.organizer.post(`/api/organizer/seasons/${s.seasonId}/organizers`, { email: other.email });
+    expect(again.status).toBe(409);
+    expect((await again.json()).fields.email).toMatch(/already organizes this season/);
     expect((await other.get(`/api/organizer/seasons/${s.seasonId}`)).status).toBe(200);
     expect((await other.get(`/organize/seasons/${s.seasonId}`)).status).toBe(200);
     expect((await (await other.get('/api/organizer/seasons')).json()).seasons.map((x: { id: number }) => x.id)).toContain(s.seasonId);
