@@ -212,7 +212,6 @@ export async function updateEntryDetails(user: User, id: number, raw: unknown) {
   if (!EDITABLE_STATES.includes(entry.state)) throw conflict(notEditable('Details')(entry.state));
   const details = parseInput(EntryDetailsSchema, raw);
   if (details.seasonId !== entry.seasonId) throw new HttpError(400, 'An entry cannot move to another season.', { seasonId: 'An entry stays in its season.' });
-  await checkContext(user.id, details, entry.id);
   const inspectionId = await getSequelize().transaction(async (transaction) => {
     await checkContext(user.id, details, entry.id, transaction);
     const [n] = await Entry.update(detailColumns(details), { where: { id: entry.id, entrantId: user.id, state: EDITABLE_STATES }, transaction });
@@ -342,6 +341,8 @@ export async function reinspectEntry(user: User, id: number) {
   if (!gcode) throw new HttpError(400, 'Upload the G-code first.');
   // The rate check, the queued row and the audit event that the next check counts: one transaction.
   const row = await getSequelize().transaction(async (transaction) => {
+    // A submit at the same moment must not get a new inspection under the judges: checked where written.
+    await claimEntry(entry.id, user.id, EDITABLE_STATES, transaction, (state) => `Only a draft or a returned entry can be inspected again; this one is ${state} now.`);
     await checkReinspectRate(user.id, transaction);
     const { row } = await queueInspectionRow(entry.id, gcode.id, transaction);
     await audit('entry.reinspected', { type: 'entry', id: entry.id }, { actorId: user.id, transaction });

@@ -71,20 +71,21 @@ async function applyReinspection(inspectionId: number): Promise<void> {
   const entry = await Entry.findByPk(row.entryId);
   if (!entry || entry.state === 'withdrawn') return;
   const changes = ruleChanges(previous.ruleResults, row.ruleResults);
-  const pullBack = entry.state === 'verified' && row.blockingFailures > 0;
   const now = new Date();
 
   const moved = await getSequelize().transaction(async (transaction) => {
-    let toState = entry.state;
-    if (entry.state === 'submitted' && row.blockingFailures > 0 && previous.blockingFailures === 0) {
+    // The state as it is under the write lock: a judge may have decided since the read above, and
+    // the record (and the public wording built from it) must say what really happened.
+    const fromState = (await Entry.findByPk(entry.id, { attributes: ['state'], transaction }))?.state ?? entry.state;
+    let toState = fromState;
+    if (fromState === 'submitted' && row.blockingFailures > 0 && previous.blockingFailures === 0) {
       // Still with the judges, but verifications given on the passing inspection no longer count.
       await Entry.update({ reopenedAt: now }, { where: { id: entry.id, state: 'submitted' }, transaction });
     }
-    if (pullBack) {
+    if (fromState === 'verified' && row.blockingFailures > 0) {
       const [n] = await Entry.update({ state: 'submitted', decidedAt: null, reopenedAt: now }, { where: { id: entry.id, state: 'verified' }, transaction });
       if (n === 1) toState = 'submitted';
     }
-    const fromState = pullBack && toState === 'submitted' ? 'verified' : toState;
     const [, created] = await EntryReinspection.findOrCreate({
       where: { inspectionId: row.id },
       defaults: { entryId: entry.id, inspectionId: row.id, previousInspectionId: previous.id, fromState, toState, changes },

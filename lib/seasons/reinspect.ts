@@ -29,7 +29,7 @@ export async function reinspectSeason(seasonId: number, opts: { transaction?: Tr
   const entries = await Entry.findAll({ where: { seasonId, state }, attributes: ['id'], transaction });
   const out: Reinspection = { queued: 0, alreadyQueued: 0, withoutFile: 0, inspectionIds: [] };
   for (const entry of entries) {
-    const gcode = await currentGcode(entry.id);
+    const gcode = await currentGcode(entry.id, transaction);
     if (!gcode) {
       out.withoutFile += 1;
       continue;
