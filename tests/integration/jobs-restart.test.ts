@@ -5,15 +5,15 @@
  * temporary upload folders the dead one left.
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
+import { execFileSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { gunzipSync, gzipSync } from 'node:zlib';
-import { prepareDatabase, testEnv, waitForServer } from '../support/server';
+import { prepareDatabase, spawnApp, testEnv } from '../support/server';
 import { sql } from '../support/db';
+import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 
-const ROOT = path.resolve(__dirname, '..', '..');
 // Its own server on its own port (the suite's shared server keeps running beside it).
 const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 60;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-restart-'));
@@ -23,21 +23,7 @@ const JOBS = 6;
 let jobIds: number[] = [];
 let server: ChildProcess | null = null;
 
-function startServer(): Promise<ChildProcess> {
-  const child = spawn(process.execPath, [path.join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
-    cwd: ROOT,
-    env: { ...process.env, ...env, NODE_ENV: 'production' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  // HOTLAP_TEST_SERVER_LOG=FILE keeps what the servers write.
-  const logFile = process.env.HOTLAP_TEST_SERVER_LOG;
-  if (logFile) {
-    const out = fs.createWriteStream(logFile, { flags: 'a' });
-    child.stdout?.pipe(out);
-    child.stderr?.pipe(out);
-  }
-  return waitForServer(child, `http://127.0.0.1:${port}/api/auth/csrf`, 'The restart test server').then(() => child);
-}
+const startServer = () => spawnApp(port, env, 'The restart test server');
 
 /** Every process descending from `pid` (children, their children, …). */
 function descendants(pid: number): number[] {
@@ -78,7 +64,7 @@ beforeAll(async () => {
   // the database as an upload leaves them (stored file + queued row).
   const entries = await sql<{ id: number; entrant_id: number }>(dbFile, "SELECT id, entrant_id FROM entries WHERE state != 'withdrawn' ORDER BY id LIMIT ?", [JOBS]);
   expect(entries).toHaveLength(JOBS);
-  const plain = gunzipSync(fs.readFileSync(path.join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz')));
+  const plain = gunzipSync(fs.readFileSync(path.join(FIXTURE_GCODE_DIR, 'prusa-beacon-020.gcode.gz')));
   const t = '2026-11-20 10:00:00.000 +00:00';
   for (const [k, e] of entries.entries()) {
     const key = `entries/${e.id}/restart-${k}.gcode.gz`;

@@ -4,7 +4,7 @@
  * outbox with its error, and a restarted server delivers it once the SMTP server is back.
  */
 import { describe, it, expect, inject, beforeAll, afterAll } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
+import { type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -16,13 +16,12 @@ import { SMTPServer } from 'smtp-server';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
-import { prepareDatabase, testEnv, waitForServer } from '../support/server';
+import { prepareDatabase, spawnApp, testEnv } from '../support/server';
 import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 
 // The shared test server is not used here, but the project's global setup provides it.
 void inject('baseUrl');
 
-const ROOT = path.resolve(__dirname, '..', '..');
 const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 50;
 const base = `http://127.0.0.1:${port}`;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-outage-'));
@@ -40,12 +39,7 @@ async function freePort(): Promise<number> {
 }
 
 async function startApp() {
-  child = spawn(process.execPath, [path.join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
-    cwd: ROOT,
-    env: { ...process.env, ...env, NODE_ENV: 'production' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  await waitForServer(child, `${base}/api/auth/csrf`, 'The outage test server');
+  child = await spawnApp(port, env, 'The outage test server');
 }
 
 async function stopApp() {

@@ -61,25 +61,39 @@ export async function waitForServer(child: ChildProcess, readyUrl: string, label
   }
 }
 
-export async function startServer(port: number): Promise<TestServer> {
-  if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-'));
-  const env = testEnv(port, dataDir);
-  prepareDatabase(env);
+/**
+ * Spawns the built app (`next start`) on `port` with `env` over the process environment and resolves
+ * once it answers (kills it and throws if it does not). HOTLAP_TEST_SERVER_LOG=FILE keeps what the server writes (its errors behind a 500, say).
+ */
+export async function spawnApp(port: number, env: Record<string, string>, label = 'The test server'): Promise<ChildProcess> {
   const child: ChildProcess = spawn(process.execPath, [path.join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
     cwd: ROOT,
     env: { ...process.env, ...env, NODE_ENV: 'production' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  // HOTLAP_TEST_SERVER_LOG=FILE keeps what the server writes (its errors behind a 500, say).
   const logFile = process.env.HOTLAP_TEST_SERVER_LOG;
   if (logFile) {
     const out = fs.createWriteStream(logFile, { flags: 'a' });
     child.stdout?.pipe(out);
     child.stderr?.pipe(out);
   }
+  try {
+    await waitForServer(child, `http://127.0.0.1:${port}/api/auth/csrf`, label);
+  } catch (e) {
+    // Nobody holds the child yet: do not leave it running on the port.
+    child.kill('SIGKILL');
+    throw e;
+  }
+  return child;
+}
+
+export async function startServer(port: number): Promise<TestServer> {
+  if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-'));
+  const env = testEnv(port, dataDir);
+  prepareDatabase(env);
+  const child = await spawnApp(port, env, 'The test server');
   const url = `http://127.0.0.1:${port}`;
-  await waitForServer(child, `${url}/api/auth/csrf`, 'The test server');
   return {
     url,
     dbFile: path.join(dataDir, 'hotlap.sqlite'),
