@@ -12,7 +12,7 @@
  * could not refuse an oversized body before it was read.
  */
 import { NextResponse, type NextRequest } from 'next/server';
-import { contentSecurityPolicy, HSTS_VALUE } from '@/lib/security/headers';
+import { contentSecurityPolicy, HSTS_VALUE, trustedProxyHops } from '@/lib/security/headers';
 
 const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
 const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
@@ -20,7 +20,7 @@ const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
 
 function isHttps(req: NextRequest) {
   // Behind a TLS-terminating proxy the app sees http; the proxy says what the browser used.
-  const forwarded = process.env.TRUST_PROXY ? req.headers.get('x-forwarded-proto')?.split(',')[0].trim() : null;
+  const forwarded = trustedProxyHops() ? req.headers.get('x-forwarded-proto')?.split(',')[0].trim() : null;
   return (forwarded ?? req.nextUrl.protocol.replace(':', '')) === 'https';
 }
 

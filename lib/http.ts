@@ -5,6 +5,7 @@
 import { NextRequest } from 'next/server';
 import { z, ZodError, type ZodType } from 'zod';
 import { HttpError } from '@/lib/errors';
+import { trustedProxyHops } from '@/lib/security/headers';
 
 export interface ErrorBody {
   error: string;
@@ -180,8 +181,8 @@ export function route<C = unknown>(fn: Handler<C>, opts: RouteOptions = {}): Han
  * `TRUST_PROXY=1`: one proxy, the last entry. Null when unknown (no TRUST_PROXY, or too few entries).
  */
 export function clientIp(headers: Headers | Record<string, string | string[] | undefined>): string | null {
-  const hops = Number(process.env.TRUST_PROXY || 0);
-  if (!Number.isInteger(hops) || hops < 1) return null;
+  const hops = trustedProxyHops();
+  if (!hops) return null;
   const get = (k: string) => {
     const v = headers instanceof Headers ? headers.get(k) : headers[k];
     return Array.isArray(v) ? v.join(',') : v;

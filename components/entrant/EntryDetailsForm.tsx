@@ -9,6 +9,7 @@ import { useRouter } from 'next/navigation';
 import type { EntryView } from '@/lib/entries';
 import { formatDurationMs } from '@/lib/format';
 import { postJson } from './upload';
+import { CLAIMED_TIME_REQUIRED, EVIDENCE_LINK_REQUIRED } from '@/lib/entries/messages';
 
 const FIELDS = ['claimedTime', 'evidenceUrl', 'measuredXMm', 'measuredYMm', 'measuredZMm', 'materialName', 'notes'] as const;
 type Field = (typeof FIELDS)[number];
@@ -40,8 +41,8 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
   async function save(e: React.FormEvent) {
     e.preventDefault();
     const local: Record<string, string> = {};
-    if (!v.claimedTime.trim()) local.claimedTime = 'Enter the claimed time as h:mm:ss.t.';
-    if (entry.season.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your print.';
+    if (!v.claimedTime.trim()) local.claimedTime = CLAIMED_TIME_REQUIRED;
+    if (entry.season.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = EVIDENCE_LINK_REQUIRED;
     setErrors(local);
     if (Object.keys(local).length) return;
     setBusy(true);

@@ -12,6 +12,7 @@ import type { entryFormOptions } from '@/lib/entries';
 import { uploadWithProgress } from './upload';
 import { GcodeCheck } from '@/components/GcodeCheck';
 import { UploadBar } from './UploadBar';
+import { CLAIMED_TIME_REQUIRED, EVIDENCE_LINK_REQUIRED } from '@/lib/entries/messages';
 
 type Options = Awaited<ReturnType<typeof entryFormOptions>>;
 
@@ -60,8 +61,8 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
     const local: Record<string, string> = {};
     if (step === 0 && !classId) local.classId = 'This machine is not eligible for any class of this season.';
     if (step === 0 && full) local.classId = `You have used all ${s!.entryLimit} entries of ${chosen!.name}; withdraw a draft to make room, or choose another class.`;
-    if (step === 1 && !v.claimedTime.trim()) local.claimedTime = 'Enter the claimed time as h:mm:ss.t.';
-    if (step === 1 && s!.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = 'This season asks for a link to the video of your print.';
+    if (step === 1 && !v.claimedTime.trim()) local.claimedTime = CLAIMED_TIME_REQUIRED;
+    if (step === 1 && s!.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = EVIDENCE_LINK_REQUIRED;
     else if (step === 1 && v.evidenceUrl.trim() && !/^https?:\/\/\S+$/i.test(v.evidenceUrl.trim())) local.evidenceUrl = 'The evidence link must start with http:// or https://.';
     if (step === 2 && !gcode) local.gcode = 'Add the G-code (.gcode or .gcode.gz).';
     setErrors(local);

@@ -21,6 +21,7 @@ import { EntryDetailsSchema, parseClaimedTime, type EntryDetails } from './schem
 import { classEligibility } from './eligibility';
 import { checkGcode, checkPhotos, ENTRY_UPLOAD_SPEC, FileWriter, type CheckedGcode, type CheckedPhoto } from './files';
 import { checkReinspectRate, currentGcode, currentGcodeOf, inspectionJson, latestInspection, queueInspection, queueInspectionRow, reinspect } from './inspection';
+import { EVIDENCE_LINK_REQUIRED } from './messages';
 
 export { ENTRY_UPLOAD_SPEC } from './files';
 
@@ -67,7 +68,7 @@ async function checkContext(userId: number, d: EntryDetails, excludeEntryId?: nu
   if (!season || season.state === 'draft') throw notFound('No such season.');
   requireOpen(season);
   if (season.videoRequired && !d.evidenceUrl)
-    throw unprocessable(`${season.name} asks for an evidence video: add its link.`, { evidenceUrl: 'This season asks for a link to the video of your print.' });
+    throw unprocessable(`${season.name} asks for an evidence video: add its link.`, { evidenceUrl: EVIDENCE_LINK_REQUIRED });
   const cls = await ContestClass.findOne({ where: { id: d.classId, seasonId: season.id }, transaction });
   if (!cls) throw new HttpError(400, 'Choose a class of this season.', { classId: 'Choose a class of this season.' });
   const machine = await Machine.findOne({ where: { id: d.machineId, ownerId: userId }, transaction });

@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { MaterialFamilySchema } from '@/lib/inspection/materials';
 import { idSchema } from '@/lib/ids';
+import { CLAIMED_TIME_REQUIRED } from './messages';
 
 /**
  * "h:mm:ss.t", "mm:ss.t" or "ss.t" (tenths optional; hundredths are rounded to tenths) → ms.
@@ -36,7 +37,7 @@ export const EntryDetailsSchema = z.object({
   materialName: z.string().trim().max(120, 'At most 120 characters.').default(''),
   nozzleMm: z.coerce.number({ error: () => 'The nozzle diameter must be a number in mm.' }).refine((v) => Number.isFinite(v) && v >= 0.1 && v <= 2, 'The nozzle diameter must be between 0.1 and 2 mm.'),
   claimedTime: z
-    .string({ error: () => 'Enter the claimed time as h:mm:ss.t.' })
+    .string({ error: () => CLAIMED_TIME_REQUIRED })
     .trim()
     .refine((t) => parseClaimedTime(t) !== null, 'Enter the claimed time as h:mm:ss.t, e.g. 0:24:31.4.'),
   evidenceUrl: z

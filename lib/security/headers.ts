@@ -28,3 +28,12 @@ export function contentSecurityPolicy(nonce: string, dev = false): string {
     `frame-ancestors 'none'`,
   ].join('; ');
 }
+
+/**
+ * How many reverse proxies in front of the app are trusted (TRUST_PROXY=N): 0 unless N is a whole
+ * number ≥ 1. The one reading of the setting, for the client address and for X-Forwarded-Proto.
+ */
+export function trustedProxyHops(): number {
+  const hops = Number(process.env.TRUST_PROXY || 0);
+  return Number.isInteger(hops) && hops >= 1 ? hops : 0;
+}
