@@ -19,12 +19,15 @@ export const OUT_DIR = join(ROOT, '.hotlap', 'engine');
 /**
  * The engine's bundles (`outDir` when not OUT_DIR).
  *  - inspect-cli: `npm run inspect -- FILE` (lib/inspection/cli.ts), Node, CommonJS.
+ *  - toolpath-thread: the CLI's second thread for the toolpath-settings analysis
+ *    (lib/inspection/toolpathThread.ts), found beside inspect-cli.cjs.
  *  - inspect-worker: the inspection pool's worker thread (lib/jobs/pool.ts), Node, CommonJS.
  *  - gcode-check: the rulebook check's Web Worker (components/GcodeCheck.tsx), served as
  *    /engine/gcode-check.js from public/engine/ (gitignored: built, not committed).
  */
 export const ENTRIES = [
   { name: 'inspect-cli', source: 'lib/inspection/cli.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
+  { name: 'toolpath-thread', source: 'lib/inspection/toolpathThreadEntry.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'inspect-worker', source: 'lib/jobs/inspect-worker.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'gcode-check', source: 'lib/check/checkWorker.ts', platform: 'browser', format: 'iife', ext: 'js', outDir: join(ROOT, 'public', 'engine') },
 ];
