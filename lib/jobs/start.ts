@@ -15,7 +15,7 @@ import { sqlInspectionQueue } from './sqlQueue';
 import { bossInspectionQueue, enqueueWaiting, stopBoss } from './bossQueue';
 import { runnerIdle, runnerSettled, startRunner, stopRunner } from './runner';
 import { closePool } from './pool';
-import type { JobQueue } from './queue';
+import type { JobClaim, JobQueue } from './queue';
 
 function queueFor(settings: JobSettings): JobQueue {
   return settings.queue === 'pg-boss' ? bossInspectionQueue(settings) : sqlInspectionQueue(settings);
@@ -36,7 +36,13 @@ export async function startJobs(): Promise<void> {
 /** A worker process (`npm run worker`): runs jobs until stopWorker(). */
 export function startWorker(): JobSettings {
   const settings = jobSettings();
-  startRunner(queueFor(settings), runInspectionJob, settings);
+  // One line per claim and per end: which process ran which attempt (operators, and the multi-machine test).
+  const logged = async (claim: JobClaim) => {
+    console.log(`worker ${process.pid}: inspection ${claim.id} attempt ${claim.attempt} claimed`);
+    await runInspectionJob(claim);
+    console.log(`worker ${process.pid}: inspection ${claim.id} attempt ${claim.attempt} ended`);
+  };
+  startRunner(queueFor(settings), logged, settings);
   return settings;
 }
 
