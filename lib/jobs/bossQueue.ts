@@ -83,24 +83,31 @@ export async function stopBoss(): Promise<void> {
   if (b) await (await b).stop({ graceful: false, close: true, wait: true });
 }
 
-/** Rows a worker could take now, with their rank among their entrant's waiting rows (1 = next). */
+/**
+ * Rows a worker could take now, with their rank among their entrant's waiting rows (1 = next), less
+ * those whose attempt already has a job waiting or running (pg-boss's own table; its states order
+ * created < retry < active).
+ */
 const WAITING_SQL = `
-SELECT i.id AS "id", i.attempts AS "attempts",
-  ROW_NUMBER() OVER (PARTITION BY e.entrant_id ORDER BY i.id) AS "rank"
-FROM inspections i JOIN entries e ON e.id = i.entry_id
-WHERE i.status = 'queued'
-   OR (i.status = 'running' AND (i.lease_until IS NULL OR i.lease_until < :now) AND i.attempts < :maxAttempts)
-ORDER BY i.id
+SELECT w.id AS "id", w.attempts AS "attempts", w.rank AS "rank" FROM (
+  SELECT i.id, i.attempts, ROW_NUMBER() OVER (PARTITION BY e.entrant_id ORDER BY i.id) AS rank
+  FROM inspections i JOIN entries e ON e.id = i.entry_id
+  WHERE i.status = 'queued'
+     OR (i.status = 'running' AND (i.lease_until IS NULL OR i.lease_until < :now) AND i.attempts < :maxAttempts)
+) w
+WHERE NOT EXISTS (SELECT 1 FROM pgboss.job j WHERE j.name = '${INSPECTION_QUEUE}' AND j.singleton_key = CONCAT('inspection:', w.id, ':', w.attempts) AND j.state <= 'active')
+ORDER BY w.id
 LIMIT 1000`;
 
 /** Sends a pg-boss job for every row that can be taken and has none waiting; returns how many were new. */
 export async function enqueueWaiting(settings: JobSettings, role: 'web' | 'worker', now = new Date()): Promise<number> {
+  // Started first: its schema (read below) exists once it has.
+  const boss = await getBoss(settings, role);
   const rows = await getSequelize().query<{ id: number; attempts: number; rank: string | number }>(WAITING_SQL, {
     replacements: { now, maxAttempts: settings.maxAttempts },
     type: QueryTypes.SELECT,
   });
   if (!rows.length) return 0;
-  const boss = await getBoss(settings, role);
   let sent = 0;
   for (const r of rows) {
     const id = await boss.send(INSPECTION_QUEUE, { inspectionId: Number(r.id) } satisfies InspectionJobData, {
