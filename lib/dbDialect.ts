@@ -109,3 +109,8 @@ export async function explainPlan(sequelize: Sequelize, sql: string, replacement
 export function likeOperator(sequelize: HasDialect): 'ILIKE' | 'LIKE' {
   return isPostgres(sequelize) ? 'ILIKE' : 'LIKE';
 }
+
+/** SQL for the UTC calendar day ('YYYY-MM-DD') of a date column. SQLite keeps dates as UTC text. */
+export function utcDaySql(sequelize: HasDialect, column: string): string {
+  return isPostgres(sequelize) ? `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD')` : `substr(${column}, 1, 10)`;
+}
