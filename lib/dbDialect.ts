@@ -3,7 +3,7 @@
  * Hotlap is portable SQL (quoted snake_case names, `ON CONFLICT`, `CURRENT_TIMESTAMP`, aliased
  * subqueries) or goes through Sequelize. Which dialect: the connection's own (`getDialect()`).
  */
-import { DataTypes, type QueryInterface, type Sequelize } from 'sequelize';
+import { DataTypes, QueryTypes, type QueryInterface, type Sequelize } from 'sequelize';
 
 type HasDialect = Pick<Sequelize, 'getDialect'>;
 
@@ -34,11 +34,6 @@ export function parseDateColumn(value: unknown): Date | null {
   // SQLite's text form from Sequelize: '2026-12-03 18:00:00.000 +00:00'; CURRENT_TIMESTAMP: '2026-12-03 18:00:00' (UTC).
   const iso = text.replace(' ', 'T').replace(/ ?([+-]\d\d:\d\d)$/, '$1');
   return new Date(/[zZ]|[+-]\d\d:\d\d$/.test(iso) ? iso : `${iso}Z`);
-}
-
-/** A boolean from a raw query row (SQLite stores 0/1, PostgreSQL returns true/false). */
-export function parseBoolColumn(value: unknown): boolean {
-  return value === true || value === 1 || value === '1' || value === 't';
 }
 
 /** The table a trigger event like 'AFTER UPDATE OF name ON users' fires on. */
@@ -82,16 +77,7 @@ export async function listTriggers(sequelize: Sequelize): Promise<string[]> {
   const sql = isPostgres(sequelize)
     ? `SELECT tgname AS "name" FROM pg_trigger WHERE NOT tgisinternal ORDER BY tgname`
     : `SELECT name AS "name" FROM sqlite_master WHERE type = 'trigger' ORDER BY name`;
-  const rows = (await sequelize.query(sql, { type: 'SELECT' as never })) as unknown as { name: string }[];
-  return rows.map((r) => r.name);
-}
-
-/** Names of the tables (excluding the database's own catalogue). */
-export async function listTables(sequelize: Sequelize): Promise<string[]> {
-  const sql = isPostgres(sequelize)
-    ? `SELECT tablename AS "name" FROM pg_tables WHERE schemaname = current_schema() ORDER BY tablename`
-    : `SELECT name AS "name" FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name`;
-  const rows = (await sequelize.query(sql, { type: 'SELECT' as never })) as unknown as { name: string }[];
+  const rows = (await sequelize.query(sql, { type: QueryTypes.SELECT })) as unknown as { name: string }[];
   return rows.map((r) => r.name);
 }
 
@@ -101,11 +87,11 @@ export async function listTables(sequelize: Sequelize): Promise<string[]> {
  */
 export async function explainPlan(sequelize: Sequelize, sql: string, replacements?: Record<string, unknown> | unknown[]): Promise<string[]> {
   const pg = isPostgres(sequelize);
-  const rows = (await sequelize.query(`${pg ? 'EXPLAIN' : 'EXPLAIN QUERY PLAN'} ${sql}`, { type: 'SELECT' as never, replacements: replacements as never })) as unknown as Record<string, string>[];
+  const rows = (await sequelize.query(`${pg ? 'EXPLAIN' : 'EXPLAIN QUERY PLAN'} ${sql}`, { type: QueryTypes.SELECT, replacements: replacements as never })) as unknown as Record<string, string>[];
   return rows.map((r) => (pg ? r['QUERY PLAN'] : r.detail));
 }
 
-/** A case-insensitive LIKE: ILIKE on PostgreSQL; SQLite's LIKE already ignores ASCII case. */
-export function likeOperator(sequelize: HasDialect): 'ILIKE' | 'LIKE' {
-  return isPostgres(sequelize) ? 'ILIKE' : 'LIKE';
+/** SQL for the UTC calendar day ('YYYY-MM-DD') of a date column. SQLite keeps dates as UTC text. */
+export function utcDaySql(sequelize: HasDialect, column: string): string {
+  return isPostgres(sequelize) ? `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD')` : `substr(${column}, 1, 10)`;
 }

@@ -4,6 +4,7 @@
  * G-code found through compression and edited comments. Each scenario gets its own season and
  * fresh entrants, so other test files on the same server do not interfere.
  */
+import { dataDirOf } from '../support/server';
 import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
@@ -17,7 +18,7 @@ import { insertEntry, insertMachine, insertSeason } from '../support/standings-f
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
-const dataDir = path.dirname(dbFile);
+const dataDir = dataDirOf(dbFile);
 
 type Entrant = Client & { email: string; id: number; machineId: number };
 const clients: Record<string, Client> = {};

@@ -4,6 +4,7 @@
  * submitted, frozen standings keep their entries, the season's entry window, real dates, photos
  * that decode and plain-digit ids.
  */
+import { dataDirOf } from '../support/server';
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import fs from 'node:fs';
 import path from 'node:path';
@@ -18,7 +19,7 @@ import { createReviewableEntry, FIXTURE_GCODE_DIR, seasonId as seasonIdOf, sqlDa
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
-const dataDir = path.dirname(dbFile);
+const dataDir = dataDirOf(dbFile);
 
 /** A G-code that passes the demo season's blocking rules, made unique (the duplicate check). */
 // A command, not a comment, makes each copy unique: the duplicate check ignores comments.

@@ -10,7 +10,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { gunzipSync, gzipSync } from 'node:zlib';
-import { prepareDatabase, spawnApp, testEnv } from '../support/server';
+import { prepareDatabase, spawnApp, testDb, testEnv } from '../support/server';
 import { sql } from '../support/db';
 import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 
@@ -18,7 +18,7 @@ import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 60;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-restart-'));
 const env = { ...testEnv(port, dataDir), HOTLAP_JOB_LEASE_MS: '2000', HOTLAP_JOB_POLL_MS: '300', HOTLAP_INSPECTION_WORKERS: '1' };
-const dbFile = path.join(dataDir, 'hotlap.sqlite');
+const dbFile = testDb(testEnv(port, dataDir));
 const JOBS = 6;
 let jobIds: number[] = [];
 let server: ChildProcess | null = null;

@@ -3,6 +3,7 @@
  * slicer G-code, its inspection (the engine's own report) and photos. Used by the judging
  * integration and browser tests so they do not depend on the submission pages.
  */
+import { dataDirOf } from './server';
 import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
@@ -64,7 +65,7 @@ export async function createSubmittedEntry(
  * the season's rules and the entry's claims, as the submission flow does. Returns the inspection id.
  */
 export async function inspectEntryWithFixture(dbFile: string, entryId: number, fixture = 'prusa-beacon-020.gcode.gz', opts: { engineVersion?: string; claimedTimeMs?: number } = {}): Promise<number> {
-  const dataDir = path.dirname(dbFile);
+  const dataDir = dataDirOf(dbFile);
   const src = path.join(FIXTURE_GCODE_DIR, fixture);
   const bytes = fs.readFileSync(src);
   const sha = crypto.createHash('sha256').update(bytes).digest('hex');
@@ -106,7 +107,7 @@ export async function inspectEntryWithFixture(dbFile: string, entryId: number, f
 
 /** Adds a small real PNG photo (and its thumbnail) with a capture time to the entry. */
 export async function addPhoto(dbFile: string, entryId: number, capturedAt = '2026-11-25T18:04:31'): Promise<{ photoId: number; thumbId: number }> {
-  const dataDir = path.dirname(dbFile);
+  const dataDir = dataDirOf(dbFile);
   const png = await sharp({ create: { width: 320, height: 240, channels: 3, background: { r: 215, g: 71, b: 7 } } }).png().toBuffer();
   const thumb = await sharp(png).resize(160).jpeg().toBuffer();
   const now = sqlDate();
