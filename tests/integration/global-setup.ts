@@ -1,13 +1,24 @@
 import type { TestProject } from 'vitest/node';
 import { startServer, type TestServer } from '../support/server';
+import { startFakeS3, type FakeS3 } from '../support/s3';
 
 let server: TestServer | undefined;
+let s3: FakeS3 | undefined;
 
 export default async function setup(project: TestProject) {
+  // HOTLAP_TEST_STORAGE=s3: files go to a local S3 fake (s3rver); every server the tests start
+  // gets its STORAGE_URL through testEnv (tests/support/storage.ts reads HOTLAP_TEST_S3).
+  if (process.env.HOTLAP_TEST_STORAGE === 's3') {
+    s3 = await startFakeS3(Number(process.env.HOTLAP_TEST_S3_PORT || 4570));
+    process.env.HOTLAP_TEST_S3 = JSON.stringify({ endpoint: s3.endpoint, bucket: s3.bucket });
+  }
   server = await startServer(Number(process.env.HOTLAP_TEST_PORT || 3100));
   project.provide('baseUrl', server.url);
   project.provide('dbFile', server.dbFile);
-  return async () => server?.stop();
+  return async () => {
+    await server?.stop();
+    await s3?.stop();
+  };
 }
 
 declare module 'vitest' {

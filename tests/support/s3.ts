@@ -8,6 +8,7 @@ import os from 'node:os';
 import path from 'node:path';
 import S3rver from 's3rver';
 import { CreateBucketCommand, S3Client } from '@aws-sdk/client-s3';
+import { FAKE_S3_KEY as ACCESS_KEY, fakeS3Env } from './storage';
 
 export interface FakeS3 {
   endpoint: string;
@@ -16,20 +17,6 @@ export interface FakeS3 {
   /** What the fake stored or removed, as "<S3 event name> <key>" ("ObjectCreated:Post …" ends a multipart upload). */
   events: string[];
   stop(): Promise<void>;
-}
-
-/** s3rver's fixed credentials (its defaults): a test fake, not a secret. */
-const ACCESS_KEY = 'S3RVER';
-
-export function fakeS3Env(endpoint: string, bucket: string, prefix: string): Record<string, string> {
-  return {
-    STORAGE_URL: `s3://${bucket}/${prefix}`,
-    S3_ENDPOINT: endpoint,
-    S3_FORCE_PATH_STYLE: '1',
-    AWS_REGION: 'us-east-1',
-    AWS_ACCESS_KEY_ID: ACCESS_KEY,
-    AWS_SECRET_ACCESS_KEY: ACCESS_KEY,
-  };
 }
 
 export async function startFakeS3(port: number, bucket = 'hotlap-test'): Promise<FakeS3> {

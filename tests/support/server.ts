@@ -6,6 +6,7 @@ import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import os from 'node:os';
+import { testStorageEnv } from './storage';
 
 export interface TestServer {
   url: string;
@@ -30,6 +31,8 @@ export function testEnv(port: number, dataDir: string): Record<string, string> {
     TRUST_PROXY: '1',
     SMTP_URL: '',
     HOTLAP_DEMO_EVIDENCE: '0',
+    // Local disk unless the suite runs on the S3 fake (HOTLAP_TEST_STORAGE=s3).
+    ...testStorageEnv(dataDir),
   };
 }
 

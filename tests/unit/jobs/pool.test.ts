@@ -102,7 +102,7 @@ describe('inspection pool', () => {
   });
 
   it('on S3 storage the thread reads the G-code from the bucket itself (settings passed to the thread)', async () => {
-    const s3 = await startFakeS3(Number(process.env.HOTLAP_TEST_S3_PORT || 4572) + 1);
+    const s3 = await startFakeS3(Number(process.env.HOTLAP_TEST_S3_PORT || 4570) + 3);
     const saved = process.env.STORAGE_URL;
     const env = s3.env('pool');
     Object.assign(process.env, env);

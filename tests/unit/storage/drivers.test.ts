@@ -13,7 +13,7 @@ import { Readable } from 'node:stream';
 import { createDriver, storageConfig, StorageNotFoundError, S3_PART_BYTES, type StorageDriver } from '@/lib/storage/drivers';
 import { startFakeS3, type FakeS3 } from '../../support/s3';
 
-const PORT = Number(process.env.HOTLAP_TEST_S3_PORT || 4572);
+const PORT = Number(process.env.HOTLAP_TEST_S3_PORT || 4570) + 2;
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-storage-'));
 let s3: FakeS3;
 
