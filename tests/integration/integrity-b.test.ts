@@ -15,6 +15,7 @@ import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { addPhoto, FIXTURE_GCODE_DIR, inspectEntryWithFixture, sqlDate, userId } from '../support/judging-fixtures';
 import { insertEntry, insertMachine, insertSeason } from '../support/standings-fixtures';
+import { putTestFile } from '../support/storage';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
@@ -403,8 +404,7 @@ describe('duplicate G-code through compression and edited comments', () => {
     const id = await insertEntry(dbFile, { seasonId: s.seasonId, classId: s.classIds.alpha, entrantId: owner.id, machineId: owner.machineId, timeMs: 1_500_000, submittedAt: new Date().toISOString(), state: 'draft' });
     const sha = crypto.createHash('sha256').update(bytes).digest('hex');
     const key = `entries/${id}/gcode-${sha.slice(0, 16)}-dup.${name.endsWith('.gz') ? 'gcode.gz' : 'gcode'}`;
-    fs.mkdirSync(path.join(dataDir, 'uploads', path.dirname(key)), { recursive: true });
-    fs.writeFileSync(path.join(dataDir, 'uploads', key), bytes);
+    await putTestFile(dataDir, key, bytes);
     const t = sqlDate();
     await sql(dbFile, `INSERT INTO stored_files (owner_id, entry_id, kind, original_name, mime, size_bytes, sha256, storage_key, meta, created_at, updated_at)
       VALUES (?, ?, 'gcode', ?, 'text/x-gcode', ?, ?, ?, '{}', ?, ?)`, [owner.id, id, name, bytes.length, sha, key, t, t]);

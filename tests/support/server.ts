@@ -10,6 +10,7 @@ import path from 'node:path';
 import os from 'node:os';
 import crypto from 'node:crypto';
 import { createDatabase } from './postgres';
+import { testStorageEnv } from './storage';
 
 export interface TestServer {
   url: string;
@@ -59,6 +60,8 @@ export function testEnv(port: number, dataDir: string): Record<string, string> {
     TRUST_PROXY: '1',
     SMTP_URL: '',
     HOTLAP_DEMO_EVIDENCE: '0',
+    // Local disk unless the suite runs on the S3 fake (HOTLAP_TEST_STORAGE=s3).
+    ...testStorageEnv(dataDir),
   };
 }
 
