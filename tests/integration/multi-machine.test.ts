@@ -5,9 +5,10 @@
  * the entry. A worker killed with SIGKILL in the middle of a job is replaced by the other: the job runs
  * again to completion, once, and nothing is lost.
  *
- * Runs when HOTLAP_TEST_POSTGRES_URL names a PostgreSQL server where the URL's user may create
- * databases (scripts/test-all.sh starts a throwaway one when Debian's postgresql is installed);
- * otherwise it is skipped with a note.
+ * Runs in the integration run on PostgreSQL (HOTLAP_TEST_DB=postgres, scripts/test-all.sh: the global
+ * setup starts a throwaway cluster), or against HOTLAP_TEST_POSTGRES_URL (a server whose user may
+ * create databases); skipped otherwise. Storage: the run's (S3 fake with HOTLAP_TEST_STORAGE=s3),
+ * else one local folder shared by all four processes.
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -23,7 +24,13 @@ import { Client } from '../support/client';
 import { DEMO_PASSWORD, demoEmail } from '../support/demo';
 import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 
-const ADMIN_URL = process.env.HOTLAP_TEST_POSTGRES_URL;
+/** The PostgreSQL server: the suite's throwaway cluster (HOTLAP_TEST_DB=postgres) or one named by HOTLAP_TEST_POSTGRES_URL. */
+const CLUSTER_URL = process.env.HOTLAP_TEST_PG_URL || process.env.HOTLAP_TEST_POSTGRES_URL;
+const urlOf = (db: string) => {
+  const u = new URL(CLUSTER_URL!);
+  u.pathname = `/${db}`;
+  return u.toString();
+};
 const ROOT = path.resolve(__dirname, '..', '..');
 const base = Number(process.env.HOTLAP_TEST_PORT || 3100);
 const [portA, portB] = [base + 3, base + 4];
@@ -124,18 +131,19 @@ const standingsHas = async (server: string, entrant: string) => {
   return ((await res.json()) as { rows: { entrant: string }[] }).rows.some((r) => r.entrant === entrant);
 };
 
-describe.skipIf(!ADMIN_URL)('Hotlap on several machines (PostgreSQL, two web servers, two workers)', () => {
+describe.skipIf(!CLUSTER_URL)('Hotlap on several machines (PostgreSQL, two web servers, two workers)', () => {
   let A = '';
   let B = '';
 
   beforeAll(async () => {
-    const admin = new pg.Client({ connectionString: ADMIN_URL });
-    await admin.connect();
-    await admin.query(`CREATE DATABASE ${dbName}`);
-    await admin.end();
-    const u = new URL(ADMIN_URL!);
-    u.pathname = `/${dbName}`;
-    dbUrl = u.toString();
+    dbUrl = urlOf(dbName);
+    // On the suite's cluster prepareDatabase creates it (tests/support/server.ts); elsewhere, here.
+    if (!dbUrl.startsWith(`${process.env.HOTLAP_TEST_PG_URL}/`)) {
+      const admin = new pg.Client({ connectionString: urlOf('postgres') });
+      await admin.connect();
+      await admin.query(`CREATE DATABASE ${dbName}`);
+      await admin.end();
+    }
     db = new pg.Pool({ connectionString: dbUrl, max: 2 });
     // Migrations and the demo data, once, as an operator runs them before starting the processes.
     prepareDatabase(envFor(portA));
@@ -151,8 +159,8 @@ describe.skipIf(!ADMIN_URL)('Hotlap on several machines (PostgreSQL, two web ser
   afterAll(async () => {
     for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL');
     await db?.end();
-    if (ADMIN_URL) {
-      const admin = new pg.Client({ connectionString: ADMIN_URL });
+    if (CLUSTER_URL) {
+      const admin = new pg.Client({ connectionString: urlOf('postgres') });
       await admin.connect();
       await admin.query(`DROP DATABASE IF EXISTS ${dbName} WITH (FORCE)`).catch(() => undefined);
       await admin.end();
@@ -197,7 +205,7 @@ describe.skipIf(!ADMIN_URL)('Hotlap on several machines (PostgreSQL, two web ser
     const entryId = await submit(maker, 'second');
     const [{ id: inspectionId }] = await until('the inspection row', () => inspectionsOf(entryId), (r) => r.length === 1);
     const claimed = `inspection ${inspectionId} attempt 1 claimed`;
-    const victim = await until('a worker claims the job', () => workers.find((w) => w.log.some((l) => l.endsWith(claimed))), Boolean, 60_000);
+    const victim = (await until('a worker claims the job', () => workers.find((w) => w.log.some((l) => l.endsWith(claimed))), Boolean, 60_000))!;
     const survivor = workers.find((w) => w !== victim)!;
     expect((await inspectionsOf(entryId))[0]).toMatchObject({ status: 'running', attempts: 1 });
     victim.child.kill('SIGKILL');
