@@ -135,7 +135,7 @@ async function main() {
   const pgEntries = arg('pg-entries', 500_000);
   const sqliteEntries = arg('sqlite-entries', 50_000);
   const requests = arg('requests', 100);
-  const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 52;
+  const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 5;
   let cluster: Cluster | undefined;
   const clusterUrl = process.env.HOTLAP_BENCH_POSTGRES_URL || (cluster = startCluster(Number(process.env.HOTLAP_BENCH_PG_PORT || port + 2400))).url;
   const rows: Row[] = [];
