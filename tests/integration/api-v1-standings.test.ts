@@ -1,6 +1,7 @@
 /** The v1 standings API against the built app: ranking, ties, best-per-entrant, filters, CSV, ETags, frozen seasons, validation. */
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
+import { dataDirOf } from '../support/server';
 import { insertEntrant, insertEntry, insertMachine, insertSeason, setSeasonState } from '../support/standings-fixtures';
 import { parseCsv } from '@/lib/standings/csv';
 
@@ -314,7 +315,7 @@ describe('seasons and entries', () => {
     const bytes = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2, 3]);
     const addFile = async (entryId: number, kind: string) => {
       const key = `entries/${entryId}/${kind}-${Date.now()}-${Math.random().toString(36).slice(2)}.png`;
-      const file = path.join(path.dirname(db), 'uploads', key);
+      const file = path.join(dataDirOf(db), 'uploads', key);
       fs.mkdirSync(path.dirname(file), { recursive: true });
       fs.writeFileSync(file, bytes);
       const t = new Date().toISOString().replace('T', ' ').replace('Z', ' +00:00');
