@@ -96,10 +96,14 @@ function serializeTransactions(sequelize: Sequelize): Sequelize {
     if (i < 0) return transaction(...args);
     const fn = args[i] as (t: Transaction) => Promise<unknown>;
     const wrapped = async (t: Transaction) => {
+      // A transaction stuck behind the lock fails after this instead of holding its connection forever.
+      await sequelize.query(`SET LOCAL lock_timeout = '${WRITE_LOCK_WAIT_MS}ms'`, { transaction: t });
       await sequelize.query(`SELECT pg_advisory_xact_lock(${PG_WRITE_LOCK_KEY})`, { transaction: t, type: QueryTypes.SELECT });
       return fn(t);
     };
-    return transaction(...args.slice(0, i), wrapped, ...args.slice(i + 1));
+    // Queued in this process first (withWriteLock), so that waiting transactions hold no pooled
+    // connection: the one holding the lock can still get a connection for a read outside it.
+    return withWriteLock(() => transaction(...args.slice(0, i), wrapped, ...args.slice(i + 1)));
   };
   return sequelize;
 }

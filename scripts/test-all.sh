@@ -30,7 +30,8 @@ fi
 npm run build:engine
 npx next build
 npx vitest run
-# The integration project again, on PostgreSQL (every test server gets a fresh database on the cluster).
-# Storage for this run: STORAGE_URL (S3 fake) is added here.
-HOTLAP_TEST_DB=postgres npx vitest run --project integration
+# The integration project again, on PostgreSQL (every test server gets a fresh database on a
+# throwaway cluster that the global setup starts). More settings for this run: one line each.
+HOTLAP_TEST_DB=postgres \
+  npx vitest run --project integration
 npx playwright test

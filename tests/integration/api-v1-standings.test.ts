@@ -1,6 +1,7 @@
 /** The v1 standings API against the built app: ranking, ties, best-per-entrant, filters, CSV, ETags, frozen seasons, validation. */
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
+import { dataDirOf } from '../support/server';
 import { insertEntrant, insertEntry, insertMachine, insertSeason, setSeasonState } from '../support/standings-fixtures';
 import { parseCsv } from '@/lib/standings/csv';
 
@@ -314,7 +315,7 @@ describe('seasons and entries', () => {
     const bytes = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2, 3]);
     const addFile = async (entryId: number, kind: string) => {
       const key = `entries/${entryId}/${kind}-${Date.now()}-${Math.random().toString(36).slice(2)}.png`;
-      await putTestFile(path.dirname(db), key, bytes);
+      await putTestFile(dataDirOf(db), key, bytes);
       const t = new Date().toISOString().replace('T', ' ').replace('Z', ' +00:00');
       const [r] = await sql<{ id: number }>(db, "INSERT INTO stored_files (entry_id, kind, original_name, mime, size_bytes, sha256, storage_key, meta, created_at, updated_at) VALUES (?, ?, 'tower.png', 'image/png', ?, 'x', ?, '{}', ?, ?) RETURNING id", [entryId, kind, bytes.length, key, t, t]);
       return r.id;

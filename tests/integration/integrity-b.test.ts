@@ -45,7 +45,7 @@ async function entrant(name: string): Promise<Entrant> {
 async function season(classes = ['alpha', 'beta']) {
   const s = await insertSeason(dbFile, { classes });
   const t = sqlDate();
-  await sql(dbFile, 'UPDATE seasons SET created_by_id = ?, photos_required = 0, video_required = 0 WHERE id = ?', [organizerId, s.seasonId]);
+  await sql(dbFile, 'UPDATE seasons SET created_by_id = ?, photos_required = 0, video_required = FALSE WHERE id = ?', [organizerId, s.seasonId]);
   await sql(dbFile, `INSERT INTO rules (season_id, class_id, metric, comparator, value, value_max, tolerance, severity, sentence, position, created_at, updated_at)
     VALUES (?, NULL, 'walls', 'eq', 2, NULL, 0, 'blocking', 'Walls must be 2.', 0, ?, ?)`, [s.seasonId, t, t]);
   await sql(dbFile, 'INSERT INTO season_judges (season_id, user_id, appointed_by_id, created_at, updated_at) VALUES (?, ?, ?, ?, ?)', [s.seasonId, judgeId, organizerId, t, t]);
