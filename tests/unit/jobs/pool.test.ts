@@ -4,7 +4,7 @@
  * cap on gzip, a truncated gzip and the time limit, each with its sentence. The worker is given
  * storage keys and reads the G-code from storage itself (here local disk in a temporary folder).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, it, expect, beforeAll, afterAll, vi } from 'vitest';
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
@@ -108,7 +108,7 @@ describe('inspection pool', () => {
     Object.assign(process.env, env);
     try {
       await putBuffer('entries/9/gcode-s3.gcode.gz', fs.readFileSync(FIXTURE_FILE));
-      expect(s3.events).toContain('ObjectCreated:Put pool/entries/9/gcode-s3.gcode.gz');
+      await vi.waitFor(() => expect(s3.events).toContain('ObjectCreated:Put pool/entries/9/gcode-s3.gcode.gz'));
       const { report } = await inspectInPool('entries/9/gcode-s3.gcode.gz', { name: 'beacon.gcode.gz' }, base);
       expect(report.layers.count).toBe(200);
       const err = await failure(inspectInPool('entries/9/none.gcode', {}, base));

@@ -4,7 +4,7 @@
  * stream, stat, list, delete, a clear "not found", and a >5 MB file sent to S3 in parts (read back
  * from the fake's own event for a completed multipart upload).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, it, expect, beforeAll, afterAll, vi } from 'vitest';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
@@ -106,8 +106,8 @@ describe.each(Object.keys(drivers))('%s driver', (name) => {
     if (name === 's3') {
       // Seen by the fake itself: the big file ended a multipart upload (S3's "ObjectCreated:Post"
       // event for CompleteMultipartUpload); the small ones were single PUTs.
-      expect(s3.events).toContain('ObjectCreated:Post unit/entries/4/gcode-big.gcode');
-      expect(s3.events).toContain('ObjectCreated:Put unit/entries/1/photo-b.jpg');
+      await vi.waitFor(() => expect(s3.events).toContain('ObjectCreated:Post unit/entries/4/gcode-big.gcode'));
+      await vi.waitFor(() => expect(s3.events).toContain('ObjectCreated:Put unit/entries/1/photo-b.jpg'));
     }
   });
 });
