@@ -181,6 +181,8 @@ describe.skipIf(!CLUSTER_URL)('Hotlap on several machines (PostgreSQL, two web s
     const [row] = await until('inspection done', () => inspectionsOf(entryId), (r) => r.length === 1 && r[0].status === 'done', 60_000);
     expect(row).toMatchObject({ attempts: 1, error: null, has_report: true });
     // The log line comes just after the write: wait for it.
+    // One storage for all four processes: the S3 fake in the run on it (nothing on local disk), else the shared folder.
+    expect(fs.existsSync(path.join(dataDir, 'uploads', 'entries', String(entryId)))).toBe(!process.env.HOTLAP_TEST_S3);
     const ranBy = await until('the worker’s log', () => workers.filter((w) => w.log.some((l) => l.endsWith(`inspection ${row.id} attempt 1 ended`))), (r) => r.length > 0, 10_000);
     expect(ranBy).toHaveLength(1);
     // Its pg-boss job(s) all completed; one claim in the workers' logs.
