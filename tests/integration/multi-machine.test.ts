@@ -54,6 +54,8 @@ function envFor(port: number): Record<string, string> {
     HOTLAP_JOB_LEASE_MS: '2000',
     HOTLAP_JOB_POLL_MS: '300',
     HOTLAP_INSPECTION_WORKERS: '1',
+    // The web servers only enqueue: the workers run every inspection.
+    HOTLAP_EMBEDDED_WORKER: '0',
   };
 }
 

@@ -60,6 +60,8 @@ export function testEnv(port: number, dataDir: string): Record<string, string> {
     TRUST_PROXY: '1',
     SMTP_URL: '',
     HOTLAP_DEMO_EVIDENCE: '0',
+    // On PostgreSQL a web server only enqueues inspections (workers run them); a test server runs them itself.
+    HOTLAP_EMBEDDED_WORKER: '1',
     // Local disk unless the suite runs on the S3 fake (HOTLAP_TEST_STORAGE=s3).
     ...testStorageEnv(dataDir),
   };
