@@ -56,6 +56,14 @@ function withPragmas(lib: typeof sqlite3): typeof sqlite3 {
   return { ...lib, Database: Database as unknown as typeof sqlite3.Database };
 }
 
+/** DATABASE_URL for logs: a password in it is replaced by `***`. */
+export function databaseLabel(url = databaseUrl()): string {
+  if (!usesPostgres(url)) return url;
+  const u = new URL(url);
+  if (u.password) u.password = '***';
+  return u.toString();
+}
+
 /** True when DATABASE_URL names a PostgreSQL database. */
 export function usesPostgres(url = databaseUrl()): boolean {
   return /^postgres(ql)?:\/\//i.test(url);

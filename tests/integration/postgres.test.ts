@@ -10,6 +10,7 @@ import crypto from 'node:crypto';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import pg from 'pg';
 import { createDatabase } from '../support/postgres';
+import { insertEntrant, insertEntry, insertInspection, insertMachine, insertSeason } from '../support/standings-fixtures';
 
 const cluster = process.env.HOTLAP_TEST_PG_URL;
 const dbName = `hotlap_dialect_${crypto.randomBytes(4).toString('hex')}`;
@@ -109,5 +110,34 @@ describe.skipIf(!cluster)('PostgreSQL dialect', () => {
     } finally {
       await other.end();
     }
+  });
+
+  it('the queue claim passes over a job whose row another claimer holds (FOR UPDATE SKIP LOCKED), then takes it once free', async () => {
+    const db = process.env.DATABASE_URL!;
+    const season = await insertSeason(db, { classes: ['open'] });
+    const jobs: number[] = [];
+    for (const name of ['Claim One', 'Claim Two']) {
+      const entrant = await insertEntrant(db, name);
+      const machine = await insertMachine(db, entrant, `${name} machine`);
+      const entry = await insertEntry(db, { seasonId: season.seasonId, classId: season.classIds.open, entrantId: entrant, machineId: machine, timeMs: 1_600_000, submittedAt: '2026-11-20T10:00:00Z', state: 'draft' });
+      jobs.push(await insertInspection(db, entry, { peak: null, p95: 0, layerMm: 0.2, status: 'queued' }));
+    }
+    const { sqlInspectionQueue } = await import('@/lib/jobs/sqlQueue');
+    const queue = sqlInspectionQueue({ leaseMs: 60_000, maxAttempts: 3, retryMs: 1000 });
+    // Another process is in the middle of claiming the first job: its row is locked.
+    const other = new pg.Client({ connectionString: db });
+    await other.connect();
+    try {
+      await other.query('BEGIN');
+      await other.query('SELECT id FROM inspections WHERE id = $1 FOR UPDATE', [jobs[0]]);
+      expect((await queue.claim(new Date()))?.id).toBe(jobs[1]);
+      await other.query('ROLLBACK');
+    } finally {
+      await other.end();
+    }
+    expect((await queue.claim(new Date()))?.id).toBe(jobs[0]);
+    expect(await queue.claim(new Date())).toBeNull();
+    const rows = await select<{ id: number; status: string; attempts: number }>('SELECT id, status, attempts FROM inspections WHERE id IN (?) ORDER BY id', [jobs]);
+    expect(rows).toEqual(jobs.map((id) => ({ id, status: 'running', attempts: 1 })));
   });
 });
