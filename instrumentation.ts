@@ -8,5 +8,7 @@ export async function register() {
   (await import('@/lib/security/forbiddenMethods')).refuseForbiddenMethods();
   // Mail that a stopped server left pending goes out now; retries keep running in the background.
   (await import('@/lib/mail')).startOutbox();
+  // Inspections: SQLite runs them here; PostgreSQL only enqueues (workers run them: npm run worker),
+  // unless HOTLAP_EMBEDDED_WORKER=1.
   await (await import('@/lib/jobs/start')).startJobs();
 }

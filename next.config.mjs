@@ -34,7 +34,8 @@ const nextConfig = {
   distDir: process.env.NEXT_DIST_DIR || '.next',
   // The ORM and the native SQLite driver load dialect modules dynamically; bundling breaks that.
   // piscina starts its threads from its own worker.js, found relative to its installed files.
-  serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs', 'rate-limiter-flexible', 'piscina'],
+  // pg-boss: the job queue on PostgreSQL (lib/jobs/bossQueue.ts), loaded as installed beside its driver.
+  serverExternalPackages: ['sequelize', 'sqlite3', 'nodemailer', 'formidable', 'bcryptjs', 'rate-limiter-flexible', 'piscina', 'pg-boss'],
   poweredByHeader: false,
   // Type errors are checked once, by `npm run typecheck` (run by .ci/run), not again in every build.
   typescript: { ignoreBuildErrors: true },

@@ -7,7 +7,8 @@ import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
 import { ContestClass, Entry, Machine, Rule, Season, SeasonJudge, StoredFile, TestPiece, User, ExtrusionTest } from '@/models';
-import { getSequelize, dataDir } from '@/lib/db';
+import { getSequelize } from '@/lib/db';
+import { putBuffer } from '@/lib/storage';
 import { hashPassword } from '@/lib/auth/password';
 import { parseStl } from '@/lib/stl';
 import { testPieceColumns } from '@/lib/seasons/testPieceColumns';
@@ -104,11 +105,9 @@ export async function seedDemo(opts: { log?: (s: string) => void } = {}) {
     const stlPath = path.join(process.cwd(), 'tests', 'fixtures', 'stl', 'beacon.stl');
     const stlBytes = fs.readFileSync(stlPath);
     const stl = parseStl(stlBytes);
-    const uploads = path.join(dataDir(), 'uploads', 'test-pieces');
-    fs.mkdirSync(uploads, { recursive: true });
     for (const season of [frost, leaf]) {
       const key = `test-pieces/${season.slug}-beacon.stl`;
-      fs.writeFileSync(path.join(dataDir(), 'uploads', key), stlBytes);
+      await putBuffer(key, stlBytes, { contentType: 'model/stl' });
       const file = await StoredFile.create(
         {
           ownerId: users.organizer.id,

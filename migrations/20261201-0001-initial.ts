@@ -1,5 +1,6 @@
 /** Initial schema: every entity of the product, with the keys and indexes standings and queues use. */
 import { DataTypes, type QueryInterface } from 'sequelize';
+import { jsonColumnType } from '../lib/dbDialect';
 
 const id = { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true };
 const stamps = {
@@ -17,7 +18,8 @@ const text = (n: number, defaultValue?: string) =>
     ? { type: DataTypes.STRING(n), allowNull: false }
     : { type: DataTypes.STRING(n), allowNull: false, defaultValue };
 const num = (allowNull = false) => ({ type: DataTypes.DOUBLE, allowNull });
-const json = (defaultValue: unknown) => ({ type: DataTypes.JSON, allowNull: false, defaultValue });
+// JSON documents: JSONB on PostgreSQL, JSON text on SQLite (lib/dbDialect.ts).
+const json = (qi: QueryInterface, defaultValue: unknown) => ({ type: jsonColumnType(qi.sequelize), allowNull: false, defaultValue });
 
 export async function up({ context: qi }: { context: QueryInterface }) {
   await qi.createTable('users', {
@@ -25,7 +27,7 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     email: { ...text(254), unique: true },
     name: text(80),
     password_hash: text(100),
-    roles: json(['entrant']),
+    roles: json(qi, ['entrant']),
     email_verified_at: { type: DataTypes.DATE, allowNull: true },
     ...stamps,
   });
@@ -75,7 +77,7 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     size_bytes: { type: DataTypes.INTEGER, allowNull: false },
     sha256: text(64),
     storage_key: { ...text(300), unique: true },
-    meta: json({}),
+    meta: json(qi, {}),
     ...stamps,
   });
   await qi.addIndex('stored_files', ['entry_id', 'kind']);
@@ -106,10 +108,10 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     slug: text(64),
     name: text(120),
     description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
-    nozzle_diameters_mm: json([]),
+    nozzle_diameters_mm: json(qi, []),
     nozzle_min_mm: num(true),
-    material_families: json([]),
-    motion_systems: json([]),
+    material_families: json(qi, []),
+    motion_systems: json(qi, []),
     build_volume_min_mm: num(true),
     build_volume_max_mm: num(true),
     modification: text(16, 'any'),
@@ -161,7 +163,7 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     sample_length_mm: num(),
     reference_mass_g: num(),
     threshold_percent: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 98 },
-    steps: json([]),
+    steps: json(qi, []),
     limit_flow_mm3s: num(true),
     tested_at: { type: DataTypes.DATE, allowNull: false },
     ...stamps,
@@ -200,9 +202,9 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     stored_file_id: fk('stored_files', true, 'SET NULL'),
     engine_version: text(32),
     status: text(16, 'queued'),
-    report: { type: DataTypes.JSON, allowNull: true },
-    rule_results: json([]),
-    flags: json([]),
+    report: { type: jsonColumnType(qi.sequelize), allowNull: true },
+    rule_results: json(qi, []),
+    flags: json(qi, []),
     blocking_failures: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     advisory_flags: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     peak_flow_mm3s: num(true),
@@ -219,9 +221,9 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     entry_id: fk('entries'),
     judge_id: fk('users', false, 'RESTRICT'),
     decision: text(16),
-    reason_codes: json([]),
+    reason_codes: json(qi, []),
     note: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
-    checklist: json({}),
+    checklist: json(qi, {}),
     ...stamps,
   });
   await qi.addIndex('reviews', ['entry_id', 'created_at']);
@@ -232,7 +234,7 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     action: text(64),
     subject_type: text(32),
     subject_id: text(64),
-    details: json({}),
+    details: json(qi, {}),
     ip: { type: DataTypes.STRING(64), allowNull: true },
     created_at: { type: DataTypes.DATE, allowNull: false },
   });

@@ -4,6 +4,7 @@
  * mails) and judge invitations sent by e-mail.
  */
 import { DataTypes, type QueryInterface } from 'sequelize';
+import { jsonColumnType } from '../lib/dbDialect';
 
 const stamps = {
   created_at: { type: DataTypes.DATE, allowNull: false },
@@ -17,7 +18,7 @@ const fk = (table: string, allowNull = false, onDelete: 'CASCADE' | 'SET NULL' =
 });
 
 export async function up({ context: qi }: { context: QueryInterface }) {
-  await qi.addColumn('seasons', 'photo_kinds', { type: DataTypes.JSON, allowNull: false, defaultValue: [] });
+  await qi.addColumn('seasons', 'photo_kinds', { type: jsonColumnType(qi.sequelize), allowNull: false, defaultValue: [] });
   await qi.addColumn('seasons', 'standings_frozen_at', { type: DataTypes.DATE, allowNull: true });
   await qi.addColumn('seasons', 'reinspect_requested_at', { type: DataTypes.DATE, allowNull: true });
   await qi.createTable('season_subscriptions', {

@@ -4,6 +4,7 @@
  * readers recompute a class's ranking only after something changed — whoever wrote it.
  */
 import type { QueryInterface } from 'sequelize';
+import { createTrigger, dropTrigger } from '../lib/dbDialect';
 
 export const STANDINGS_TRIGGERS: [name: string, event: string][] = [
   ['standings_bump_entries_ins', 'AFTER INSERT ON entries'],
@@ -20,13 +21,13 @@ export const STANDINGS_TRIGGERS: [name: string, event: string][] = [
 export async function up({ context: qi }: { context: QueryInterface }) {
   const q = (sql: string) => qi.sequelize.query(sql);
   await q('CREATE TABLE IF NOT EXISTS standings_version (id INTEGER PRIMARY KEY CHECK (id = 1), version INTEGER NOT NULL)');
-  await q('INSERT OR IGNORE INTO standings_version (id, version) VALUES (1, 0)');
+  await q('INSERT INTO standings_version (id, version) VALUES (1, 0) ON CONFLICT DO NOTHING');
   for (const [name, event] of STANDINGS_TRIGGERS) {
-    await q(`CREATE TRIGGER IF NOT EXISTS ${name} ${event} BEGIN UPDATE standings_version SET version = version + 1 WHERE id = 1; END`);
+    await createTrigger(qi, name, event, 'UPDATE standings_version SET version = version + 1 WHERE id = 1');
   }
 }
 
 export async function down({ context: qi }: { context: QueryInterface }) {
-  for (const [name] of STANDINGS_TRIGGERS) await qi.sequelize.query(`DROP TRIGGER IF EXISTS ${name}`);
+  for (const [name, event] of STANDINGS_TRIGGERS) await dropTrigger(qi, name, event);
   await qi.sequelize.query('DROP TABLE IF EXISTS standings_version');
 }

@@ -4,8 +4,9 @@
  * of entries still waiting for review no longer empty the ranking cache.
  */
 import type { QueryInterface } from 'sequelize';
+import { createTrigger } from '../lib/dbDialect';
 
-const BUMP = 'BEGIN UPDATE standings_version SET version = version + 1 WHERE id = 1; END';
+const BUMP = 'UPDATE standings_version SET version = version + 1 WHERE id = 1';
 const verifiedEntry = (ref: 'NEW' | 'OLD') => `EXISTS (SELECT 1 FROM entries e WHERE e.id = ${ref}.entry_id AND e.state = 'verified')`;
 
 const NARROW: [name: string, event: string, when: string][] = [
@@ -18,15 +19,9 @@ const NARROW: [name: string, event: string, when: string][] = [
 ];
 
 export async function up({ context: qi }: { context: QueryInterface }) {
-  for (const [name, event, when] of NARROW) {
-    await qi.sequelize.query(`DROP TRIGGER IF EXISTS ${name}`);
-    await qi.sequelize.query(`CREATE TRIGGER ${name} ${event} WHEN ${when} ${BUMP}`);
-  }
+  for (const [name, event, when] of NARROW) await createTrigger(qi, name, event, BUMP, when);
 }
 
 export async function down({ context: qi }: { context: QueryInterface }) {
-  for (const [name, event] of NARROW) {
-    await qi.sequelize.query(`DROP TRIGGER IF EXISTS ${name}`);
-    await qi.sequelize.query(`CREATE TRIGGER ${name} ${event} ${BUMP}`);
-  }
+  for (const [name, event] of NARROW) await createTrigger(qi, name, event, BUMP);
 }

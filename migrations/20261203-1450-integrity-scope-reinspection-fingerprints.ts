@@ -5,6 +5,7 @@
  * are found whatever the compression or the comments.
  */
 import { DataTypes, type QueryInterface } from 'sequelize';
+import { jsonColumnType } from '../lib/dbDialect';
 
 const stamps = {
   created_at: { type: DataTypes.DATE, allowNull: false },
@@ -33,7 +34,7 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     previous_inspection_id: fk('inspections', true, 'SET NULL'),
     from_state: { type: DataTypes.STRING(20), allowNull: false },
     to_state: { type: DataTypes.STRING(20), allowNull: false },
-    changes: { type: DataTypes.JSON, allowNull: false, defaultValue: [] },
+    changes: { type: jsonColumnType(qi.sequelize), allowNull: false, defaultValue: [] },
     ...stamps,
   });
   await qi.addIndex('entry_reinspections', ['entry_id']);

@@ -5,8 +5,9 @@
  * write that skipped the counter would leave an old answer in place.
  */
 import type { QueryInterface } from 'sequelize';
+import { createTrigger, dropTrigger } from '../lib/dbDialect';
 
-const BUMP = 'BEGIN UPDATE standings_version SET version = version + 1 WHERE id = 1; END';
+const BUMP = 'UPDATE standings_version SET version = version + 1 WHERE id = 1';
 
 export const PUBLIC_READ_TRIGGERS: [name: string, event: string][] = [
   ['standings_bump_seasons_upd', 'AFTER UPDATE ON seasons'],
@@ -20,13 +21,10 @@ export const PUBLIC_READ_TRIGGERS: [name: string, event: string][] = [
 ];
 
 export async function up({ context: qi }: { context: QueryInterface }) {
-  for (const [name, event] of PUBLIC_READ_TRIGGERS) {
-    await qi.sequelize.query(`DROP TRIGGER IF EXISTS ${name}`);
-    await qi.sequelize.query(`CREATE TRIGGER ${name} ${event} ${BUMP}`);
-  }
+  for (const [name, event] of PUBLIC_READ_TRIGGERS) await createTrigger(qi, name, event, BUMP);
 }
 
 export async function down({ context: qi }: { context: QueryInterface }) {
-  for (const [name] of PUBLIC_READ_TRIGGERS) await qi.sequelize.query(`DROP TRIGGER IF EXISTS ${name}`);
-  await qi.sequelize.query(`CREATE TRIGGER standings_bump_seasons_upd AFTER UPDATE OF state ON seasons ${BUMP}`);
+  for (const [name, event] of PUBLIC_READ_TRIGGERS) await dropTrigger(qi, name, event);
+  await createTrigger(qi, 'standings_bump_seasons_upd', 'AFTER UPDATE OF state ON seasons', BUMP);
 }

@@ -22,6 +22,8 @@ export const OUT_DIR = join(ROOT, '.hotlap', 'engine');
  *  - toolpath-thread: the CLI's second thread for the toolpath-settings analysis
  *    (lib/inspection/toolpathThread.ts), found beside inspect-cli.cjs.
  *  - inspect-worker: the inspection pool's worker thread (lib/jobs/pool.ts), Node, CommonJS.
+ *  - worker: `npm run worker` (scripts/worker.ts), the inspection worker process, Node, CommonJS.
+ *    `external`: its packages (the ORM, database drivers, pg-boss) load from node_modules at run time.
  *  - gcode-check: the rulebook check's Web Worker (components/GcodeCheck.tsx), served as
  *    /engine/gcode-check.js from public/engine/ (gitignored: built, not committed).
  */
@@ -29,6 +31,7 @@ export const ENTRIES = [
   { name: 'inspect-cli', source: 'lib/inspection/cli.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'toolpath-thread', source: 'lib/inspection/toolpathThreadEntry.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'inspect-worker', source: 'lib/jobs/inspect-worker.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
+  { name: 'worker', source: 'scripts/worker.ts', platform: 'node', format: 'cjs', ext: 'cjs', external: true },
   { name: 'gcode-check', source: 'lib/check/checkWorker.ts', platform: 'browser', format: 'iife', ext: 'js', outDir: join(ROOT, 'public', 'engine') },
 ];
 
@@ -51,6 +54,7 @@ async function main() {
       sourcemap: 'linked',
       minifySyntax: true,
       legalComments: 'none',
+      ...(e.external ? { packages: 'external' } : {}),
       logLevel: 'warning',
       // tsconfig.json paths (@/…) are read by esbuild itself.
     });

@@ -1,9 +1,9 @@
 import { migrate } from '@/lib/migrate';
-import { databaseUrl, getSequelize } from '@/lib/db';
+import { databaseLabel, getSequelize } from '@/lib/db';
 
 migrate()
   .then(async (names) => {
-    console.log(names.length ? `Applied ${names.join(', ')} to ${databaseUrl()}` : `Database is up to date (${databaseUrl()})`);
+    console.log(names.length ? `Applied ${names.join(', ')} to ${databaseLabel()}` : `Database is up to date (${databaseLabel()})`);
     await getSequelize().close();
   })
   .catch((err) => {

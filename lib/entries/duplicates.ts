@@ -2,14 +2,14 @@
  * Finding the same G-code in another entrant's entry. Raw file hashes miss a gzipped copy and a
  * copy with edited comments, so each stored G-code gets two fingerprints (lib/inspection/fingerprint):
  * the decompressed content and the moves without comments or whitespace. Fingerprints are computed
- * once per stored file, outside any write transaction (a streaming read of the file), and kept in
+ * once per stored file, outside any write transaction (a stream read from storage), and kept in
  * `gcode_fingerprints`.
  */
 import { Op, QueryTypes } from 'sequelize';
 import { Entry, GcodeFingerprint, StoredFile } from '@/models';
 import { getSequelize } from '@/lib/db';
-import { localPath } from '@/lib/storage';
-import { fingerprintGcodeFile } from '@/lib/inspection/fingerprint';
+import { openRead } from '@/lib/storage';
+import { fingerprintGcodeStream } from '@/lib/inspection/fingerprint';
 
 /** G-code files of older uploads fingerprinted per lookup (a one-off backfill spread over inspections). */
 const BACKFILL_PER_LOOKUP = 20;
@@ -35,7 +35,7 @@ export async function fingerprintOf(file: StoredFile): Promise<GcodeFingerprint 
   const known = await GcodeFingerprint.findByPk(file.id);
   if (known) return known;
   try {
-    const fp = await fingerprintGcodeFile(localPath(file.storageKey));
+    const fp = await fingerprintGcodeStream(await openRead(file.storageKey));
     const [row] = await GcodeFingerprint.upsert({ storedFileId: file.id, contentSha256: fp.contentSha256, movesSha256: fp.movesSha256, lines: fp.lines });
     return row;
   } catch {

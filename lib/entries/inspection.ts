@@ -13,7 +13,6 @@ import { inspectInPool, InspectionRunError, ENGINE_VERSION, wakeJobs, jobSetting
 import { sqlInspectionQueue } from '@/lib/jobs/sqlQueue';
 import { getSequelize } from '@/lib/db';
 import { tooMany } from '@/lib/errors';
-import { localPath } from '@/lib/storage';
 import type { InspectOptions, StoredInspectionJson } from '@/lib/inspection';
 import { isMaterialFamily } from '@/lib/inspection/materials';
 import { latestFlowLimitMm3s } from '@/lib/machines';
@@ -88,7 +87,7 @@ export async function runInspectionJob(claim: JobClaim) {
   }
   try {
     const options = await inspectionOptions(entry, file.sha256);
-    const stored = await inspectInPool(localPath(file.storageKey), { ...options, name: file.originalName }, settings);
+    const stored = await inspectInPool(file.storageKey, { ...options, name: file.originalName }, settings);
     await runInspection(row, claim, stored);
   } catch (err) {
     if (!(err instanceof InspectionRunError)) throw err;

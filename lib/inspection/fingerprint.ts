@@ -13,7 +13,8 @@
  * Framework-free: imports only node:crypto and the reader.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { readFileLines, type LineSink } from './reader';
+import type { Readable } from 'node:stream';
+import { readFileLines, readStreamLines, type LineSink } from './reader';
 import { MAX_LINE_BYTES } from './engineConstants';
 
 export interface GcodeFingerprint {
@@ -105,5 +106,12 @@ class FingerprintSink implements LineSink {
 export async function fingerprintGcodeFile(path: string): Promise<GcodeFingerprint> {
   const sink = new FingerprintSink();
   await readFileLines(path, sink);
+  return sink.result();
+}
+
+/** Fingerprints a byte stream of G-code (plain or gzip), e.g. a stored file read from storage. */
+export async function fingerprintGcodeStream(input: Readable): Promise<GcodeFingerprint> {
+  const sink = new FingerprintSink();
+  await readStreamLines(input, sink);
   return sink.result();
 }

@@ -6,7 +6,7 @@
  * its jobs in the table, and the next one resumes them.
  */
 export const ENGINE_VERSION = 'hotlap-inspect-1';
-export { wakeJobs } from './runner';
+export { wakeJobs } from './wake';
 export { InspectionRunError, inspectInPool } from './pool';
 export { jobSettings, type JobSettings } from './settings';
 export type { JobClaim, JobQueue } from './queue';

@@ -4,19 +4,23 @@
  * heap cap and a time limit). Runs off the web server's event loop, so a 200 MB G-code never
  * blocks a request; a thread that dies takes only its task with it.
  *
+ * The thread is handed a storage key, never a path: it opens the G-code from storage itself
+ * (lib/storage/drivers, the same driver the server uses, set up from the storage variables the pool
+ * passes in), so it works the same on local disk and on S3-compatible storage.
+ *
  * The engine is fed through a counting sink: a small .gz can inflate to gigabytes (a "zip bomb"),
  * so the bytes it inflates to have a cap (`maxInflatedBytes`, a few times the upload limit).
  */
-import { basename } from 'node:path';
 import { getHeapStatistics } from 'node:v8';
 import { isMainThread, resourceLimits } from 'node:worker_threads';
 import { createInspector, InspectionError, type InspectOptions, type StoredInspectionJson } from '../inspection';
 import { toStoredInspection } from '../inspection/engine';
-import { readFileChunks } from '../inspection/reader';
+import { readStreamChunks } from '../inspection/reader';
+import { createDriver, storageConfig, StorageNotFoundError, type StorageDriver } from '../storage/drivers';
 
 export interface InspectTask {
-  /** Path of the stored G-code (plain or gzip). */
-  file: string;
+  /** Storage key of the stored G-code (plain or gzip). */
+  key: string;
   options: InspectOptions;
   /** Cap on the bytes the file may inflate to. */
   maxInflatedBytes: number;
@@ -33,11 +37,25 @@ export function inflatedLimitSentence(maxInflatedBytes: number): string {
   return `The compressed G-code inflates to more than ${Math.round(maxInflatedBytes / MB)} MB, the most an inspection reads: upload the plain .gcode, or check that the .gz holds one print's G-code.`;
 }
 
+const GONE = 'The stored G-code of this inspection is gone; upload it again.';
+
+let driver: { sig: string; driver: StorageDriver } | undefined;
+
+/** The storage this thread reads from: the settings the pool passed in its environment (STORAGE_URL always set). */
+function threadStorage(): StorageDriver {
+  if (!process.env.STORAGE_URL) throw new Error('The inspection worker was started without storage settings (STORAGE_URL).');
+  const config = storageConfig(process.env, '');
+  const sig = JSON.stringify(config);
+  if (driver?.sig !== sig) driver = { sig, driver: createDriver(config) };
+  return driver.driver;
+}
+
 export default async function inspectTask(task: InspectTask): Promise<InspectTaskResult> {
   try {
-    const inspector = createInspector({ ...task.options, name: task.options.name ?? basename(task.file), preview: { maxPoints: task.previewMaxPoints } });
+    const inspector = createInspector({ ...task.options, name: task.options.name ?? task.key.split('/').pop(), preview: { maxPoints: task.previewMaxPoints } });
     let inflated = 0;
-    const source = await readFileChunks(task.file, {
+    const input = await threadStorage().get(task.key);
+    const source = await readStreamChunks(input, {
       push(chunk: Uint8Array) {
         inflated += chunk.length;
         // Thrown inside the reader's loop: it stops inflating and passes an InspectionError on as it is.
@@ -47,11 +65,11 @@ export default async function inspectTask(task: InspectTask): Promise<InspectTas
     });
     return { ok: true, stored: toStoredInspection(inspector.finish(source)) };
   } catch (err) {
+    if (err instanceof StorageNotFoundError) return { ok: false, reason: GONE };
     // Input the engine cannot use (and values out of range) is the entrant's to fix; the rest is ours.
     if (err instanceof InspectionError || err instanceof RangeError) {
       const reason = err.message.split('\n')[0];
-      // The engine names the path it could not find; the entrant never saw our storage path.
-      return { ok: false, reason: err instanceof InspectionError && err.code === 'not-found' ? 'The stored G-code of this inspection is gone; upload it again.' : reason };
+      return { ok: false, reason: err instanceof InspectionError && err.code === 'not-found' ? GONE : reason };
     }
     throw err;
   }

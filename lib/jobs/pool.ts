@@ -8,6 +8,7 @@ import { Piscina } from 'piscina';
 import { parseStoredInspection, type InspectOptions, type StoredInspectionJson } from '@/lib/inspection';
 import type { InspectTask, InspectTaskResult } from './inspect-worker';
 import { jobSettings, type JobSettings } from './settings';
+import { storageEnv } from '@/lib/storage';
 
 export class InspectionRunError extends Error {
   constructor(
@@ -21,12 +22,16 @@ export class InspectionRunError extends Error {
 }
 
 const POOL_KEY = Symbol.for('hotlap.jobs.pool');
-type PoolHolder = { pool?: Piscina; file?: string };
+type PoolHolder = { pool?: Piscina; file?: string; storage?: string };
 const holder = () => ((globalThis as unknown as Record<symbol, PoolHolder>)[POOL_KEY] ??= {});
 
 function pool(s: JobSettings): Piscina {
   const h = holder();
-  if (h.pool && h.file === s.workerFile) return h.pool;
+  const storage = JSON.stringify(storageEnv());
+  if (h.pool && h.file === s.workerFile && h.storage === storage) return h.pool;
+  // Settings changed (tests): the old threads finish what they run and go.
+  void h.pool?.destroy();
+  h.storage = storage;
   if (!fs.existsSync(s.workerFile)) throw new InspectionRunError(`The inspection worker is not built (${s.workerFile}); run npm run build:engine.`, 'crashed');
   h.file = s.workerFile;
   h.pool = new Piscina({
@@ -36,8 +41,9 @@ function pool(s: JobSettings): Piscina {
     // A thread that sat idle a minute is let go: the server's memory returns to what pages need.
     idleTimeout: 60_000,
     resourceLimits: { maxOldGenerationSizeMb: s.heapMb, maxYoungGenerationSizeMb: 32 },
-    // The worker reads only what its task says; it gets no secrets from the server's environment.
-    env: { NODE_ENV: process.env.NODE_ENV ?? 'production' },
+    // The worker reads only what its task says and the storage it reads from (lib/storage's
+    // variables, credentials included when storage is S3); nothing else of the server's environment.
+    env: { NODE_ENV: process.env.NODE_ENV ?? 'production', ...storageEnv() },
   });
   return h.pool;
 }
@@ -48,11 +54,12 @@ export async function poolThreadLimits(settings: JobSettings = jobSettings()) {
 }
 
 /**
- * Runs one inspection in the pool and returns its report and preview, checked against the report
- * contract; rejects with InspectionRunError whose message is a sentence for the entrant.
+ * Runs one inspection of the stored G-code under `key` (lib/storage) in the pool and returns its
+ * report and preview, checked against the report contract; rejects with InspectionRunError whose
+ * message is a sentence for the entrant.
  */
-export async function inspectInPool(file: string, options: InspectOptions, settings: JobSettings = jobSettings()): Promise<StoredInspectionJson> {
-  const task: InspectTask = { file, options, maxInflatedBytes: settings.maxInflatedBytes, previewMaxPoints: settings.previewMaxPoints };
+export async function inspectInPool(key: string, options: InspectOptions, settings: JobSettings = jobSettings()): Promise<StoredInspectionJson> {
+  const task: InspectTask = { key, options, maxInflatedBytes: settings.maxInflatedBytes, previewMaxPoints: settings.previewMaxPoints };
   const signal = AbortSignal.timeout(settings.timeLimitMs);
   let result: InspectTaskResult;
   try {

@@ -1,7 +1,7 @@
 /**
  * The job queue as the runner sees it: claim fairly, hold a lease, finish or give back. The SQL
- * implementation (sqlQueue.ts) keeps the jobs in the inspections table; another one (PostgreSQL
- * with pg-boss, workers on other machines) can replace it behind this interface.
+ * implementation (sqlQueue.ts) keeps the jobs in the inspections table; on PostgreSQL, bossQueue.ts
+ * hands them to worker processes on other machines through pg-boss, the table staying the record.
  */
 
 /** One job taken by this process: valid while `attempt` matches the row and the lease holds. */
@@ -24,4 +24,6 @@ export interface JobQueue {
   expire(now: Date): Promise<number>;
   /** Jobs queued or running with a live lease (tests, scripts). */
   pending(now: Date): Promise<number>;
+  /** The runner is done with a claim, whatever its outcome (the pg-boss queue completes its job). */
+  done?(claim: JobClaim): Promise<void>;
 }

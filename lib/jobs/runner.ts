@@ -38,7 +38,7 @@ export function startRunner(queue: JobQueue, handler: JobHandler, settings: JobS
 }
 
 /** A job was queued: look now instead of at the next poll. No-op where no runner started (scripts). */
-export function wakeJobs(): void {
+export function wakeRunner(): void {
   const s = g[KEY];
   if (s && !s.stopped) void pump(s);
 }
@@ -50,6 +50,12 @@ export async function stopRunner(): Promise<void> {
   s.stopped = true;
   for (const t of s.timers) clearInterval(t);
   while (s.pumping) await new Promise((r) => setTimeout(r, 10));
+}
+
+/** Resolves once the jobs this runner had started have ended (after stopRunner: a worker stopping). */
+export async function runnerSettled(): Promise<void> {
+  const s = g[KEY];
+  while (s?.active.size) await new Promise((r) => setTimeout(r, 100));
 }
 
 /** Resolves once this runner has nothing running and the queue has nothing it could take. */
@@ -103,11 +109,14 @@ async function pump(s: RunnerState): Promise<void> {
 
 async function run(s: RunnerState, claim: JobClaim) {
   try {
+    // Test-only: a slow job, so a test can kill the process running it (the lease keeps being renewed meanwhile).
+    if (s.settings.testDelayMs) await new Promise((r) => setTimeout(r, s.settings.testDelayMs));
     await s.handler(claim);
   } catch (err) {
     console.error('job', claim.id, err);
     await s.queue.release(claim, 'The inspection stopped unexpectedly on our side; it will be tried again.', new Date()).catch(() => undefined);
   } finally {
+    await s.queue.done?.(claim).catch((err) => console.error('job done', claim.id, err));
     s.active.delete(claim.id);
     for (const w of s.idleWaiters.splice(0)) w();
     if (!s.stopped) void pump(s);

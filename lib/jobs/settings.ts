@@ -40,6 +40,20 @@ export interface JobSettings {
   reinspectWindowMs: number;
   /** The compiled worker (npm run build:engine). */
   workerFile: string;
+  /**
+   * Where jobs go: `sql` (the inspections table, run by the runner embedded in each server) on
+   * SQLite; `pg-boss` on PostgreSQL (run by `npm run worker` processes; servers only enqueue).
+   */
+  queue: 'sql' | 'pg-boss';
+  /** Also run jobs inside the web server on PostgreSQL (HOTLAP_EMBEDDED_WORKER=1): one machine, no separate worker. */
+  embeddedWorker: boolean;
+  /** Test-only (HOTLAP_TEST_JOB_DELAY_MS): wait this long before running each claimed job. 0 in production. */
+  testDelayMs: number;
+}
+
+/** PostgreSQL when DATABASE_URL is a postgres:// (or postgresql://) URL. */
+export function usesPostgres(url = process.env.DATABASE_URL ?? ''): boolean {
+  return /^postgres(ql)?:\/\//i.test(url);
 }
 
 export function jobSettings(): JobSettings {
@@ -56,5 +70,8 @@ export function jobSettings(): JobSettings {
     reinspectLimit: intEnv('HOTLAP_REINSPECT_LIMIT', 6),
     reinspectWindowMs: intEnv('HOTLAP_REINSPECT_WINDOW_MS', 10 * 60_000),
     workerFile: process.env.HOTLAP_INSPECT_WORKER || path.join(process.cwd(), '.hotlap', 'engine', 'inspect-worker.cjs'),
+    queue: usesPostgres() ? 'pg-boss' : 'sql',
+    embeddedWorker: process.env.HOTLAP_EMBEDDED_WORKER === '1',
+    testDelayMs: intEnv('HOTLAP_TEST_JOB_DELAY_MS', 0, 0),
   };
 }

@@ -40,7 +40,7 @@ export async function organizerDashboard(opts: { seasonId?: number; organizerId?
   const sequelize = getSequelize();
   const [counts, waiting, judgeRows, reviewRows] = await Promise.all([
     sequelize.query<{ seasonId: number; state: EntryState; n: number }>(
-      'SELECT season_id AS seasonId, state, COUNT(*) AS n FROM entries WHERE season_id IN (:ids) GROUP BY season_id, state',
+      'SELECT season_id AS "seasonId", state, COUNT(*) AS n FROM entries WHERE season_id IN (:ids) GROUP BY season_id, state',
       { replacements: { ids }, type: QueryTypes.SELECT },
     ),
     Entry.findAll({
@@ -51,7 +51,7 @@ export async function organizerDashboard(opts: { seasonId?: number; organizerId?
     }),
     SeasonJudge.findAll({ where: { seasonId: ids }, order: [['createdAt', 'ASC']] }),
     sequelize.query<{ seasonId: number; judgeId: number; n: number }>(
-      'SELECT e.season_id AS seasonId, r.judge_id AS judgeId, COUNT(*) AS n FROM reviews r JOIN entries e ON e.id = r.entry_id WHERE e.season_id IN (:ids) GROUP BY e.season_id, r.judge_id',
+      'SELECT e.season_id AS "seasonId", r.judge_id AS "judgeId", COUNT(*) AS n FROM reviews r JOIN entries e ON e.id = r.entry_id WHERE e.season_id IN (:ids) GROUP BY e.season_id, r.judge_id',
       { replacements: { ids }, type: QueryTypes.SELECT },
     ),
   ]);

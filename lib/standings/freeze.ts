@@ -4,6 +4,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { getSequelize } from '@/lib/db';
+import { parseDateColumn } from '@/lib/dbDialect';
 import type { SeasonState } from '@/lib/domain';
 import { LIVE_SOURCE_SQL } from './query';
 
@@ -19,12 +20,12 @@ export interface FreezeResult {
 }
 
 async function existing(seasonId: number, transaction?: Transaction): Promise<FreezeResult | null> {
-  const [row] = await getSequelize().query<{ rows: number; frozen_at: string }>('SELECT rows, frozen_at FROM standings_freezes WHERE season_id = ?', {
+  const [row] = await getSequelize().query<{ rows: number; frozen_at: string | Date }>('SELECT rows, frozen_at FROM standings_freezes WHERE season_id = ?', {
     replacements: [seasonId],
     type: QueryTypes.SELECT,
     transaction,
   });
-  return row ? { created: false, rows: Number(row.rows), frozenAt: new Date(String(row.frozen_at).replace(' ', 'T').replace(' ', '')).toISOString() } : null;
+  return row ? { created: false, rows: Number(row.rows), frozenAt: parseDateColumn(row.frozen_at)!.toISOString() } : null;
 }
 
 /**

@@ -1,6 +1,7 @@
 /** Figures for the season overview charts: time distribution per class, time vs peak flow, entries over time. */
 import { QueryTypes } from 'sequelize';
 import { getSequelize } from '@/lib/db';
+import { utcDaySql } from '@/lib/dbDialect';
 import { DEFAULT_QUERY } from './params';
 import { classRef, findSeason, seasonClasses, type ClassStandings } from './views';
 import { isoDate, standingsPage, type StandingsRow } from './query';
@@ -63,12 +64,13 @@ export async function seasonOverview(slug: string) {
     points: sample(c.rows.filter((r) => r.peak_flow_mm3s != null), 1500).map((r) => ({ time_s: r.time_ms / 1000, peak_flow_mm3s: r.peak_flow_mm3s as number, entrant: r.entrant, rank: r.rank })),
   }));
   // Entries over the season: submissions by day, and verifications by the day of decision.
-  const days = await getSequelize().query<{ day: string; submitted: number; verified: number }>(
+  const seq = getSequelize();
+  const days = await seq.query<{ day: string; submitted: number; verified: number }>(
     `SELECT day, SUM(sub) AS submitted, SUM(ver) AS verified FROM (
-       SELECT substr(submitted_at, 1, 10) AS day, 1 AS sub, 0 AS ver FROM entries WHERE season_id = ? AND submitted_at IS NOT NULL AND state <> 'draft'
+       SELECT ${utcDaySql(seq, 'submitted_at')} AS day, 1 AS sub, 0 AS ver FROM entries WHERE season_id = ? AND submitted_at IS NOT NULL AND state <> 'draft'
        UNION ALL
-       SELECT substr(decided_at, 1, 10), 0, 1 FROM entries WHERE season_id = ? AND state = 'verified' AND decided_at IS NOT NULL
-     ) GROUP BY day ORDER BY day`,
+       SELECT ${utcDaySql(seq, 'decided_at')}, 0, 1 FROM entries WHERE season_id = ? AND state = 'verified' AND decided_at IS NOT NULL
+     ) AS d GROUP BY day ORDER BY day`,
     { replacements: [season.id, season.id], type: QueryTypes.SELECT },
   );
   let sub = 0;

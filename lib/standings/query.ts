@@ -6,6 +6,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { getSequelize } from '@/lib/db';
+import { explainPlan, listTriggers } from '@/lib/dbDialect';
 import type { StandingsQuery, SortKey } from './params';
 import { STANDINGS_TRIGGERS } from '@/migrations/20261201-0402-standings-version';
 import { PUBLIC_READ_TRIGGERS } from '@/migrations/20261203-1801-standings-version-public-reads';
@@ -97,7 +98,7 @@ interface RawRow {
   total?: number;
 }
 
-/** SQLite keeps Sequelize dates as "YYYY-MM-DD HH:MM:SS.SSS +00:00"; publish ISO 8601. */
+/** SQLite keeps Sequelize dates as "YYYY-MM-DD HH:MM:SS.SSS +00:00", PostgreSQL returns a Date; publish ISO 8601. */
 export function isoDate(v: string | Date | null): string | null {
   if (v == null) return null;
   const d = v instanceof Date ? v : new Date(String(v).replace(' ', 'T').replace(' ', ''));
@@ -168,8 +169,7 @@ let triggersChecked: boolean | null = null;
 export async function standingsVersion(): Promise<number | null> {
   const seq = getSequelize();
   if (triggersChecked === null) {
-    const present = await seq.query<{ name: string }>("SELECT name FROM sqlite_master WHERE type = 'trigger' AND name LIKE 'standings_bump_%'", { type: QueryTypes.SELECT });
-    const names = new Set(present.map((t) => t.name));
+    const names = new Set(await listTriggers(seq));
     triggersChecked = TRIGGER_NAMES.every((n) => names.has(n));
     if (!triggersChecked) console.warn('standings: change triggers are missing (a table was rebuilt?); ranking every request without the cache.');
   }
@@ -257,9 +257,5 @@ export async function ranksOf(ref: ClassRef, entryIds: number[]): Promise<Map<nu
 
 /** The query plan of the live ranking, for checking that it searches the standings index. */
 export async function explainLiveRanking(seasonId: number, classId: number): Promise<string[]> {
-  const rows = await getSequelize().query<{ detail: string }>(`EXPLAIN QUERY PLAN ${sourceSql(false)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, {
-    replacements: { seasonId, classId },
-    type: QueryTypes.SELECT,
-  });
-  return rows.map((r) => r.detail);
+  return explainPlan(getSequelize(), `${sourceSql(false)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, { seasonId, classId });
 }

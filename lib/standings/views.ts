@@ -7,6 +7,7 @@ import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
 import { parseId as parsePlainId } from '@/lib/ids';
 import { getSequelize } from '@/lib/db';
+import { parseJsonColumn } from '@/lib/dbDialect';
 import { badRequest, notFound } from '@/lib/errors';
 import { ruleSentence, RuleSchema } from '@/lib/inspection/rules';
 import { ensureFrozen, isFrozenState } from './freeze';
@@ -60,9 +61,10 @@ interface ClassRow {
   modification: string;
 }
 
-const json = <T>(s: string | null | undefined, fallback: T): T => {
+/** A JSON column of a raw row (text on SQLite, already parsed on PostgreSQL). */
+const json = <T>(s: unknown, fallback: T): T => {
   try {
-    return s ? (JSON.parse(s) as T) : fallback;
+    return s ? (parseJsonColumn<T>(s) ?? fallback) : fallback;
   } catch {
     return fallback;
   }

@@ -17,7 +17,7 @@ import { Readable } from 'node:stream';
 import { Entry, Season, SeasonJudge, StoredFile, TestPiece } from '@/models';
 import { notFound } from '@/lib/errors';
 import type { StoredFileKind } from '@/lib/domain';
-import { exists, openRead } from '@/lib/storage';
+import { exists, isStorageNotFound, openRead } from '@/lib/storage';
 import { organizesSeason } from '@/lib/seasons/context';
 import { conflictSentence } from '@/lib/reviews/conflicts';
 import { auditEvidenceView, type EvidenceView } from '@/lib/reviews/evidenceAudit';
@@ -83,13 +83,18 @@ export async function readableFile(
 const INLINE = new Set(['image/jpeg', 'image/png', 'image/webp']);
 
 /**
- * The streamed response for a granted file. Public files may be cached briefly by anyone (a
- * re-inspection can take an entry out of public view); everything else is private and not stored.
+ * The streamed response for a granted file, read from storage through the app (whichever driver:
+ * no public bucket, no presigned link around this rule). Public files may be cached briefly by
+ * anyone (a re-inspection can take an entry out of public view); everything else is private and
+ * not stored. A file gone between the check and the read is the same 404.
  */
-export function fileResponse(file: StoredFile, grant: FileGrant): Response {
+export async function fileResponse(file: StoredFile, grant: FileGrant): Promise<Response> {
   const name = file.originalName.replace(/[^\w.() -]+/g, '_');
   const inline = INLINE.has(file.mime);
-  return new Response(Readable.toWeb(openRead(file.storageKey)) as ReadableStream, {
+  const body = await openRead(file.storageKey).catch((err) => {
+    throw isStorageNotFound(err) ? notFound(NO_SUCH_FILE) : err;
+  });
+  return new Response(Readable.toWeb(body) as ReadableStream, {
     headers: {
       'content-type': inline ? file.mime : 'application/octet-stream',
       'content-length': String(file.sizeBytes),

@@ -1,6 +1,7 @@
 /** The v1 standings API against the built app: ranking, ties, best-per-entrant, filters, CSV, ETags, frozen seasons, validation. */
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import { Client } from '../support/client';
+import { dataDirOf } from '../support/server';
 import { insertEntrant, insertEntry, insertMachine, insertSeason, setSeasonState } from '../support/standings-fixtures';
 import { parseCsv } from '@/lib/standings/csv';
 
@@ -307,16 +308,14 @@ describe('seasons and entries', () => {
   });
 
   it('streams the photos of verified entries only', async () => {
-    const fs = await import('node:fs');
     const path = await import('node:path');
     const { sql } = await import('../support/db');
+    const { putTestFile } = await import('../support/storage');
     // The 8-byte PNG signature (PNG specification, ISO/IEC 15948 §5.2) plus a few bytes.
     const bytes = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2, 3]);
     const addFile = async (entryId: number, kind: string) => {
       const key = `entries/${entryId}/${kind}-${Date.now()}-${Math.random().toString(36).slice(2)}.png`;
-      const file = path.join(path.dirname(db), 'uploads', key);
-      fs.mkdirSync(path.dirname(file), { recursive: true });
-      fs.writeFileSync(file, bytes);
+      await putTestFile(dataDirOf(db), key, bytes);
       const t = new Date().toISOString().replace('T', ' ').replace('Z', ' +00:00');
       const [r] = await sql<{ id: number }>(db, "INSERT INTO stored_files (entry_id, kind, original_name, mime, size_bytes, sha256, storage_key, meta, created_at, updated_at) VALUES (?, ?, 'tower.png', 'image/png', ?, 'x', ?, '{}', ?, ?) RETURNING id", [entryId, kind, bytes.length, key, t, t]);
       return r.id;

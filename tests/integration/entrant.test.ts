@@ -8,6 +8,7 @@ import { gunzipSync, gzipSync } from 'node:zlib';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { freshEntrant } from '../support/demo';
+import { sqlDate } from '../support/judging-fixtures';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
@@ -311,7 +312,7 @@ describe('a returned entry', () => {
     expect((await bad.json()).fields.claimedTime).toMatch(/h:mm:ss\.t/);
     expect((await maker.post(`/api/entries/${id}/submit`, {})).status).toBe(200);
     // A judge returns it (the judging side's act, arranged directly here).
-    await sql(dbFile, "UPDATE entries SET state = 'returned', decided_at = datetime('now', '+1 second') WHERE id = ?", [id]);
+    await sql(dbFile, "UPDATE entries SET state = 'returned', decided_at = ? WHERE id = ?", [sqlDate(new Date(Date.now() + 1000)), id]);
     await new Promise((r) => setTimeout(r, 1500));
     const early = await maker.post(`/api/entries/${id}/submit`, {});
     expect(early.status).toBe(422);
@@ -325,7 +326,8 @@ describe('a returned entry', () => {
     const mail = await sql<{ subject: string }>(dbFile, 'SELECT subject FROM sent_mails WHERE "to" = ? ORDER BY id DESC LIMIT 1', [maker.email]);
     expect(mail[0].subject).toMatch(/^Entry resubmitted: Frostbite Sprint/);
     // The replaced photos stay for the judges but are no longer the owner's current set or public.
-    const replaced = await sql<{ id: number }>(dbFile, "SELECT id FROM stored_files WHERE entry_id = ? AND kind = 'photo' AND json_extract(meta, '$.replacedAt') IS NOT NULL", [id]);
+    const photos = await sql<{ id: number; meta: string }>(dbFile, "SELECT id, meta FROM stored_files WHERE entry_id = ? AND kind = 'photo' ORDER BY id", [id]);
+    const replaced = photos.filter((p) => JSON.parse(p.meta).replacedAt != null);
     expect(replaced).toHaveLength(2);
     expect((await anonymous.get(`/api/files/${replaced[0].id}`)).status).toBe(404);
   });
@@ -336,7 +338,7 @@ describe('crash during inspection', () => {
     const entry = (await sql<{ id: number }>(dbFile, "SELECT e.id FROM entries e JOIN users u ON u.id = e.entrant_id WHERE u.email = ? AND e.state = 'draft' ORDER BY e.id DESC LIMIT 1", [pim.email]))[0];
     const latest = (await sql<{ id: number; stored_file_id: number }>(dbFile, 'SELECT id, stored_file_id FROM inspections WHERE entry_id = ? ORDER BY id DESC LIMIT 1', [entry.id]))[0];
     // As a server killed mid-inspection leaves it: a row marked running that no process works on.
-    await sql(dbFile, "INSERT INTO inspections (entry_id, stored_file_id, engine_version, status, rule_results, flags, blocking_failures, advisory_flags, created_at, updated_at) VALUES (?, ?, 'x', 'running', '[]', '[]', 0, 0, datetime('now'), datetime('now'))", [entry.id, latest.stored_file_id]);
+    await sql(dbFile, "INSERT INTO inspections (entry_id, stored_file_id, engine_version, status, rule_results, flags, blocking_failures, advisory_flags, created_at, updated_at) VALUES (?, ?, 'x', 'running', '[]', '[]', 0, 0, ?, ?)", [entry.id, latest.stored_file_id, sqlDate(), sqlDate()]);
     const { inspection } = await waitForInspection(pim, entry.id);
     expect(inspection.status).toBe('done');
     expect(inspection.id).toBeGreaterThan(latest.id);

@@ -4,6 +4,7 @@
  * G-code found through compression and edited comments. Each scenario gets its own season and
  * fresh entrants, so other test files on the same server do not interfere.
  */
+import { dataDirOf } from '../support/server';
 import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
@@ -14,10 +15,11 @@ import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { addPhoto, FIXTURE_GCODE_DIR, inspectEntryWithFixture, sqlDate, userId } from '../support/judging-fixtures';
 import { insertEntry, insertMachine, insertSeason } from '../support/standings-fixtures';
+import { putTestFile } from '../support/storage';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
-const dataDir = path.dirname(dbFile);
+const dataDir = dataDirOf(dbFile);
 
 type Entrant = Client & { email: string; id: number; machineId: number };
 const clients: Record<string, Client> = {};
@@ -43,7 +45,7 @@ async function entrant(name: string): Promise<Entrant> {
 async function season(classes = ['alpha', 'beta']) {
   const s = await insertSeason(dbFile, { classes });
   const t = sqlDate();
-  await sql(dbFile, 'UPDATE seasons SET created_by_id = ?, photos_required = 0, video_required = 0 WHERE id = ?', [organizerId, s.seasonId]);
+  await sql(dbFile, 'UPDATE seasons SET created_by_id = ?, photos_required = 0, video_required = FALSE WHERE id = ?', [organizerId, s.seasonId]);
   await sql(dbFile, `INSERT INTO rules (season_id, class_id, metric, comparator, value, value_max, tolerance, severity, sentence, position, created_at, updated_at)
     VALUES (?, NULL, 'walls', 'eq', 2, NULL, 0, 'blocking', 'Walls must be 2.', 0, ?, ?)`, [s.seasonId, t, t]);
   await sql(dbFile, 'INSERT INTO season_judges (season_id, user_id, appointed_by_id, created_at, updated_at) VALUES (?, ?, ?, ?, ?)', [s.seasonId, judgeId, organizerId, t, t]);
@@ -402,8 +404,7 @@ describe('duplicate G-code through compression and edited comments', () => {
     const id = await insertEntry(dbFile, { seasonId: s.seasonId, classId: s.classIds.alpha, entrantId: owner.id, machineId: owner.machineId, timeMs: 1_500_000, submittedAt: new Date().toISOString(), state: 'draft' });
     const sha = crypto.createHash('sha256').update(bytes).digest('hex');
     const key = `entries/${id}/gcode-${sha.slice(0, 16)}-dup.${name.endsWith('.gz') ? 'gcode.gz' : 'gcode'}`;
-    fs.mkdirSync(path.join(dataDir, 'uploads', path.dirname(key)), { recursive: true });
-    fs.writeFileSync(path.join(dataDir, 'uploads', key), bytes);
+    await putTestFile(dataDir, key, bytes);
     const t = sqlDate();
     await sql(dbFile, `INSERT INTO stored_files (owner_id, entry_id, kind, original_name, mime, size_bytes, sha256, storage_key, meta, created_at, updated_at)
       VALUES (?, ?, 'gcode', ?, 'text/x-gcode', ?, ?, ?, '{}', ?, ?)`, [owner.id, id, name, bytes.length, sha, key, t, t]);

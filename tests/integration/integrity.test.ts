@@ -4,6 +4,7 @@
  * submitted, frozen standings keep their entries, the season's entry window, real dates, photos
  * that decode and plain-digit ids.
  */
+import { dataDirOf } from '../support/server';
 import { describe, it, expect, inject, beforeAll } from 'vitest';
 import fs from 'node:fs';
 import path from 'node:path';
@@ -15,10 +16,11 @@ import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { createReviewableEntry, FIXTURE_GCODE_DIR, seasonId as seasonIdOf, sqlDate } from '../support/judging-fixtures';
+import { listTestFiles } from '../support/storage';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
-const dataDir = path.dirname(dbFile);
+const dataDir = dataDirOf(dbFile);
 
 /** A G-code that passes the demo season's blocking rules, made unique (the duplicate check). */
 // A command, not a comment, makes each copy unique: the duplicate check ignores comments.
@@ -79,10 +81,8 @@ async function readyDraft(c: Client = maker, extra: Record<string, string> = {})
 
 const stateOf = async (id: number) => (await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [id]))[0].state;
 const storedKeys = async (id: number) => (await sql<{ storage_key: string }>(dbFile, 'SELECT storage_key FROM stored_files WHERE entry_id = ?', [id])).map((r) => r.storage_key).sort();
-const filesOnDisk = (id: number) => {
-  const dir = path.join(dataDir, 'uploads', 'entries', String(id));
-  return fs.existsSync(dir) ? fs.readdirSync(dir).map((f) => `entries/${id}/${f}`).sort() : [];
-};
+/** The entry's objects in storage (local disk or the S3 fake, whichever the server uses). */
+const storedObjects = (id: number) => listTestFiles(dataDir, `entries/${id}/`);
 
 /**
  * Starts a multipart upload whose body arrives slowly: the head and part of the file now, the rest
@@ -153,7 +153,7 @@ describe('state is checked where it is written', () => {
     expect(JSON.parse(gcodeAfter[0].meta).replacedAt).toBeUndefined();
     expect(await storedKeys(id)).toEqual(keysBefore);
     // The streamed file was not left in storage.
-    expect(filesOnDisk(id)).toEqual(keysBefore);
+    expect(await storedObjects(id)).toEqual(keysBefore);
   });
 
   it('details cannot change after submission: 409 with a sentence, nothing changed', async () => {

@@ -10,15 +10,16 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { gunzipSync, gzipSync } from 'node:zlib';
-import { prepareDatabase, spawnApp, testEnv } from '../support/server';
+import { prepareDatabase, spawnApp, testDb, testEnv } from '../support/server';
 import { sql } from '../support/db';
 import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
+import { putTestFile } from '../support/storage';
 
 // Its own server on its own port (the suite's shared server keeps running beside it).
 const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 60;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-restart-'));
 const env = { ...testEnv(port, dataDir), HOTLAP_JOB_LEASE_MS: '2000', HOTLAP_JOB_POLL_MS: '300', HOTLAP_INSPECTION_WORKERS: '1' };
-const dbFile = path.join(dataDir, 'hotlap.sqlite');
+const dbFile = testDb(testEnv(port, dataDir));
 const JOBS = 6;
 let jobIds: number[] = [];
 let server: ChildProcess | null = null;
@@ -68,11 +69,10 @@ beforeAll(async () => {
   const t = '2026-11-20 10:00:00.000 +00:00';
   for (const [k, e] of entries.entries()) {
     const key = `entries/${e.id}/restart-${k}.gcode.gz`;
-    const file = path.join(dataDir, 'uploads', key);
-    fs.mkdirSync(path.dirname(file), { recursive: true });
-    fs.writeFileSync(file, gzipSync(Buffer.concat([plain, Buffer.from(`\n; restart test ${k}\n`)])));
+    const bytes = gzipSync(Buffer.concat([plain, Buffer.from(`\n; restart test ${k}\n`)]));
+    await putTestFile(dataDir, key, bytes);
     await sql(dbFile, "INSERT INTO stored_files (owner_id, entry_id, kind, original_name, mime, size_bytes, sha256, storage_key, meta, created_at, updated_at) VALUES (?, ?, 'gcode', ?, 'application/gzip', ?, ?, ?, '{}', ?, ?)", [
-      e.entrant_id, e.id, `run-${k}.gcode.gz`, fs.statSync(file).size, `restart${k}`.padEnd(64, '0'), key, t, t,
+      e.entrant_id, e.id, `run-${k}.gcode.gz`, bytes.length, `restart${k}`.padEnd(64, '0'), key, t, t,
     ]);
     const [{ id: fileId }] = await sql<{ id: number }>(dbFile, 'SELECT MAX(id) AS id FROM stored_files');
     await sql(dbFile, "UPDATE inspections SET status = 'failed' WHERE entry_id = ? AND status = 'queued'", [e.id]);

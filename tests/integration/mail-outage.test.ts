@@ -16,7 +16,7 @@ import { SMTPServer } from 'smtp-server';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
-import { prepareDatabase, spawnApp, testEnv } from '../support/server';
+import { prepareDatabase, spawnApp, testDb, testEnv } from '../support/server';
 import { FIXTURE_GCODE_DIR } from '../support/judging-fixtures';
 
 // The shared test server is not used here, but the project's global setup provides it.
@@ -25,7 +25,7 @@ void inject('baseUrl');
 const port = Number(process.env.HOTLAP_TEST_PORT || 3100) + 50;
 const base = `http://127.0.0.1:${port}`;
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-outage-'));
-const dbFile = path.join(dataDir, 'hotlap.sqlite');
+const dbFile = testDb(testEnv(port, dataDir));
 let smtpPort: number;
 let env: Record<string, string>;
 let child: ChildProcess | null = null;

@@ -3,6 +3,7 @@
  * slicer G-code, its inspection (the engine's own report) and photos. Used by the judging
  * integration and browser tests so they do not depend on the submission pages.
  */
+import { dataDirOf } from './server';
 import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
@@ -12,6 +13,7 @@ import { demoEmail } from './demo';
 import { inspectFile, toJsonReport } from '@/lib/inspection';
 import { RuleSchema, type Rule } from '@/lib/inspection/rules';
 import type { Flag } from '@/lib/inspection/types';
+import { putTestFile } from './storage';
 
 export const FIXTURE_GCODE_DIR = path.resolve(__dirname, '..', 'fixtures', 'gcode');
 
@@ -64,13 +66,12 @@ export async function createSubmittedEntry(
  * the season's rules and the entry's claims, as the submission flow does. Returns the inspection id.
  */
 export async function inspectEntryWithFixture(dbFile: string, entryId: number, fixture = 'prusa-beacon-020.gcode.gz', opts: { engineVersion?: string; claimedTimeMs?: number } = {}): Promise<number> {
-  const dataDir = path.dirname(dbFile);
+  const dataDir = dataDirOf(dbFile);
   const src = path.join(FIXTURE_GCODE_DIR, fixture);
   const bytes = fs.readFileSync(src);
   const sha = crypto.createHash('sha256').update(bytes).digest('hex');
   const key = `entries/${entryId}/gcode-${sha.slice(0, 16)}-${Date.now()}.gcode.gz`;
-  fs.mkdirSync(path.join(dataDir, 'uploads', path.dirname(key)), { recursive: true });
-  fs.writeFileSync(path.join(dataDir, 'uploads', key), bytes);
+  await putTestFile(dataDir, key, bytes);
   const [entry] = await sql<{ season_id: number; entrant_id: number; claimed_time_ms: number; measured_x_mm: number | null; measured_y_mm: number | null; measured_z_mm: number | null }>(
     dbFile, 'SELECT season_id, entrant_id, claimed_time_ms, measured_x_mm, measured_y_mm, measured_z_mm FROM entries WHERE id = ?', [entryId]);
   const [piece] = await sql<{ size_x_mm: number; size_y_mm: number; size_z_mm: number }>(dbFile, 'SELECT size_x_mm, size_y_mm, size_z_mm FROM test_pieces WHERE season_id = ?', [entry.season_id]);
@@ -106,7 +107,7 @@ export async function inspectEntryWithFixture(dbFile: string, entryId: number, f
 
 /** Adds a small real PNG photo (and its thumbnail) with a capture time to the entry. */
 export async function addPhoto(dbFile: string, entryId: number, capturedAt = '2026-11-25T18:04:31'): Promise<{ photoId: number; thumbId: number }> {
-  const dataDir = path.dirname(dbFile);
+  const dataDir = dataDirOf(dbFile);
   const png = await sharp({ create: { width: 320, height: 240, channels: 3, background: { r: 215, g: 71, b: 7 } } }).png().toBuffer();
   const thumb = await sharp(png).resize(160).jpeg().toBuffer();
   const now = sqlDate();
@@ -114,8 +115,7 @@ export async function addPhoto(dbFile: string, entryId: number, capturedAt = '20
   const put = async (kind: string, buf: Buffer, ext: string, mime: string, meta: Record<string, unknown>) => {
     const sha = crypto.createHash('sha256').update(buf).digest('hex');
     const key = `entries/${entryId}/${kind}-${sha.slice(0, 16)}-${Math.random().toString(36).slice(2, 8)}.${ext}`;
-    fs.mkdirSync(path.join(dataDir, 'uploads', path.dirname(key)), { recursive: true });
-    fs.writeFileSync(path.join(dataDir, 'uploads', key), buf);
+    await putTestFile(dataDir, key, buf);
     return insert(dbFile, 'stored_files', { owner_id: entry.entrant_id, entry_id: entryId, kind, original_name: `beacon-${kind}.${ext}`, mime, size_bytes: buf.length, sha256: sha, storage_key: key, meta: JSON.stringify(meta), created_at: now, updated_at: now });
   };
   const thumbId = await put('thumbnail', thumb, 'jpg', 'image/jpeg', {});

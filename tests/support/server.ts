@@ -1,11 +1,16 @@
 /**
- * Starts the built app (`next start`) on a free port with a fresh SQLite file, migrated and seeded
- * with the demo data. Used by the integration tests and by Playwright. Needs `next build` first.
+ * Starts the built app (`next start`) on a free port with a fresh database, migrated and seeded with
+ * the demo data: a SQLite file, or — when the integration global setup started a PostgreSQL cluster
+ * (HOTLAP_TEST_DB=postgres sets HOTLAP_TEST_PG_URL) — a new database on that cluster. Used by the
+ * integration tests and by Playwright. Needs `next build` first.
  */
 import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import os from 'node:os';
+import crypto from 'node:crypto';
+import { createDatabase } from './postgres';
+import { testStorageEnv } from './storage';
 
 export interface TestServer {
   url: string;
@@ -17,9 +22,34 @@ export interface TestServer {
 
 const ROOT = path.resolve(__dirname, '..', '..');
 
+/** The database of a test server in `dataDir`: a SQLite file there, or a database named after the folder on the test cluster. */
+export function testDatabaseUrl(dataDir: string): string {
+  const cluster = process.env.HOTLAP_TEST_PG_URL;
+  if (!cluster) return `sqlite:${path.join(dataDir, 'hotlap.sqlite')}`;
+  return `${cluster}/${path.basename(dataDir).toLowerCase().replace(/[^a-z0-9]/g, '_')}`;
+}
+
+/**
+ * What tests/support/db.ts `sql()` opens for a test server: the SQLite file, or the postgres:// URL.
+ * (Named dbFile in the tests from the SQLite-only days.)
+ */
+export function testDb(env: Record<string, string>): string {
+  const url = env.DATABASE_URL;
+  return url.startsWith('sqlite:') ? url.slice('sqlite:'.length) : url;
+}
+
+/**
+ * The data folder (uploads) of the test server whose database is `db` (what testDb returned). On
+ * PostgreSQL the database is named after the folder, made by startServer in the temp folder.
+ */
+export function dataDirOf(db: string): string {
+  if (!/^postgres(ql)?:\/\//.test(db)) return path.dirname(db);
+  return path.join(os.tmpdir(), new URL(db).pathname.slice(1).replace(/_/g, '-'));
+}
+
 export function testEnv(port: number, dataDir: string): Record<string, string> {
   return {
-    DATABASE_URL: `sqlite:${path.join(dataDir, 'hotlap.sqlite')}`,
+    DATABASE_URL: testDatabaseUrl(dataDir),
     HOTLAP_DATA_DIR: dataDir,
     NEXTAUTH_URL: `http://127.0.0.1:${port}`,
     APP_URL: `http://127.0.0.1:${port}`,
@@ -30,10 +60,16 @@ export function testEnv(port: number, dataDir: string): Record<string, string> {
     TRUST_PROXY: '1',
     SMTP_URL: '',
     HOTLAP_DEMO_EVIDENCE: '0',
+    // On PostgreSQL a web server only enqueues inspections (workers run them); a test server runs them itself.
+    HOTLAP_EMBEDDED_WORKER: '1',
+    // Local disk unless the suite runs on the S3 fake (HOTLAP_TEST_STORAGE=s3).
+    ...testStorageEnv(dataDir),
   };
 }
 
 export function prepareDatabase(env: Record<string, string>) {
+  const cluster = process.env.HOTLAP_TEST_PG_URL;
+  if (cluster && env.DATABASE_URL.startsWith(`${cluster}/`)) createDatabase(cluster, env.DATABASE_URL.slice(cluster.length + 1));
   execFileSync(process.execPath, [path.join(ROOT, 'node_modules', 'tsx', 'dist', 'cli.mjs'), 'scripts/seed.ts'], {
     cwd: ROOT,
     env: { ...process.env, ...env },
@@ -89,14 +125,16 @@ export async function spawnApp(port: number, env: Record<string, string>, label 
 
 export async function startServer(port: number): Promise<TestServer> {
   if (!fs.existsSync(path.join(ROOT, process.env.NEXT_DIST_DIR || '.next', 'BUILD_ID'))) throw new Error('Run `next build` before the integration tests (npm test does).');
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-'));
+  // Lowercase letters, digits and '-' only, so that its PostgreSQL database name leads back to it (dataDirOf).
+  const dataDir = path.join(os.tmpdir(), `hotlap-test-${crypto.randomBytes(6).toString('hex')}`);
+  fs.mkdirSync(dataDir);
   const env = testEnv(port, dataDir);
   prepareDatabase(env);
   const child = await spawnApp(port, env, 'The test server');
   const url = `http://127.0.0.1:${port}`;
   return {
     url,
-    dbFile: path.join(dataDir, 'hotlap.sqlite'),
+    dbFile: testDb(env),
     dataDir,
     env,
     async stop() {

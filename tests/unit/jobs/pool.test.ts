@@ -1,9 +1,10 @@
 /**
  * The inspection pool with the compiled worker (built here by npm run build:engine's script):
  * reports, settings that reach the worker, limits read back from a pool thread, the inflated-size
- * cap on gzip, a truncated gzip and the time limit, each with its sentence.
+ * cap on gzip, a truncated gzip and the time limit, each with its sentence. The worker is given
+ * storage keys and reads the G-code from storage itself (here local disk in a temporary folder).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, it, expect, beforeAll, afterAll, vi } from 'vitest';
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
@@ -11,20 +12,26 @@ import path from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { inspectInPool, InspectionRunError, jobSettings, type JobSettings } from '@/lib/jobs';
 import { closePool, poolThreadLimits } from '@/lib/jobs/pool';
+import { putBuffer } from '@/lib/storage';
+import { startFakeS3 } from '../../support/s3';
 
 const ROOT = path.resolve(__dirname, '../../..');
-const FIXTURE = path.join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz');
+const FIXTURE_FILE = path.join(ROOT, 'tests/fixtures/gcode/prusa-beacon-020.gcode.gz');
+const FIXTURE = 'fixtures/beacon-020.gcode.gz';
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-pool-'));
 const MB = 1024 * 1024;
 let base: JobSettings;
 
-beforeAll(() => {
+beforeAll(async () => {
   execFileSync(process.execPath, [path.join(ROOT, 'scripts/build-engine.mjs'), '--quiet', '--only=inspect-worker'], { cwd: ROOT, stdio: 'pipe' });
   base = { ...jobSettings(), heapMb: 256 };
+  process.env.STORAGE_URL = path.join(dir, 'uploads');
+  await putBuffer(FIXTURE, fs.readFileSync(FIXTURE_FILE));
 }, 120_000);
 
 afterAll(async () => {
   await closePool();
+  delete process.env.STORAGE_URL;
   fs.rmSync(dir, { recursive: true, force: true });
 });
 
@@ -60,9 +67,10 @@ describe('inspection pool', () => {
   });
 
   it('a gzip that inflates past the cap fails with a sentence, not a full disk or heap', async () => {
-    const bomb = path.join(dir, 'bomb.gcode.gz');
-    fs.writeFileSync(bomb, gzipSync(Buffer.from('G1 X10 Y10 E0.1 F3000\n'.repeat(Math.ceil((3 * MB) / 22)))));
-    expect(fs.statSync(bomb).size).toBeLessThan(64 * 1024);
+    const bomb = 'fixtures/bomb.gcode.gz';
+    const bytes = gzipSync(Buffer.from('G1 X10 Y10 E0.1 F3000\n'.repeat(Math.ceil((3 * MB) / 22))));
+    await putBuffer(bomb, bytes);
+    expect(bytes.length).toBeLessThan(64 * 1024);
     const err = await failure(inspectInPool(bomb, {}, { ...base, maxInflatedBytes: MB }));
     expect(err).toBeInstanceOf(InspectionRunError);
     expect(err!.kind).toBe('unreadable');
@@ -72,12 +80,18 @@ describe('inspection pool', () => {
   });
 
   it('a truncated gzip fails with the engine\'s sentence', async () => {
-    const cut = path.join(dir, 'cut.gcode.gz');
-    const whole = fs.readFileSync(FIXTURE);
-    fs.writeFileSync(cut, whole.subarray(0, Math.floor(whole.length / 2)));
+    const cut = 'fixtures/cut.gcode.gz';
+    const whole = fs.readFileSync(FIXTURE_FILE);
+    await putBuffer(cut, whole.subarray(0, Math.floor(whole.length / 2)));
     const err = await failure(inspectInPool(cut, {}, base));
     expect(err!.kind).toBe('unreadable');
     expect(err!.message).toMatch(/^The compressed file ends early \(truncated gzip\)/);
+  });
+
+  it('a stored file that is gone fails with a sentence for the entrant (no storage path in it)', async () => {
+    const err = await failure(inspectInPool('fixtures/never-stored.gcode', {}, base));
+    expect(err!.kind).toBe('unreadable');
+    expect(err!.message).toBe('The stored G-code of this inspection is gone; upload it again.');
   });
 
   it('a job past its time limit is stopped with a sentence, and the pool goes on', async () => {
@@ -85,5 +99,25 @@ describe('inspection pool', () => {
     expect(err!.kind).toBe('timeout');
     expect(err!.message).toMatch(/^The inspection took longer than 5 ms and was stopped: check that the file is one print's G-code/);
     await expect(inspectInPool(FIXTURE, {}, base)).resolves.toBeTruthy();
+  });
+
+  it('on S3 storage the thread reads the G-code from the bucket itself (settings passed to the thread)', async () => {
+    const s3 = await startFakeS3(Number(process.env.HOTLAP_TEST_S3_PORT || 4570) + 3);
+    const saved = process.env.STORAGE_URL;
+    const env = s3.env('pool');
+    Object.assign(process.env, env);
+    try {
+      await putBuffer('entries/9/gcode-s3.gcode.gz', fs.readFileSync(FIXTURE_FILE));
+      await vi.waitFor(() => expect(s3.events).toContain('ObjectCreated:Put pool/entries/9/gcode-s3.gcode.gz'));
+      const { report } = await inspectInPool('entries/9/gcode-s3.gcode.gz', { name: 'beacon.gcode.gz' }, base);
+      expect(report.layers.count).toBe(200);
+      const err = await failure(inspectInPool('entries/9/none.gcode', {}, base));
+      expect(err!.message).toBe('The stored G-code of this inspection is gone; upload it again.');
+    } finally {
+      for (const k of Object.keys(env)) delete process.env[k];
+      process.env.STORAGE_URL = saved;
+      await closePool();
+      await s3.stop();
+    }
   });
 });
