@@ -13,9 +13,9 @@
  */
 import { NextResponse, type NextRequest } from 'next/server';
 import { contentSecurityPolicy, HSTS_VALUE, trustedProxyHops } from '@/lib/security/headers';
+import { hasSessionCookie } from '@/lib/auth/sessionCookie';
 
 const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
-const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
 const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
 
 function isHttps(req: NextRequest) {
@@ -40,7 +40,7 @@ export function proxy(req: NextRequest) {
     return withSecurityHeaders(res, csp, req);
   }
 
-  if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !SESSION_COOKIES.some((c) => req.cookies.has(c))) {
+  if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !hasSessionCookie(req.cookies.getAll().map((c) => c.name))) {
     const url = req.nextUrl.clone();
     url.pathname = '/signin';
     url.search = `?callbackUrl=${encodeURIComponent(pathname + search)}`;

@@ -7,6 +7,7 @@
  *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL]
  *
  * --only LABEL measures the static file and the routes whose label contains LABEL.
+ * --no-static leaves the static file out (a CPU profile of the routes alone); ratios are then not printed.
  * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
  */
 import fs from 'node:fs';
@@ -41,6 +42,35 @@ interface Target {
   revalidate?: boolean;
 }
 
+/**
+ * CPU time (user + system, ms) used so far by a process and its descendants, from /proc (Linux).
+ * Per-request CPU is the figure to compare between runs when other work shares the cores: the rate
+ * moves with the load average, the CPU each request costs much less.
+ */
+function treeCpuMs(root: number): number {
+  const tick = 1000 / 100; // USER_HZ is 100 on Linux
+  const stats = new Map<number, { ppid: number; cpu: number }>();
+  for (const d of fs.readdirSync('/proc')) {
+    if (!/^\d+$/.test(d)) continue;
+    try {
+      const raw = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
+      const f = raw.slice(raw.lastIndexOf(')') + 2).split(' ');
+      // After the name: state(0) ppid(1) … utime(11) stime(12)
+      stats.set(Number(d), { ppid: Number(f[1]), cpu: (Number(f[11]) + Number(f[12])) * tick });
+    } catch {
+      // The process ended while listing.
+    }
+  }
+  let total = 0;
+  const todo = [root];
+  while (todo.length) {
+    const pid = todo.pop() as number;
+    total += stats.get(pid)?.cpu ?? 0;
+    for (const [child, s] of stats) if (s.ppid === pid) todo.push(child);
+  }
+  return total;
+}
+
 const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
 
 async function main() {
@@ -69,8 +99,10 @@ async function main() {
   ];
   const only = option('only');
   if (only) targets.splice(1, targets.length, ...targets.slice(1).filter((t) => t.label.includes(only)));
+  const withStatic = !process.argv.includes('--no-static');
+  if (!withStatic) targets.shift();
   const server = await startApp(gen, port, profileDir ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(profileDir)}`] : []);
-  const results: { label: string; rps: number; p50: number; p99: number; bad: number }[] = [];
+  const results: { label: string; rps: number; p50: number; p99: number; bad: number; cpuMs: number }[] = [];
   try {
     for (const t of targets) {
       const url = server.url + t.path;
@@ -83,20 +115,22 @@ async function main() {
         await res.arrayBuffer();
       }
       const headers = t.revalidate && etag ? { 'if-none-match': etag } : undefined;
+      const cpu0 = treeCpuMs(server.pid);
       const r = await autocannon({ url, connections, duration: seconds, headers });
+      const cpuMs = (treeCpuMs(server.pid) - cpu0) / Math.max(1, r.requests.total);
       // 304 counts as an answer for a revalidating client; 404 is the not-found page's own answer.
       const expected = t.revalidate ? r['3xx'] : t.path === '/no-such-page' ? r['4xx'] : r['2xx'];
-      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts });
+      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts, cpuMs });
     }
   } finally {
     await server.stop();
     fs.rmSync(gen.dataDir, { recursive: true, force: true });
   }
-  const base = results[0].rps;
+  const base = withStatic ? results[0].rps : NaN;
   console.log(`\nautocannon: ${connections} connections, ${seconds} s per route, ${entries} generated entries`);
-  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'unexpected'.padStart(12));
+  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'CPU ms/req'.padStart(12) + 'unexpected'.padStart(12));
   for (const r of results) {
-    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + String(r.bad).padStart(12));
+    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + r.cpuMs.toFixed(2).padStart(12) + String(r.bad).padStart(12));
   }
   console.log(`load average after: ${load()}`);
   if (profileDir) console.log(`CPU profiles in ${path.resolve(profileDir)}`);

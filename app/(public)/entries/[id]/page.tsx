@@ -7,6 +7,7 @@ import { SeverityPill } from '@/components/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
+import { keptForVersion } from '@/lib/standings/publicCache';
 
 export const metadata = { title: 'Entry' };
 
@@ -24,7 +25,7 @@ const VERDICT_STYLE = {
  */
 export default async function EntryPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
-  const e = await loadOr404((async () => publicEntry(parseId(id, 'entry')))());
+  const e = await loadOr404(keptForVersion(`entry:${id}`, async () => publicEntry(parseId(id, 'entry'))));
   const i = e.inspection;
   const verdict = inspectionVerdict(i && { rules: i.rules, flags: i.flags.length });
   const safeEvidence = /^https?:\/\//i.test(e.evidence_url) ? e.evidence_url : null;
