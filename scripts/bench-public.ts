@@ -7,6 +7,7 @@
  *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL]
  *
  * --only LABEL measures the static file and the routes whose label contains LABEL.
+ * --path P (repeatable) adds any path, e.g. an empty route handler to measure the framework's own floor.
  * --no-static leaves the static file out (a CPU profile of the routes alone); ratios are then not printed.
  * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
  */
@@ -99,6 +100,9 @@ async function main() {
   ];
   const only = option('only');
   if (only) targets.splice(1, targets.length, ...targets.slice(1).filter((t) => t.label.includes(only)));
+  process.argv.forEach((a, i) => {
+    if (a === '--path') targets.push({ label: `path ${process.argv[i + 1]}`, path: process.argv[i + 1] });
+  });
   const withStatic = !process.argv.includes('--no-static');
   if (!withStatic) targets.shift();
   const server = await startApp(gen, port, profileDir ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(profileDir)}`] : []);
