@@ -6,8 +6,8 @@
  * shows was rendered before that nonce existed, so nothing in it can carry the nonce of any
  * response — the same guarantee as rendering each request.
  *
- * - Only GET requests for the listed public paths, without a session cookie, and never the RSC
- *   requests of client-side navigation (those carry their own headers) nor server actions.
+ * - Only GET requests for the listed public paths that ask for HTML (Accept: text/html), without a
+ *   session cookie; never the RSC requests of client-side navigation nor server actions.
  * - A miss renders the page once through the app itself (a request to this server marked with a
  *   per-process secret, which the proxy lets through to the normal render); concurrent misses of the
  *   same page share that render. Only a 200 text/html answer without cookies is kept.
@@ -21,7 +21,12 @@ import { hasSessionCookie } from '@/lib/auth/sessionCookie';
 import { standingsVersion } from './query';
 
 const PATHS = [/^\/$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/entries\/[1-9]\d{0,15}$/];
-/** Requests of client-side navigation and actions: they ask for other answers than the HTML page. */
+/**
+ * Requests of client-side navigation and actions ask for other answers than the HTML page. Next.js
+ * strips its RSC headers (and `_rsc`) from the request the proxy sees, so these checks are a second
+ * line only; the first is that a page load asks for HTML (Accept: text/html, as browsers send for a
+ * document) while the router's fetches do not.
+ */
 const OTHER_ANSWERS = ['rsc', 'next-router-prefetch', 'next-router-state-tree', 'next-router-segment-prefetch', 'next-action'];
 export const RENDER_HEADER = 'x-hotlap-page-render';
 const SECRET = crypto.randomBytes(18).toString('base64url');
@@ -58,6 +63,7 @@ export function isCacheRender(req: PageRequest): boolean {
 export function pageCacheable(req: PageRequest): boolean {
   if (process.env.HOTLAP_PAGE_CACHE === '0' || req.method !== 'GET') return false;
   if (!PATHS.some((p) => p.test(req.nextUrl.pathname)) || req.nextUrl.searchParams.has('_rsc')) return false;
+  if (!req.headers.get('accept')?.includes('text/html')) return false;
   if (OTHER_ANSWERS.some((h) => req.headers.has(h)) || isCacheRender(req)) return false;
   return !hasSessionCookie(req.cookies.getAll().map((c) => c.name));
 }

@@ -18,8 +18,11 @@ const base = inject('baseUrl');
 const db = inject('dbFile');
 const anonymous = new Client(base);
 
+/** As a browser loads a document (public pages are kept only for requests that ask for HTML). */
+const HTML = { accept: 'text/html,application/xhtml+xml,*/*;q=0.8' };
+
 async function page(path: string, client = anonymous): Promise<{ status: number; html: string }> {
-  const res = await client.request(path);
+  const res = await client.request(path, { headers: HTML });
   return { status: res.status, html: await res.text() };
 }
 
@@ -156,5 +159,49 @@ describe('the header and the session', () => {
     const visitor = await page('/seasons/frostbite-sprint/classes/open-04');
     expect(visitor.html).not.toContain('data-testid="signed-in-as"');
     expect(visitor.html).toContain('Sign in');
+  });
+});
+
+describe('kept whole pages keep the per-request nonce', () => {
+  const path = '/seasons/frostbite-sprint/classes/open-04';
+  const nonceOf = (csp: string | null) => csp?.match(/'nonce-([^']+)'/)?.[1];
+
+  it('a repeated anonymous request is a HIT whose every script carries that response’s own, new nonce', async () => {
+    const seen = new Set<string>();
+    const states: string[] = [];
+    for (let i = 0; i < 3; i++) {
+      const res = await fetch(base + path, { headers: HTML });
+      states.push(res.headers.get('x-page-cache') ?? '');
+      const nonce = nonceOf(res.headers.get('content-security-policy'));
+      expect(nonce).toBeTruthy();
+      seen.add(nonce!);
+      const html = await res.text();
+      const scripts = [...html.matchAll(/<script\b[^>]*>/g)].map((m) => m[0]);
+      expect(scripts.length).toBeGreaterThan(0);
+      for (const s of scripts) expect(s, s).toContain(`nonce="${nonce}"`);
+      // No other nonce (the one the page was rendered with) is left anywhere in the page.
+      expect([...html.matchAll(/nonce="([^"]+)"/g)].every((m) => m[1] === nonce)).toBe(true);
+      // The security headers once each (not doubled by the kept copy).
+      expect(res.headers.get('x-frame-options')).toBe('DENY');
+      expect(res.headers.get('x-content-type-options')).toBe('nosniff');
+      expect(res.headers.get('set-cookie')).toBeNull();
+    }
+    expect(seen.size).toBe(3);
+    expect(states.at(-1)).toBe('HIT');
+  });
+
+  it('members, client-side navigation (RSC) and other methods are rendered for themselves', async () => {
+    const judge = new Client(base);
+    expect((await judge.signIn(demoEmail('judge'), DEMO_PASSWORD)).status).toBe(200);
+    expect((await judge.request(path, { headers: HTML })).headers.get('x-page-cache')).toBeNull();
+    // What the router sends for a client-side navigation (no text/html in Accept).
+    const rsc = await fetch(base + path, { headers: { rsc: '1', accept: '*/*' } });
+    expect(rsc.headers.get('x-page-cache')).toBeNull();
+    expect(rsc.headers.get('content-type')).not.toMatch(/text\/html/);
+    const head = await fetch(base + path, { method: 'HEAD', headers: HTML });
+    expect(head.headers.get('x-page-cache')).toBeNull();
+    // A forged render marker is not the server's secret: the visitor still gets the kept page.
+    const forged = await fetch(base + path, { headers: { ...HTML, 'x-hotlap-page-render': 'guess' } });
+    expect(forged.headers.get('x-page-cache')).toBe('HIT');
   });
 });
