@@ -45,6 +45,8 @@ interface Kept {
 const kept = new Map<string, Kept>();
 const rendering = new Map<string, Promise<Rendered>>();
 const KEPT_MAX = 500;
+/** A render slower than this is given up; the visitor then gets a render of their own. */
+const RENDER_TIMEOUT_MS = 30_000;
 const KEPT_MAX_CHARS = 64 * 1024 * 1024;
 let keptChars = 0;
 
@@ -86,7 +88,7 @@ interface Rendered extends Kept {
 }
 
 async function render(key: string, version: number, origin: string): Promise<Rendered> {
-  const res = await fetch(ownOrigin(origin) + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual' });
+  const res = await fetch(ownOrigin(origin) + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(RENDER_TIMEOUT_MS) });
   const html = await res.text();
   const nonce = res.headers.get('content-security-policy')?.match(/'nonce-([A-Za-z0-9+/=]+)'/)?.[1] ?? '';
   const keep = res.status === 200 && !!nonce && !!res.headers.get('content-type')?.startsWith('text/html') && !res.headers.has('set-cookie') && html.length <= KEPT_MAX_CHARS / 8;
@@ -105,7 +107,7 @@ async function render(key: string, version: number, origin: string): Promise<Ren
 /**
  * The page for this request with `nonce` in place of the one it was rendered with, from the cache
  * or rendered once for everyone asking at the same time; null when the counter cannot be trusted
- * (the caller then lets the request through to a normal render).
+ * or the render for the cache failed (the caller then lets the request through to a normal render).
  */
 export async function keptPage(req: PageRequest & { url: string }, nonce: string): Promise<Response | null> {
   const version = await standingsVersion();
@@ -123,7 +125,12 @@ export async function keptPage(req: PageRequest & { url: string }, nonce: string
       p = render(key, version, new URL(req.url).origin).finally(() => rendering.delete(flight));
       rendering.set(flight, p);
     }
-    page = await p;
+    try {
+      page = await p;
+    } catch (err) {
+      console.warn(`page cache: rendering ${key} for the cache failed (${err instanceof Error ? err.message : err}); rendering for this request`);
+      return null;
+    }
     state = page.status === 200 && (page as Rendered).kept ? 'MISS' : 'PASS';
   }
   const headers = new Headers(page.headers);

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { inspectionVerdict } from '@/lib/standings/summary';
 import { loadOr404 } from '@/components/standings/load';
-import { FlowChart } from '@/components/charts/FlowChart';
+import { LazyFlowChart } from './LazyFlowChart';
 import { SeverityPill } from '@/components/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
@@ -167,7 +167,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
 
       {i?.flow_series && (
         <section className="card">
-          <FlowChart
+          <LazyFlowChart
             title="Commanded volumetric flow over the print"
             series={{ bucketS: i.flow_series.bucket_s, maxMm3s: i.flow_series.points.map((p) => p.max_mm3s), meanMm3s: i.flow_series.points.map((p) => p.mean_mm3s) }}
           />
