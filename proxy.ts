@@ -4,7 +4,9 @@
  *   next.config.mjs), HSTS over https;
  * - 405 for a method no page has;
  * - routing help: visitors without a session cookie who open a members' page go to sign-in first.
- *   Authorization happens again in every page, route handler and server action.
+ *   Authorization happens again in every page, route handler and server action;
+ * - public pages for anonymous visitors from lib/standings/pageCache.ts (kept per standings
+ *   version, each answer with its own nonce).
  *
  * Not for /api, nor for any request with a body (see `config`): when a proxy runs for a request,
  * Next.js copies its body in memory (up to proxyClientMaxBodySize, 10 MB; the rest is silently cut)
@@ -13,9 +15,10 @@
  */
 import { NextResponse, type NextRequest } from 'next/server';
 import { contentSecurityPolicy, HSTS_VALUE, trustedProxyHops } from '@/lib/security/headers';
+import { hasSessionCookie } from '@/lib/auth/sessionCookie';
+import { keptPage, pageCacheable } from '@/lib/standings/pageCache';
 
 const MEMBER_PREFIXES = ['/me', '/account', '/judging', '/organize', '/admin'];
-const SESSION_COOKIES = ['next-auth.session-token', '__Secure-next-auth.session-token'];
 const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
 
 function isHttps(req: NextRequest) {
@@ -30,7 +33,7 @@ function withSecurityHeaders(res: NextResponse, csp: string, req: NextRequest) {
   return res;
 }
 
-export function proxy(req: NextRequest) {
+export async function proxy(req: NextRequest) {
   const { pathname, search } = req.nextUrl;
   const nonce = Buffer.from(crypto.getRandomValues(new Uint8Array(16))).toString('base64');
   const csp = contentSecurityPolicy(nonce, process.env.NODE_ENV === 'development');
@@ -40,11 +43,17 @@ export function proxy(req: NextRequest) {
     return withSecurityHeaders(res, csp, req);
   }
 
-  if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !SESSION_COOKIES.some((c) => req.cookies.has(c))) {
+  if (MEMBER_PREFIXES.some((p) => pathname === p || pathname.startsWith(`${p}/`)) && !hasSessionCookie(req.cookies.getAll().map((c) => c.name))) {
     const url = req.nextUrl.clone();
     url.pathname = '/signin';
     url.search = `?callbackUrl=${encodeURIComponent(pathname + search)}`;
     return withSecurityHeaders(NextResponse.redirect(url), csp, req);
+  }
+
+  // Public pages for anonymous visitors: kept per standings version, sent with this response's nonce.
+  if (pageCacheable(req)) {
+    const kept = await keptPage(req, nonce);
+    if (kept) return withSecurityHeaders(new NextResponse(kept.body, { status: kept.status, headers: kept.headers }), csp, req);
   }
 
   // Next.js reads the nonce from the request's CSP header and puts it on its own scripts.

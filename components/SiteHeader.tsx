@@ -4,9 +4,11 @@ import { authOptions } from '@/lib/auth/options';
 import { navFor } from '@/lib/nav';
 import { LogoMark } from '@/components/Logo';
 import { SignOutButton } from '@/components/SignOutButton';
+import { mayBeSignedIn } from '@/lib/auth/visitor';
 
 export async function SiteHeader() {
-  const session = await getServerSession(authOptions);
+  // Anonymous visitors (no session cookie) cost no session read.
+  const session = (await mayBeSignedIn()) ? await getServerSession(authOptions) : null;
   const user = session?.user;
   const items = navFor(user?.roles);
   return (

@@ -7,11 +7,17 @@
  *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL]
  *
  * --only LABEL measures the static file and the routes whose label contains LABEL.
+ * --path P (repeatable) adds any path, e.g. an empty route handler to measure the framework's own floor.
+ * Before the load runs it prints each HTML page's first-load JavaScript: the scripts the page's HTML
+ * loads (files and inline), their bytes and gzip-compressed bytes.
+ * --weight-only prints that and stops.
+ * --no-static leaves the static file out (a CPU profile of the routes alone); ratios are then not printed.
  * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
  */
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import zlib from 'node:zlib';
 import autocannon from 'autocannon';
 import sqlite3 from 'sqlite3';
 import { arg, generate, startApp } from './bench-standings';
@@ -41,6 +47,37 @@ interface Target {
   revalidate?: boolean;
 }
 
+/**
+ * CPU time (user + system, ms) used so far by a process and its descendants, from /proc (Linux).
+ * Per-request CPU is the figure to compare between runs when other work shares the cores: the rate
+ * moves with the load average, the CPU each request costs much less.
+ */
+function treeCpuMs(root: number): number {
+  const tick = 1000 / 100; // USER_HZ is 100 on Linux
+  const stats = new Map<number, { ppid: number; cpu: number }>();
+  for (const d of fs.readdirSync('/proc')) {
+    if (!/^\d+$/.test(d)) continue;
+    try {
+      const raw = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
+      const f = raw.slice(raw.lastIndexOf(')') + 2).split(' ');
+      // After the name: state(0) ppid(1) … utime(11) stime(12)
+      stats.set(Number(d), { ppid: Number(f[1]), cpu: (Number(f[11]) + Number(f[12])) * tick });
+    } catch {
+      // The process ended while listing.
+    }
+  }
+  let total = 0;
+  const todo = [root];
+  while (todo.length) {
+    const pid = todo.pop() as number;
+    total += stats.get(pid)?.cpu ?? 0;
+    for (const [child, s] of stats) if (s.ppid === pid) todo.push(child);
+  }
+  return total;
+}
+
+const ACCEPT_HTML = 'text/html,application/xhtml+xml,*/*;q=0.8';
+
 const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
 
 async function main() {
@@ -69,34 +106,61 @@ async function main() {
   ];
   const only = option('only');
   if (only) targets.splice(1, targets.length, ...targets.slice(1).filter((t) => t.label.includes(only)));
+  process.argv.forEach((a, i) => {
+    if (a === '--path') targets.push({ label: `path ${process.argv[i + 1]}`, path: process.argv[i + 1] });
+  });
+  const withStatic = !process.argv.includes('--no-static');
+  if (!withStatic) targets.shift();
   const server = await startApp(gen, port, profileDir ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(profileDir)}`] : []);
-  const results: { label: string; rps: number; p50: number; p99: number; bad: number }[] = [];
+  const results: { label: string; rps: number; p50: number; p99: number; bad: number; cpuMs: number }[] = [];
   try {
+    const weights: string[] = [];
+    const pageTargets = [...targets.filter((t) => !t.path.startsWith('/api/') && t.path !== '/favicon.svg'), { label: 'season overview (charts)', path: `/seasons/${gen.season}/overview` }];
+    for (const t of pageTargets) {
+      const html = await (await fetch(server.url + t.path, { headers: { accept: ACCEPT_HTML } })).text();
+      const srcs = [...new Set([...html.matchAll(/<script[^>]*\ssrc="([^"]+\.js)"/g)].map((m) => m[1]))];
+      const inline = [...html.matchAll(/<script(?![^>]*\ssrc=)[^>]*>([\s\S]*?)<\/script>/g)].map((m) => m[1]).join('');
+      let raw = Buffer.byteLength(inline);
+      let gz = zlib.gzipSync(inline).length;
+      for (const src of srcs) {
+        const body = Buffer.from(await (await fetch(new URL(src, server.url))).arrayBuffer());
+        raw += body.length;
+        gz += zlib.gzipSync(body).length;
+      }
+      weights.push(t.label.padEnd(38) + String(srcs.length).padStart(8) + `${(raw / 1024).toFixed(0)} KB`.padStart(10) + `${(gz / 1024).toFixed(0)} KB`.padStart(10));
+    }
+    console.log('\nfirst-load JavaScript'.padEnd(39) + 'files'.padStart(8) + 'raw'.padStart(10) + 'gzip'.padStart(10));
+    for (const w of weights) console.log(w);
+    if (process.argv.includes('--weight-only')) targets.length = 0;
     for (const t of targets) {
       const url = server.url + t.path;
       let etag: string | null = null;
       let kept = '';
       for (let i = 0; i < 20; i++) {
-        const res = await fetch(url);
+        const res = await fetch(url, { headers: { accept: ACCEPT_HTML } });
         etag = res.headers.get('etag');
-        kept = res.headers.get('x-cache') ?? '';
+        kept = res.headers.get('x-cache') ?? res.headers.get('x-page-cache') ?? '';
         await res.arrayBuffer();
       }
-      const headers = t.revalidate && etag ? { 'if-none-match': etag } : undefined;
+      // Every request asks for HTML first, as a browser loading a document does (public pages are kept only for those).
+      const headers: Record<string, string> = { accept: ACCEPT_HTML, ...(t.revalidate && etag ? { 'if-none-match': etag } : {}) };
+      const cpu0 = treeCpuMs(server.pid);
       const r = await autocannon({ url, connections, duration: seconds, headers });
+      const cpuMs = (treeCpuMs(server.pid) - cpu0) / Math.max(1, r.requests.total);
       // 304 counts as an answer for a revalidating client; 404 is the not-found page's own answer.
       const expected = t.revalidate ? r['3xx'] : t.path === '/no-such-page' ? r['4xx'] : r['2xx'];
-      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts });
+      results.push({ label: t.label + (kept ? ` [${kept}]` : ''), rps: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, bad: r.requests.total - expected + r.errors + r.timeouts, cpuMs });
     }
   } finally {
     await server.stop();
     fs.rmSync(gen.dataDir, { recursive: true, force: true });
   }
-  const base = results[0].rps;
+  if (!results.length) return;
+  const base = withStatic ? results[0].rps : NaN;
   console.log(`\nautocannon: ${connections} connections, ${seconds} s per route, ${entries} generated entries`);
-  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'unexpected'.padStart(12));
+  console.log('route'.padEnd(38) + 'req/s'.padStart(9) + 'p50 ms'.padStart(9) + 'p99 ms'.padStart(9) + 'of static'.padStart(11) + 'CPU ms/req'.padStart(12) + 'unexpected'.padStart(12));
   for (const r of results) {
-    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + String(r.bad).padStart(12));
+    console.log(r.label.padEnd(38) + r.rps.toFixed(0).padStart(9) + String(r.p50).padStart(9) + String(r.p99).padStart(9) + `${((r.rps / base) * 100).toFixed(0)} %`.padStart(11) + r.cpuMs.toFixed(2).padStart(12) + String(r.bad).padStart(12));
   }
   console.log(`load average after: ${load()}`);
   if (profileDir) console.log(`CPU profiles in ${path.resolve(profileDir)}`);

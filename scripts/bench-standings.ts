@@ -121,6 +121,8 @@ export async function queryPlan(dbFile: string, env: Record<string, string>): Pr
 
 export interface Server {
   url: string;
+  /** The server process's id (for reading its CPU time). */
+  pid: number;
   stop(): Promise<void>;
 }
 
@@ -136,6 +138,7 @@ export async function startApp(gen: Generated, port: number, nodeFlags: string[]
   await waitForServer(child, `${url}/api/v1/seasons`, 'The app');
   return {
     url,
+    pid: child.pid ?? 0,
     async stop() {
       // Waits for the exit (up to 5 s), so that files the server writes on the way out (CPU profiles) are complete.
       const exited = new Promise((ok) => child.once('exit', ok));

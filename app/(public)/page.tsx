@@ -3,10 +3,11 @@ import { connection } from 'next/server';
 import { publicSeasons } from '@/lib/queries';
 import { StatePill } from '@/components/StatePill';
 import { formatDate, formatSeasonWindow } from '@/lib/format';
+import { keptForVersion } from '@/lib/standings/publicCache';
 
 export default async function HomePage() {
   await connection();
-  const seasons = await publicSeasons();
+  const seasons = await keptForVersion('home', publicSeasons);
   return (
     <div className="space-y-10">
       <section className="rounded-2xl bg-ink-900 px-6 py-10 text-ink-100 sm:px-10">

@@ -10,9 +10,11 @@ import { explainPlan, listTriggers } from '@/lib/dbDialect';
 import type { StandingsQuery, SortKey } from './params';
 import { STANDINGS_TRIGGERS } from '@/migrations/20261201-0402-standings-version';
 import { PUBLIC_READ_TRIGGERS } from '@/migrations/20261203-1801-standings-version-public-reads';
+import { ENTRY_PAGE_TRIGGERS } from '@/migrations/20261204-p01-standings-version-entry-pages';
+import { closeCounterReader, readCounter } from './version';
 
 /** Every trigger that bumps `standings_version`; without all of them the counter can miss a change. */
-const TRIGGER_NAMES = [...new Set([...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS].map(([name]) => name))];
+const TRIGGER_NAMES = [...new Set([...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS, ...ENTRY_PAGE_TRIGGERS].map(([name]) => name))];
 
 /** One ranked row, snake_case as the API and CSV publish it. */
 export interface StandingsRow {
@@ -174,8 +176,7 @@ export async function standingsVersion(): Promise<number | null> {
     if (!triggersChecked) console.warn('standings: change triggers are missing (a table was rebuilt?); ranking every request without the cache.');
   }
   if (!triggersChecked) return null;
-  const [v] = await seq.query<{ version: number }>('SELECT version FROM standings_version WHERE id = 1', { type: QueryTypes.SELECT });
-  return v ? Number(v.version) : null;
+  return readCounter();
 }
 
 export async function rankedRows(ref: ClassRef, opts: { transaction?: Transaction } = {}): Promise<StandingsRow[]> {
@@ -201,6 +202,7 @@ export async function rankedRows(ref: ClassRef, opts: { transaction?: Transactio
 export function clearStandingsCache() {
   cache.clear();
   triggersChecked = null;
+  closeCounterReader();
 }
 
 type SortValue = (r: StandingsRow) => number | string | null;

@@ -47,12 +47,13 @@ describe.skipIf(!cluster)('PostgreSQL dialect', () => {
   it('has every standings change trigger, as plpgsql functions, and they bump the counter', async () => {
     const { STANDINGS_TRIGGERS } = await import('@/migrations/20261201-0402-standings-version');
     const { PUBLIC_READ_TRIGGERS } = await import('@/migrations/20261203-1801-standings-version-public-reads');
+    const { ENTRY_PAGE_TRIGGERS } = await import('@/migrations/20261204-p01-standings-version-entry-pages');
     const rows = await select<{ name: string; lang: string; tbl: string }>(
       `SELECT t.tgname AS name, l.lanname AS lang, c.relname AS tbl FROM pg_trigger t JOIN pg_proc p ON p.oid = t.tgfoid JOIN pg_language l ON l.oid = p.prolang
        JOIN pg_class c ON c.oid = t.tgrelid WHERE NOT t.tgisinternal`,
     );
     const byName = new Map(rows.map((r) => [r.name, r]));
-    for (const [name, event] of [...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS]) {
+    for (const [name, event] of [...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS, ...ENTRY_PAGE_TRIGGERS]) {
       expect(byName.get(name), name).toMatchObject({ lang: 'plpgsql', tbl: /ON (\w+)$/.exec(event)![1] });
     }
     const { listTriggers } = await import('@/lib/dbDialect');

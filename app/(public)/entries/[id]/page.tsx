@@ -2,11 +2,12 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { inspectionVerdict } from '@/lib/standings/summary';
 import { loadOr404 } from '@/components/standings/load';
-import { FlowChart } from '@/components/charts/FlowChart';
+import { LazyFlowChart } from './LazyFlowChart';
 import { SeverityPill } from '@/components/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
+import { keptForVersion } from '@/lib/standings/publicCache';
 
 export const metadata = { title: 'Entry' };
 
@@ -24,7 +25,7 @@ const VERDICT_STYLE = {
  */
 export default async function EntryPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
-  const e = await loadOr404((async () => publicEntry(parseId(id, 'entry')))());
+  const e = await loadOr404(keptForVersion(`entry:${id}`, async () => publicEntry(parseId(id, 'entry'))));
   const i = e.inspection;
   const verdict = inspectionVerdict(i && { rules: i.rules, flags: i.flags.length });
   const safeEvidence = /^https?:\/\//i.test(e.evidence_url) ? e.evidence_url : null;
@@ -166,7 +167,7 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
 
       {i?.flow_series && (
         <section className="card">
-          <FlowChart
+          <LazyFlowChart
             title="Commanded volumetric flow over the print"
             series={{ bucketS: i.flow_series.bucket_s, maxMm3s: i.flow_series.points.map((p) => p.max_mm3s), meanMm3s: i.flow_series.points.map((p) => p.mean_mm3s) }}
           />

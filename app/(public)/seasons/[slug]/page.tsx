@@ -8,16 +8,17 @@ import { formatDateTime, formatSeasonWindow } from '@/lib/format';
 import { Markdown } from '@/components/organizer/Markdown';
 import { SubscribeForm } from '@/components/organizer/SubscribeForm';
 import { eligibilityText } from '@/lib/seasons/eligibility';
-import { currentUser } from '@/lib/auth/guard';
+import { visitorUser } from '@/lib/auth/visitor';
+import { keptForVersion } from '@/lib/standings/publicCache';
 import { isSubscribed } from '@/lib/seasons/subscriptions';
 
 export default async function SeasonPage({ params }: { params: Promise<{ slug: string }> }) {
   const { slug } = await params;
-  const view = await publicSeason(slug);
+  const view = await keptForVersion(`season:${slug}`, () => publicSeason(slug));
   if (!view) notFound();
   const { season, classes, rules, testPiece } = view;
   const seasonRules = rules.filter((r) => r.classId == null);
-  const user = await currentUser();
+  const user = await visitorUser();
   const subscribed = user ? await isSubscribed(season.id, user.id) : false;
   return (
     <div className="space-y-8">

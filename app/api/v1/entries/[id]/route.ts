@@ -1,5 +1,5 @@
 import { route } from '@/lib/http';
-import { cachedJson, CACHE_LIVE } from '@/lib/standings/http';
+import { CACHE_LIVE, jsonAnswer, versionedResponse } from '@/lib/standings/http';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { rejectQuery } from '@/lib/standings/apiParams';
 
@@ -7,5 +7,5 @@ import { rejectQuery } from '@/lib/standings/apiParams';
 export const GET = route(async (req, ctx: { params: Promise<{ id: string }> }) => {
   rejectQuery(req);
   const { id } = await ctx.params;
-  return cachedJson(req, { entry: await publicEntry(parseId(id, 'entry')) }, CACHE_LIVE);
+  return versionedResponse(req, async () => jsonAnswer({ entry: await publicEntry(parseId(id, 'entry')) }, CACHE_LIVE));
 });

@@ -9,6 +9,7 @@ import { loadOr404 } from '@/components/standings/load';
 import { StatePill } from '@/components/StatePill';
 import { getSequelize } from '@/lib/db';
 import { QueryTypes } from 'sequelize';
+import { keptForVersion } from '@/lib/standings/publicCache';
 
 type Props = { params: Promise<{ slug: string; class: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> };
 
@@ -28,13 +29,13 @@ export default async function ClassStandingsPage({ params, searchParams }: Props
     queryError = err.message;
   }
   const { view, season, classes } = await loadOr404(
-    (async () => {
+    keptForVersion(`class:${p.slug}:${p.class}?${standingsSearchParams(query)}`, async () => {
       const seasonSlug = parseSlug(p.slug, 'season');
       const view = await classStandings(seasonSlug, parseSlug(p.class, 'class'), query);
       const season = await findSeason(seasonSlug);
       const classes = await getSequelize().query<{ slug: string; name: string }>('SELECT slug, name FROM classes WHERE season_id = ? ORDER BY display_order, id', { replacements: [season.id], type: QueryTypes.SELECT });
       return { view, season, classes };
-    })(),
+    }),
   );
   return (
     <div className="space-y-6">

@@ -8,13 +8,15 @@ import { standingsCsv } from '@/lib/standings/csv';
  * GET /api/v1/seasons/{season}/classes/{class}/standings — ranked rows with page, per_page, sort,
  * material, motion, q; format=csv exports the whole filtered, sorted view (or one page when paged).
  */
-export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string }> }) => {
-  const p = await ctx.params;
-  const season = parseSlug(p.season, 'season');
-  const cls = parseSlug(p.class, 'class');
-  const q = parseStandingsQuery(new URL(req.url).searchParams);
-  const csv = q.format === 'csv';
-  return versionedResponse(req, async () => {
+export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string }> }) =>
+  // Kept answers are keyed by path and query, and only valid requests are kept: a repeated request
+  // is answered (or 304) before any parsing.
+  versionedResponse(req, async () => {
+    const p = await ctx.params;
+    const season = parseSlug(p.season, 'season');
+    const cls = parseSlug(p.class, 'class');
+    const q = parseStandingsQuery(new URL(req.url).searchParams);
+    const csv = q.format === 'csv';
     const view = await classStandings(season, cls, q, { all: csv && !q.paged });
     const policy = view.season.frozen ? CACHE_FROZEN : CACHE_LIVE;
     if (csv) {
@@ -27,5 +29,5 @@ export const GET = route(async (req, ctx: { params: Promise<{ season: string; cl
     }
     const { rows, ...paging } = view.page;
     return jsonAnswer({ season: view.season, class: view.class, ...paging, rows }, policy);
-  });
-});
+  }),
+);

@@ -1,5 +1,5 @@
 import { route } from '@/lib/http';
-import { cachedJson, CACHE_LIVE } from '@/lib/standings/http';
+import { CACHE_LIVE, jsonAnswer, versionedResponse } from '@/lib/standings/http';
 import { entrantRunsInClass, parseId, parseSlug } from '@/lib/standings/views';
 import { rejectQuery } from '@/lib/standings/apiParams';
 
@@ -7,6 +7,5 @@ import { rejectQuery } from '@/lib/standings/apiParams';
 export const GET = route(async (req, ctx: { params: Promise<{ season: string; class: string; entrant: string }> }) => {
   rejectQuery(req);
   const p = await ctx.params;
-  const body = await entrantRunsInClass(parseSlug(p.season, 'season'), parseSlug(p.class, 'class'), parseId(p.entrant, 'entrant'));
-  return cachedJson(req, body, CACHE_LIVE);
+  return versionedResponse(req, async () => jsonAnswer(await entrantRunsInClass(parseSlug(p.season, 'season'), parseSlug(p.class, 'class'), parseId(p.entrant, 'entrant')), CACHE_LIVE));
 });

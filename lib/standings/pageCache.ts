@@ -1,0 +1,145 @@
+/**
+ * Whole public pages for anonymous visitors, kept per value of the standings change counter and
+ * sent again with a fresh CSP nonce (proxy.ts). The per-request nonce stays: a kept page is stored
+ * with the nonce it was rendered with, and every answer replaces that value with the nonce of its
+ * own response before sending. The stored value never leaves the server, and whatever a page
+ * shows was rendered before that nonce existed, so nothing in it can carry the nonce of any
+ * response — the same guarantee as rendering each request.
+ *
+ * - Only GET requests for the listed public paths that ask for HTML (Accept: text/html), without a
+ *   session cookie; never the RSC requests of client-side navigation nor server actions.
+ * - A miss renders the page once through the app itself (a request to this server marked with a
+ *   per-process secret, which the proxy lets through to the normal render); concurrent misses of the
+ *   same page share that render. Only a 200 text/html answer without cookies is kept.
+ * - The counter is read before rendering, so a kept page is never older than its version; any
+ *   write a public page shows bumps the counter in the database (triggers), so the very next
+ *   request on any web server sharing the database renders afresh.
+ * HOTLAP_PAGE_CACHE=0 turns it off.
+ */
+import crypto from 'node:crypto';
+import { hasSessionCookie } from '@/lib/auth/sessionCookie';
+import { standingsVersion } from './query';
+
+const PATHS = [/^\/$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/entries\/[1-9]\d{0,15}$/];
+/**
+ * Requests of client-side navigation and actions ask for other answers than the HTML page. Next.js
+ * strips its RSC headers (and `_rsc`) from the request the proxy sees, so these checks are a second
+ * line only; the first is that a page load asks for HTML (Accept: text/html, as browsers send for a
+ * document) while the router's fetches do not.
+ */
+const OTHER_ANSWERS = ['rsc', 'next-router-prefetch', 'next-router-state-tree', 'next-router-segment-prefetch', 'next-action'];
+export const RENDER_HEADER = 'x-hotlap-page-render';
+const SECRET = crypto.randomBytes(18).toString('base64url');
+/** Headers of the render not copied: this answer sets its own CSP and security headers; length and encoding change. */
+const NOT_COPIED = new Set([
+  'content-security-policy', 'strict-transport-security', 'content-length', 'content-encoding', 'transfer-encoding', 'connection', 'keep-alive', 'date', 'set-cookie',
+  'x-frame-options', 'x-content-type-options', 'referrer-policy', 'permissions-policy', 'cross-origin-opener-policy',
+]);
+
+interface Kept {
+  version: number;
+  html: string;
+  nonce: string;
+  headers: [string, string][];
+}
+const kept = new Map<string, Kept>();
+const rendering = new Map<string, Promise<Rendered>>();
+const KEPT_MAX = 500;
+/** A render slower than this is given up; the visitor then gets a render of their own. */
+const RENDER_TIMEOUT_MS = 30_000;
+const KEPT_MAX_CHARS = 64 * 1024 * 1024;
+let keptChars = 0;
+
+interface PageRequest {
+  method: string;
+  headers: Headers;
+  nextUrl: { pathname: string; search: string; searchParams: URLSearchParams };
+  cookies: { getAll(): { name: string }[] };
+}
+
+/** The render the cache itself asked for (let through to the app). */
+export function isCacheRender(req: PageRequest): boolean {
+  return req.headers.get(RENDER_HEADER) === SECRET;
+}
+
+export function pageCacheable(req: PageRequest): boolean {
+  if (process.env.HOTLAP_PAGE_CACHE === '0' || req.method !== 'GET') return false;
+  if (!PATHS.some((p) => p.test(req.nextUrl.pathname)) || req.nextUrl.searchParams.has('_rsc')) return false;
+  if (!req.headers.get('accept')?.includes('text/html')) return false;
+  if (OTHER_ANSWERS.some((h) => req.headers.has(h)) || isCacheRender(req)) return false;
+  return !hasSessionCookie(req.cookies.getAll().map((c) => c.name));
+}
+
+function forget(key: string) {
+  const k = kept.get(key);
+  if (!k) return;
+  keptChars -= k.html.length;
+  kept.delete(key);
+}
+
+/** This server's own address (set by `next start`), not the Host header a visitor sent. */
+function ownOrigin(fallback: string): string {
+  return process.env.__NEXT_PRIVATE_ORIGIN || fallback;
+}
+
+interface Rendered extends Kept {
+  status: number;
+  kept: boolean;
+}
+
+async function render(key: string, version: number, origin: string): Promise<Rendered> {
+  const res = await fetch(ownOrigin(origin) + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(RENDER_TIMEOUT_MS) });
+  const html = await res.text();
+  const nonce = res.headers.get('content-security-policy')?.match(/'nonce-([A-Za-z0-9+/=]+)'/)?.[1] ?? '';
+  const keep = res.status === 200 && !!nonce && !!res.headers.get('content-type')?.startsWith('text/html') && !res.headers.has('set-cookie') && html.length <= KEPT_MAX_CHARS / 8;
+  // An answer that is not kept (a 404, a redirect) is sent once as rendered, its cookies included.
+  const headers = [...res.headers].filter(([k]) => !NOT_COPIED.has(k.toLowerCase()) || (!keep && k.toLowerCase() === 'set-cookie'));
+  const page: Rendered = { version, html, nonce, headers, status: res.status, kept: keep };
+  if (keep) {
+    forget(key);
+    kept.set(key, { version, html, nonce, headers });
+    keptChars += html.length;
+    while (kept.size > KEPT_MAX || keptChars > KEPT_MAX_CHARS) forget(kept.keys().next().value as string);
+  }
+  return page;
+}
+
+/**
+ * The page for this request with `nonce` in place of the one it was rendered with, from the cache
+ * or rendered once for everyone asking at the same time; null when the counter cannot be trusted
+ * or the render for the cache failed (the caller then lets the request through to a normal render).
+ */
+export async function keptPage(req: PageRequest & { url: string }, nonce: string): Promise<Response | null> {
+  const version = await standingsVersion();
+  if (version === null) return null;
+  const key = req.nextUrl.pathname + req.nextUrl.search;
+  let page: Kept & { status?: number } | undefined = kept.get(key);
+  let state = 'HIT';
+  if (page && page.version === version) {
+    kept.delete(key);
+    kept.set(key, page); // most recently used last
+  } else {
+    const flight = `${version}:${key}`;
+    let p = rendering.get(flight);
+    if (!p) {
+      p = render(key, version, new URL(req.url).origin).finally(() => rendering.delete(flight));
+      rendering.set(flight, p);
+    }
+    try {
+      page = await p;
+    } catch (err) {
+      console.warn(`page cache: rendering ${key} for the cache failed (${err instanceof Error ? err.message : err}); rendering for this request`);
+      return null;
+    }
+    state = page.status === 200 && (page as Rendered).kept ? 'MISS' : 'PASS';
+  }
+  const headers = new Headers(page.headers);
+  headers.set('X-Page-Cache', state);
+  return new Response(page.nonce ? page.html.replaceAll(page.nonce, nonce) : page.html, { status: page.status ?? 200, headers });
+}
+
+/** Forget kept pages (tests and tools that rewrite the database wholesale). */
+export function clearKeptPages() {
+  kept.clear();
+  keptChars = 0;
+}
