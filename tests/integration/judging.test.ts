@@ -91,7 +91,12 @@ describe('who may decide', () => {
     expect(res.status).toBe(403);
     expect((await res.json()).error).toMatch(/own entry/);
     expect((await clients.judge2.get(`/api/judging/entries/${judge2Own}`)).status).toBe(403);
-    expect((await clients.judge2.get(`/judging/entries/${judge2Own}`)).status).toBe(403);
+    const page = await clients.judge2.get(`/judging/entries/${judge2Own}`);
+    expect(page.status).toBe(403);
+    // The page gives the real reason, not the generic role sentence.
+    const html = await page.text();
+    expect(html).toContain('You cannot judge your own entry');
+    expect(html).not.toContain('Not for your role');
     const [row] = await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [judge2Own]);
     expect(row.state).toBe('submitted');
   });
