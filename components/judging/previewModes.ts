@@ -1,0 +1,99 @@
+/**
+ * Colour modes of the toolpath preview beyond commanded flow: commanded speed, line width and layer
+ * time. Each mode maps a value to a band of a legend whose edges are rounded ("nice" steps of 1, 2,
+ * 2.5 or 5 × a power of ten) and spans the values the file actually has. Pure functions: the canvas
+ * view, the 3-D view and the unit tests share them.
+ */
+import { lineWidthMm, PROPS_AREA_PER_MM2, PROPS_SPEED_PER_MMS } from '@/lib/inspection/preview';
+
+export const PREVIEW_MODES = {
+  flow: { label: 'Commanded flow', unit: 'mm³/s' },
+  speed: { label: 'Speed', unit: 'mm/s' },
+  width: { label: 'Line width', unit: 'mm' },
+  layerTime: { label: 'Layer time', unit: 's' },
+} as const;
+export type PreviewMode = keyof typeof PREVIEW_MODES;
+export const PREVIEW_MODE_LIST = Object.keys(PREVIEW_MODES) as PreviewMode[];
+
+/**
+ * Our own sequential scale for speed, width and layer time: cool slate blue through coolant teal to
+ * amber and ember; distinct from the flow scale's reds so a judge does not read "too hot" into it.
+ */
+export const BAND_COLOURS = ['#4a5d8f', '#3e7c9c', '#2f9aa6', '#2fae96', '#6cbf6a', '#b5c445', '#e3b52c', '#f08a2c', '#e0602a', '#b8401f'] as const;
+/** Colour for a record or layer with no value (e.g. a prime line the report does not time). */
+export const NO_VALUE_COLOUR = '#6b7280';
+
+/** A rounded step near span/target: 1, 2, 2.5 or 5 × 10^k. */
+export function niceStep(span: number, target: number): number {
+  if (!(span > 0) || !(target > 0)) return 1;
+  const raw = span / target;
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const f = raw / mag;
+  const m = f <= 1 ? 1 : f <= 2 ? 2 : f <= 2.5 ? 2.5 : f <= 5 ? 5 : 10;
+  return m * mag;
+}
+
+/** Rounds away floating-point noise (0.30000000000000004 → 0.3). */
+const clean = (v: number) => Number(v.toPrecision(12));
+
+/**
+ * Band edges covering [min, max] with rounded steps, at most BAND_COLOURS.length bands. The edges
+ * are lower bounds; the last band is closed at the last edge + step.
+ */
+export function niceBands(min: number, max: number, target = 6): number[] {
+  if (!Number.isFinite(min) || !Number.isFinite(max)) return [];
+  if (max <= min) {
+    const step = niceStep(Math.abs(min) || 1, 4);
+    const lo = clean(Math.floor(min / step) * step);
+    return [lo];
+  }
+  let step = niceStep(max - min, target);
+  for (;;) {
+    const edges: number[] = [];
+    for (let v = Math.floor(min / step) * step; v <= max + step * 1e-9; v += step) edges.push(clean(v));
+    // `max` exactly on an edge belongs to the band below it.
+    if (edges.length > 1 && Math.abs(edges[edges.length - 1] - max) < step * 1e-9) edges.pop();
+    if (edges.length <= BAND_COLOURS.length) return edges;
+    step = niceStep(max - min, (edges.length - 1) / 2);
+  }
+}
+
+/** Index of the band holding v (edges ascending), clamped to the scale. */
+export function bandOf(edges: readonly number[], v: number): number {
+  let i = edges.length - 1;
+  while (i > 0 && v < edges[i]) i--;
+  return Math.max(0, i);
+}
+
+/** The step between edges (one band's width), for labels of the last band. */
+const stepOf = (edges: readonly number[]) => (edges.length > 1 ? clean(edges[1] - edges[0]) : 0);
+
+/** "40–60" style label of band i, with as many decimals as the step needs. */
+export function bandLabel(edges: readonly number[], i: number): string {
+  const step = stepOf(edges);
+  // As many decimals as the step has (0.05 → 2, 2.5 → 1, 20 → 0).
+  const decimals = Math.min(3, (String(step || 0.01).split('.')[1] ?? '').length);
+  const fmt = (v: number) => v.toFixed(decimals);
+  const hi = i + 1 < edges.length ? edges[i + 1] : clean(edges[i] + (step || 0));
+  return step ? `${fmt(edges[i])}–${fmt(hi)}` : fmt(edges[i]);
+}
+
+export const bandColour = (i: number) => BAND_COLOURS[Math.max(0, Math.min(BAND_COLOURS.length - 1, i))];
+
+/** Speed of record k of a layer's props, mm/s. */
+export const recordSpeedMms = (props: readonly number[], k: number) => props[2 * k] / PROPS_SPEED_PER_MMS;
+/** Line width of record k, mm, from its cross-section and the layer height (null when unknown). */
+export const recordWidthMm = (props: readonly number[], k: number, heightMm: number | undefined) => lineWidthMm(props[2 * k + 1] / PROPS_AREA_PER_MM2, heightMm ?? 0);
+
+/**
+ * Per-layer commanded time from the report (planner, with acceleration), matched to the preview's
+ * layers by Z (the report lists Z to 3 decimals). A preview level the report does not count (prime
+ * line, purge) gets null.
+ */
+export function layerTimes(previewZ: readonly number[], report: { zMm: readonly number[]; timeS: readonly number[] } | null): (number | null)[] {
+  if (!report?.zMm.length || report.timeS.length !== report.zMm.length) return previewZ.map(() => null);
+  return previewZ.map((z) => {
+    const k = report.zMm.findIndex((rz) => Math.abs(rz - z) < 0.0006);
+    return k >= 0 ? report.timeS[k] : null;
+  });
+}

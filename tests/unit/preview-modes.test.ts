@@ -1,0 +1,39 @@
+import { describe, it, expect } from 'vitest';
+import { bandLabel, bandOf, layerTimes, niceBands, niceStep, BAND_COLOURS } from '@/components/judging/previewModes';
+
+describe('preview legend bands (rounded steps; common practice for chart axes, no source)', () => {
+  it('picks 1, 2, 2.5 or 5 × 10^k steps', () => {
+    expect(niceStep(100, 6)).toBe(20);
+    expect(niceStep(0.3, 6)).toBe(0.05);
+    expect(niceStep(12, 6)).toBe(2);
+    expect(niceStep(14, 6)).toBe(2.5);
+  });
+
+  it('covers the file’s range with rounded edges, no holes, at most as many bands as colours', () => {
+    const e = niceBands(37, 212);
+    expect(e[0]).toBeLessThanOrEqual(37);
+    expect(e.every((v) => v % 25 === 0 || v % 20 === 0 || v % 50 === 0)).toBe(true);
+    expect(e[e.length - 1]).toBeLessThanOrEqual(212);
+    expect(e.length).toBeLessThanOrEqual(BAND_COLOURS.length);
+    for (let i = 1; i < e.length; i++) expect(e[i] - e[i - 1]).toBeCloseTo(e[1] - e[0], 9);
+    expect(bandOf(e, 37)).toBe(0);
+    expect(bandOf(e, 212)).toBe(e.length - 1);
+  });
+
+  it('labels line widths with the decimals the step needs, free of float noise', () => {
+    const e = niceBands(0.42, 0.71);
+    expect(e).toEqual([0.4, 0.45, 0.5, 0.55, 0.6, 0.65, 0.7]);
+    expect(bandLabel(e, 0)).toBe('0.40–0.45');
+    expect(bandLabel(e, e.length - 1)).toBe('0.70–0.75');
+  });
+
+  it('a file with one value gets one band', () => {
+    expect(niceBands(50, 50)).toHaveLength(1);
+    expect(bandOf(niceBands(50, 50), 50)).toBe(0);
+  });
+
+  it('matches the report’s layer times to preview levels by Z; a prime-line level gets none', () => {
+    expect(layerTimes([0.2, 0.25, 0.4], { zMm: [0.2, 0.4], timeS: [31, 12.5] })).toEqual([31, null, 12.5]);
+    expect(layerTimes([0.2], null)).toEqual([null]);
+  });
+});
