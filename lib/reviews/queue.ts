@@ -243,3 +243,14 @@ export async function queueNeighbours(judgeId: number, entryId: number, filter: 
   return { position: null, count: shown.length, previous: null, next: shown[0]?.id ?? null };
 }
 export type ReviewQueue = Awaited<ReturnType<typeof reviewQueue>>;
+
+/**
+ * The judge's own latest decision on an entry and the entry's state now, read back from the
+ * database for the note shown on the next entry after deciding (null when this judge has none).
+ */
+export async function ownLatestDecision(judgeId: number, entryId: number) {
+  const review = await Review.findOne({ where: { entryId, judgeId }, order: [['id', 'DESC']], attributes: ['id', 'decision', 'createdAt'] });
+  if (!review) return null;
+  const entry = await Entry.findByPk(entryId, { attributes: ['id', 'state'] });
+  return entry ? { entryId, decision: review.decision, at: review.createdAt.toISOString(), entryState: entry.state } : null;
+}
