@@ -35,7 +35,7 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
       <p className="text-ink-600">
         Seasons you judge: {seasons.length ? seasons.map((s) => `${s.name}${s.verificationsRequired > 1 ? ` (${s.verificationsRequired} verifying judges)` : ''}`).join(', ') : 'none yet — an organizer appoints judges per season.'}
       </p>
-      {!parsed.success && <p className="field-error" role="alert">That filter is not known; showing everything.</p>}
+      {!parsed.success && <p className="field-error" role="alert">{parsed.error.issues[0]?.message ?? 'That filter is not known.'} Showing everything instead.</p>}
       <nav aria-label="Queue views" className="flex gap-2" data-testid="queue-views">
         {(Object.keys(QUEUE_VIEWS) as QueueView[]).map((v) => (
           <Link key={v} href={href({ ...filter, sort: undefined }, { view: v === 'waiting' ? undefined : v })} aria-current={view === v ? 'page' : undefined}
