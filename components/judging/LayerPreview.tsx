@@ -11,7 +11,7 @@ import dynamic from 'next/dynamic';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { FLOW_COLOURS, bucketLabel, flowColour, layerLabel, legendBands } from './flowScale';
 import {
-  PREVIEW_MODES, PREVIEW_MODE_LIST, NO_VALUE_COLOUR, bandColour, bandLabel, bandOf, layerTimes, niceBands, recordSpeedMms, recordWidthMm,
+  PREVIEW_MODES, PREVIEW_MODE_LIST, NO_VALUE_COLOUR, bandColour, bandLabel, bandOf, layerTimes, niceBands, recordSpeedMms, recordWidthMm, robustRange,
   type PreviewMode,
 } from './previewModes';
 import type { Preview, PreviewLayer } from './previewTypes';
@@ -64,14 +64,16 @@ function buildScale(mode: PreviewMode, data: Preview, times: (number | null)[]):
   if (mode === 'layerTime') {
     const known = times.filter((t): t is number => t !== null);
     if (!known.length) return { edges: [], colour: bandColour, bandOf: () => -1, legend: [], title, missing: 'The inspection report has no layer times for this file.' };
-    const edges = niceBands(Math.min(...known), Math.max(...known));
+    const range = robustRange(known.map((v) => ({ v, w: 1 })))!;
+    const edges = niceBands(range.min, range.max);
+    const open = { low: range.below, high: range.above };
     const count = new Array<number>(edges.length).fill(0);
     for (const t of known) count[bandOf(edges, t)]++;
     return {
       edges,
       colour: bandColour,
       bandOf: (li) => (times[li] === null ? -1 : bandOf(edges, times[li]!)),
-      legend: edges.map((_, i) => ({ band: i, label: bandLabel(edges, i), amount: `${count[i]} layer${count[i] === 1 ? '' : 's'}` })),
+      legend: edges.map((_, i) => ({ band: i, label: bandLabel(edges, i, open), amount: `${count[i]} layer${count[i] === 1 ? '' : 's'}` })),
       title,
       missing: null,
     };
@@ -86,18 +88,17 @@ function buildScale(mode: PreviewMode, data: Preview, times: (number | null)[]):
     forEachRecord(l, (k) => out.push(mode === 'speed' ? recordSpeedMms(l.props!, k) : recordWidthMm(l.props!, k, l.heightMm)));
     return out;
   });
-  let min = Infinity;
-  let max = -Infinity;
-  for (const vs of values) for (const v of vs) if (v !== null) {
-    if (v < min) min = v;
-    if (v > max) max = v;
-  }
-  const edges = niceBands(min, max);
-  const lenMm = new Array<number>(edges.length).fill(0);
+  const weighted: { v: number; w: number }[] = [];
   data.layers.forEach((l, li) => forEachRecord(l, (k, _b, _s, _n, len) => {
     const v = values[li][k];
-    if (v !== null && v !== undefined) lenMm[bandOf(edges, v)] += len * data.unitMm;
+    if (v !== null && v !== undefined) weighted.push({ v, w: Math.max(len, 1) });
   }));
+  const range = robustRange(weighted);
+  if (!range) return { edges: [], colour: bandColour, bandOf: () => -1, legend: [], title, missing: 'This file has no extruding moves with a value to colour.' };
+  const edges = niceBands(range.min, range.max);
+  const open = { low: range.below, high: range.above };
+  const lenMm = new Array<number>(edges.length).fill(0);
+  for (const { v, w } of weighted) lenMm[bandOf(edges, v)] += w * data.unitMm;
   return {
     edges,
     colour: bandColour,
@@ -105,7 +106,7 @@ function buildScale(mode: PreviewMode, data: Preview, times: (number | null)[]):
       const v = values[li]?.[k];
       return v === null || v === undefined ? -1 : bandOf(edges, v);
     },
-    legend: edges.map((_, i) => ({ band: i, label: bandLabel(edges, i), amount: `${(lenMm[i] / 1000).toFixed(1)} m` })),
+    legend: edges.map((_, i) => ({ band: i, label: bandLabel(edges, i, open), amount: `${(lenMm[i] / 1000).toFixed(1)} m` })),
     title,
     missing: null,
   };

@@ -35,7 +35,7 @@ export function PhotoGallery({ photos }: { photos: GalleryPhoto[] }) {
   if (!photos.length) return <p className="text-sm text-ink-600">No photos were uploaded.</p>;
   return (
     <>
-      <ul className="grid grid-cols-2 gap-3 sm:grid-cols-3" data-testid="photos">
+      <ul className="grid grid-cols-2 gap-3" data-testid="photos">
         {photos.map((p, i) => (
           <li key={p.id} className="min-w-0">
             <button type="button" onClick={(e) => { opener.current = e.currentTarget; setIndex(i); }} className="block w-full cursor-zoom-in rounded-lg border border-ink-200 bg-ink-50 p-1" aria-label={`Open ${p.name} at full size`}>

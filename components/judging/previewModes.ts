@@ -68,14 +68,42 @@ export function bandOf(edges: readonly number[], v: number): number {
 /** The step between edges (one band's width), for labels of the last band. */
 const stepOf = (edges: readonly number[]) => (edges.length > 1 ? clean(edges[1] - edges[0]) : 0);
 
-/** "40–60" style label of band i, with as many decimals as the step needs. */
-export function bandLabel(edges: readonly number[], i: number): string {
+/**
+ * "40–60" style label of band i, with as many decimals as the step needs. `open` marks end bands
+ * that also hold values beyond the scale (outliers clamped into them): "< 60" / "≥ 300".
+ */
+export function bandLabel(edges: readonly number[], i: number, open: { low?: boolean; high?: boolean } = {}): string {
   const step = stepOf(edges);
   // As many decimals as the step has (0.05 → 2, 2.5 → 1, 20 → 0).
   const decimals = Math.min(3, (String(step || 0.01).split('.')[1] ?? '').length);
   const fmt = (v: number) => v.toFixed(decimals);
   const hi = i + 1 < edges.length ? edges[i + 1] : clean(edges[i] + (step || 0));
+  if (open.high && i === edges.length - 1) return `≥ ${fmt(edges[i])}`;
+  if (open.low && i === 0 && edges.length > 1) return `< ${fmt(hi)}`;
   return step ? `${fmt(edges[i])}–${fmt(hi)}` : fmt(edges[i]);
+}
+
+/**
+ * The range a legend spans: from the 2nd to the 98th percentile of the values, weighted (by
+ * extruded length, or one per layer), so a few odd records — a purge blob, a slow first layer —
+ * do not stretch the scale until every ordinary record falls in one band. Values outside are
+ * drawn in the end bands, which their labels then mark as open.
+ */
+export function robustRange(values: readonly { v: number; w: number }[], lowQ = 0.02, highQ = 0.98): { min: number; max: number; below: boolean; above: boolean } | null {
+  const xs = values.filter((x) => Number.isFinite(x.v) && x.w > 0).sort((a, b) => a.v - b.v);
+  if (!xs.length) return null;
+  const total = xs.reduce((t, x) => t + x.w, 0);
+  const at = (q: number) => {
+    let acc = 0;
+    for (const x of xs) {
+      acc += x.w;
+      if (acc >= q * total) return x.v;
+    }
+    return xs[xs.length - 1].v;
+  };
+  const min = at(lowQ);
+  const max = at(highQ);
+  return { min, max, below: xs[0].v < min, above: xs[xs.length - 1].v > max };
 }
 
 export const bandColour = (i: number) => BAND_COLOURS[Math.max(0, Math.min(BAND_COLOURS.length - 1, i))];

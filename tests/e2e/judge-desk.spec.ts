@@ -80,7 +80,7 @@ test('a judge works three entries in a row with previous/next, switches the prev
     const bands = await page.getByTestId('mode-legend').locator('li').allInnerTexts();
     expect(bands.length).toBeGreaterThan(0);
     // Rounded band edges: "a–b" with at most two decimals.
-    for (const t of bands) expect(t).toMatch(/^\d+(\.\d{1,2})?–\d+(\.\d{1,2})?/);
+    for (const t of bands) expect(t).toMatch(/^(\d+(\.\d{1,2})?–\d+(\.\d{1,2})?|[<≥] \d+(\.\d{1,2})?)\s/);
     console.log(`${label} legend: ${bands.map((t) => t.replace(/\s+/g, ' ')).join(' | ')}`);
   }
   await page.getByTestId('preview-modes').getByLabel('Speed').check();
@@ -118,6 +118,10 @@ test('a judge works three entries in a row with previous/next, switches the prev
   await page.setViewportSize({ width: 390, height: 844 });
   await expect(page.getByTestId('layer-slider')).toBeVisible({ timeout: 20_000 });
   await expect.poll(async () => (await canvas.boundingBox())!.width).toBeLessThanOrEqual(390 - 16);
+  const wide = await page.evaluate(() =>
+    [...document.querySelectorAll('body *')].filter((el) => el.getBoundingClientRect().right > 390.5).slice(0, 8).map((el) => `${el.tagName.toLowerCase()}.${String(el.className).slice(0, 60)} right=${el.getBoundingClientRect().right.toFixed(0)}`),
+  );
+  expect(wide, 'elements wider than the phone').toEqual([]);
   expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
   await page.screenshot({ path: `${SHOTS}/desk-390x844.png` });
   await page.screenshot({ path: `${SHOTS}/desk-390x844-full.png`, fullPage: true });

@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { bandLabel, bandOf, layerTimes, niceBands, niceStep, BAND_COLOURS } from '@/components/judging/previewModes';
+import { bandLabel, bandOf, layerTimes, niceBands, niceStep, robustRange, BAND_COLOURS } from '@/components/judging/previewModes';
 
 describe('preview legend bands (rounded steps; common practice for chart axes, no source)', () => {
   it('picks 1, 2, 2.5 or 5 × 10^k steps', () => {
@@ -35,5 +35,17 @@ describe('preview legend bands (rounded steps; common practice for chart axes, n
   it('matches the report’s layer times to preview levels by Z; a prime-line level gets none', () => {
     expect(layerTimes([0.2, 0.25, 0.4], { zMm: [0.2, 0.4], timeS: [31, 12.5] })).toEqual([31, null, 12.5]);
     expect(layerTimes([0.2], null)).toEqual([null]);
+  });
+
+  it('a few odd records do not stretch the scale: 2nd–98th percentile by length, open end bands', () => {
+    // 1 m of 0.45 mm lines, 1 mm of a 2.4 mm purge blob.
+    const r = robustRange([{ v: 0.45, w: 1000 }, { v: 0.43, w: 500 }, { v: 2.4, w: 1 }])!;
+    expect(r.max).toBe(0.45);
+    expect(r.above).toBe(true);
+    const e = niceBands(r.min, r.max);
+    expect(e[e.length - 1]).toBeLessThan(0.5);
+    expect(bandLabel(e, e.length - 1, { high: true })).toMatch(/^≥ /);
+    expect(bandLabel(e, 0, { low: true })).toMatch(e.length > 1 ? /^< / : /^\d/);
+    expect(robustRange([])).toBeNull();
   });
 });

@@ -159,7 +159,7 @@ export default async function ReviewPage({ params, searchParams }: { params: Pro
           )}
 
           {/* Evidence beside the toolpath preview, same height on a wide screen. */}
-          <div className="grid gap-6 xl:grid-cols-[minmax(0,2fr)_minmax(0,3fr)] xl:items-stretch" data-testid="evidence-row">
+          <div className="grid grid-cols-1 gap-6 *:min-w-0 xl:grid-cols-[minmax(0,2fr)_minmax(0,3fr)] xl:items-stretch" data-testid="evidence-row">
             <section className="card h-full">
               <h2 className="mb-3">Photos</h2>
               <PhotoGallery photos={r.photos} />
@@ -180,7 +180,7 @@ export default async function ReviewPage({ params, searchParams }: { params: Pro
             )}
           </div>
           {/* Rule results and settings beside the flags. */}
-          <div className="grid gap-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)] xl:items-start" data-testid="findings-row">
+          <div className="grid grid-cols-1 gap-6 *:min-w-0 xl:grid-cols-2 xl:items-start" data-testid="findings-row">
             <section className="card space-y-4">
               <h2>Inspection</h2>
               {!insp ? <p>This entry has not been inspected yet.</p> : insp.status !== 'done' ? <p>Inspection {insp.status}{insp.error ? `: ${insp.error}` : ''}.</p> : (
@@ -199,8 +199,22 @@ export default async function ReviewPage({ params, searchParams }: { params: Pro
                       </tbody>
                     </table>
                   </div>
+                </>
+              )}
+            </section>
+
+            {insp?.status === 'done' && (
+              <section className="card space-y-3" aria-label="Flags and settings">
+                  <div>
+                    <h2>Flags</h2>
+                    {insp.flags.length === 0 ? <p className="text-sm">No flags.</p> : (
+                      <ul className="space-y-1 text-sm" data-testid="flags">
+                        {insp.flags.map((f, i) => <li key={i}><SeverityPill severity={f.severity} /> {f.message || f.code}</li>)}
+                      </ul>
+                    )}
+                  </div>
                   <div className="overflow-x-auto">
-                    <h3 className="font-semibold">Settings: declared in the file vs measured from the toolpaths</h3>
+                    <h2 className="pt-2">Settings: declared in the file vs measured from the toolpaths</h2>
                     <table className="table" data-testid="settings">
                       <thead><tr><th>Setting</th><th>Declared</th><th>Measured</th><th>How measured</th></tr></thead>
                       <tbody>
@@ -219,20 +233,6 @@ export default async function ReviewPage({ params, searchParams }: { params: Pro
                         ))}
                       </tbody>
                     </table>
-                  </div>
-                </>
-              )}
-            </section>
-
-            {insp?.status === 'done' && (
-              <section className="card space-y-3" aria-label="Flags">
-                  <div>
-                    <h2>Flags</h2>
-                    {insp.flags.length === 0 ? <p className="text-sm">No flags.</p> : (
-                      <ul className="space-y-1 text-sm" data-testid="flags">
-                        {insp.flags.map((f, i) => <li key={i}><SeverityPill severity={f.severity} /> {f.message || f.code}</li>)}
-                      </ul>
-                    )}
                   </div>
               </section>
             )}
