@@ -42,11 +42,11 @@ export function DecisionForm(props: { afterDecision?: string; entryId: number; e
         setErrors({ _: body.error, ...(body.fields ?? {}) });
         return;
       }
-      setMessage(
+      const recorded =
         body.entryState === 'submitted'
           ? `Verification recorded (${body.verifications.count} of ${body.verifications.required}); another judge must verify before the entry counts.`
-          : `Decision recorded: the entry is now ${body.entryState}. The entrant has been e-mailed.`,
-      );
+          : `Decision recorded: the entry is now ${body.entryState}. The entrant has been e-mailed.`;
+      setMessage(props.afterDecision ? `${recorded} Opening the next entry…` : recorded);
       // On to the next entry, which shows what was recorded here (read back from the database).
       if (props.afterDecision) router.push(props.afterDecision);
       else router.refresh();
@@ -129,7 +129,7 @@ export function DecisionForm(props: { afterDecision?: string; entryId: number; e
         {err('note')}
       </div>
       {err('_')}
-      {message && <p role="status" className="rounded-lg bg-coolant-50 p-3 text-coolant-700" data-testid="decision-result">{message}</p>}
+      {message && <p role="status" className="rounded-lg bg-coolant-50 p-3 text-coolant-700" data-testid={props.afterDecision ? 'decision-recorded' : 'decision-result'}>{message}</p>}
       <button type="submit" className="btn-primary" disabled={busy}>{busy ? 'Recording…' : 'Record decision'}</button>
     </form>
   );

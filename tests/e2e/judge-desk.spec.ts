@@ -103,7 +103,7 @@ test('a judge works three entries in a row with previous/next, switches the prev
   await page.getByLabel(REASON_CODES.timing_unconfirmed.label).check();
   await page.getByLabel('Note to the entrant').fill('The video stops before the last layer.');
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(heading(page, b)).toBeVisible();
+  await expect(heading(page, b)).toBeVisible({ timeout: 30_000 });
   await expect(page.getByTestId('decision-result')).toContainText(`entry #${c}: it is now rejected`);
   expect(new URL(page.url()).searchParams.get('sort')).toBe('newest');
 
@@ -111,7 +111,7 @@ test('a judge works three entries in a row with previous/next, switches the prev
   await page.getByLabel(REASON_CODES.evidence_consistent.label).check();
   await page.getByLabel('Note to the entrant').fill('Timing matches the video.');
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(heading(page, a)).toBeVisible();
+  await expect(heading(page, a)).toBeVisible({ timeout: 30_000 });
   await expect(page.getByTestId('decision-result')).toContainText(`entry #${b}: it is now verified`);
 
   // Phone: everything stacks, the preview fits the width, nothing scrolls sideways.
@@ -130,7 +130,13 @@ test('a judge works three entries in a row with previous/next, switches the prev
   await page.getByLabel('Reject', { exact: true }).check();
   await page.getByLabel(REASON_CODES.timing_unconfirmed.label).check();
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(page.getByTestId('decision-result')).toContainText(`entry #${a}: it is now rejected`);
+  // A reject without a note stays on this entry, with the sentence beside the field.
+  await expect(page.getByText('Write a note for the entrant')).toBeVisible();
+  await expect(heading(page, a)).toBeVisible();
+  await page.getByLabel('Note to the entrant').fill('The photos show a different part.');
+  await page.getByRole('button', { name: 'Record decision' }).click();
+  await expect(page.getByTestId('decision-recorded')).toContainText('Opening the next entry');
+  await expect(page.getByTestId('decision-result')).toContainText(`entry #${a}: it is now rejected`, { timeout: 30_000 });
 
   // The queue's decided view lists all three with their decisions, and search finds them by machine.
   await page.goto('/judging?view=decided&q=Tripod&sort=decided');
