@@ -135,7 +135,6 @@ test('a judge works three entries in a row with previous/next, switches the prev
   await expect(heading(page, a)).toBeVisible();
   await page.getByLabel('Note to the entrant').fill('The photos show a different part.');
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(page.getByTestId('decision-recorded')).toContainText('Opening the next entry');
   await expect(page.getByTestId('decision-result')).toContainText(`entry #${a}: it is now rejected`, { timeout: 30_000 });
 
   // The queue's decided view lists all three with their decisions, and search finds them by machine.

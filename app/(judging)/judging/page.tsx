@@ -1,7 +1,9 @@
 import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth/guard';
-import { reviewQueue, queueSearchParams, QueueFilterSchema, QUEUE_SORTS, QUEUE_VIEWS, QUEUE_SEARCH_MAX, type QueueFilter, type QueueSort, type QueueView } from '@/lib/reviews/queue';
+import { ownLatestDecision, reviewQueue, queueSearchParams, QueueFilterSchema, QUEUE_SORTS, QUEUE_VIEWS, QUEUE_SEARCH_MAX, type QueueFilter, type QueueSort, type QueueView } from '@/lib/reviews/queue';
 import { DECISION_LABELS } from '@/lib/reviews/reasons';
+import { DecidedNote } from '@/components/judging/DecidedNote';
+import { parseId } from '@/lib/ids';
 import type { ReviewDecision } from '@/lib/domain';
 import { QUEUE_FLAG_FILTERS, QUEUE_FLAG_FILTER_LIST } from '@/lib/reviews/flags';
 import { formatDurationMs, formatDurationS, formatDateTime } from '@/lib/format';
@@ -25,6 +27,10 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
   const judge = await requirePageRole('/judging', 'judge');
   const parsed = QueueFilterSchema.safeParse(await searchParams);
   const filter: QueueFilter = parsed.success ? parsed.data : {};
+  const rawQuery = await searchParams;
+  // After the last entry of a list is decided, the judge lands here; say what was recorded.
+  const decidedId = typeof rawQuery.decided === 'string' ? parseId(rawQuery.decided) : null;
+  const decidedNote = decidedId ? await ownLatestDecision(judge.id, decidedId) : null;
   const { view, sort, seasons, classes, flagCounts, total, matched, page, pageCount, entries, conflicts } = await reviewQueue(judge.id, { ...filter, season: undefined });
   // The review screen keeps the judge's place: same view, filters and sort for previous/next.
   const keep = queueSearchParams({ ...filter, page: undefined });
@@ -32,6 +38,7 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
   return (
     <div className="space-y-6">
       <h1>Review desk</h1>
+      {decidedNote && <DecidedNote d={decidedNote} />}
       <p className="text-ink-600">
         Seasons you judge: {seasons.length ? seasons.map((s) => `${s.name}${s.verificationsRequired > 1 ? ` (${s.verificationsRequired} verifying judges)` : ''}`).join(', ') : 'none yet — an organizer appoints judges per season.'}
       </p>

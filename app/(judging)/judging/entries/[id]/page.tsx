@@ -19,6 +19,7 @@ import { LayerPreview } from '@/components/judging/LayerPreview';
 import { FlowChart } from '@/components/charts/FlowChart';
 import { SeverityPill } from '@/components/SeverityPill';
 import { DecisionForm } from '@/components/judging/DecisionForm';
+import { DecidedNote } from '@/components/judging/DecidedNote';
 import { ownLatestDecision, queueNeighbours, queueSearchParams, QueueFilterSchema, type QueueFilter } from '@/lib/reviews/queue';
 import { parseId } from '@/lib/ids';
 
@@ -34,19 +35,6 @@ async function load(judgeId: number, id: number): Promise<EntryReview> {
     if (err instanceof HttpError && err.status === 403) forbidden();
     throw err;
   }
-}
-
-/** The note on the entry a judge lands on after deciding the previous one, read back from the database. */
-function DecidedNote({ d }: { d: NonNullable<Awaited<ReturnType<typeof ownLatestDecision>>> }) {
-  const past = DECISION_LABELS[d.decision as ReviewDecision]?.past ?? d.decision;
-  return (
-    <p role="status" className="rounded-lg bg-coolant-50 p-3 text-coolant-700" data-testid="decision-result">
-      {d.decision === 'verify' && d.entryState === 'submitted'
-        ? `Your verification of entry #${d.entryId} is recorded; another judge must verify it before it counts.`
-        : `You ${past} entry #${d.entryId}: it is now ${d.entryState}. The entrant has been e-mailed.`}{' '}
-      <Link href={`/judging/entries/${d.entryId}`}>Open #{d.entryId} again</Link>
-    </p>
-  );
 }
 
 export default async function ReviewPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
