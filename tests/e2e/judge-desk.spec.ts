@@ -1,7 +1,8 @@
 import { test, expect, type Page } from '@playwright/test';
 import fs from 'node:fs';
 import { signIn, demoEmail } from './helpers';
-import { createReviewableEntry } from '../support/judging-fixtures';
+import { createReviewableEntry, userId } from '../support/judging-fixtures';
+import { sql } from '../support/db';
 import { REASON_CODES } from '../../lib/reviews/reasons';
 
 const db = () => {
@@ -148,4 +149,14 @@ test('a judge works three entries in a row with previous/next, switches the prev
   // A search longer than allowed is refused with a sentence, not an error page.
   await page.goto(`/judging?q=${'x'.repeat(81)}`);
   await expect(page.locator('p.field-error[role=alert]')).toContainText('Search for at most 80 characters.');
+});
+
+test('a judge opening their own entry is told why, not that the page is not for their role', async ({ page }) => {
+  const [own] = await sql<{ id: number }>(db(), "SELECT id FROM entries WHERE entrant_id = ? AND state <> 'draft' ORDER BY id LIMIT 1", [await userId(db(), 'judge2')]);
+  await signIn(page, demoEmail('judge2'));
+  const res = await page.goto(`/judging/entries/${own.id}`);
+  expect(res?.status()).toBe(403);
+  await expect(page.getByRole('heading', { name: 'You cannot judge this entry' })).toBeVisible();
+  await expect(page.getByTestId('forbidden-reason')).toHaveText('You cannot judge your own entry: another judge of the season reviews it.');
+  await expect(page.getByText('Not for your role')).toHaveCount(0);
 });
