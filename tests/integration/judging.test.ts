@@ -107,6 +107,8 @@ describe('queue', () => {
   });
 
   it('the decided view lists entries any judge decided, with the latest decision; previous/next follow the same list', async () => {
+    const { entryId: earlier } = await createReviewableEntry(dbFile, { ...NOT_JUDGE2S_CLASS, claimedTimeMs: 1_660_000 });
+    expect((await clients.judge2.post(`/api/judging/entries/${earlier}/decisions`, reject)).status).toBe(201);
     const { entryId } = await createReviewableEntry(dbFile, { ...NOT_JUDGE2S_CLASS, claimedTimeMs: 1_650_000 });
     const before = await (await clients.judge.get('/api/judging/queue?view=decided')).json();
     expect(before.entries.map((e: { id: number }) => e.id)).not.toContain(entryId);
@@ -123,7 +125,8 @@ describe('queue', () => {
     // The review screen opened from the decided view places it in that list (first, by latest decision).
     const html = await (await clients.judge.get(`/judging/entries/${entryId}?view=decided&sort=decided`)).text();
     expect(html).toContain(`Entry 1 of ${after.matched} in the decided list`);
-    expect(html).toContain(`Next entry (#${after.entries[1].id})`);
+    expect(after.entries[1].id).toBe(earlier);
+    expect(html).toContain(`Next entry (#${earlier})`);
   });
 });
 
