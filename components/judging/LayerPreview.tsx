@@ -11,7 +11,7 @@ import dynamic from 'next/dynamic';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { FLOW_COLOURS, bucketLabel, flowColour, layerLabel, legendBands } from './flowScale';
 import {
-  PREVIEW_MODES, PREVIEW_MODE_LIST, NO_VALUE_COLOUR, bandColour, bandLabel, bandOf, layerTimes, niceBands, recordSpeedMms, recordWidthMm, robustRange,
+  PREVIEW_MODES, PREVIEW_MODE_LIST, NO_VALUE_COLOUR, bandColour, bandLabel, bandOf, layerTimes, niceBands, recordSpeedMms, recordWidthMm, robustRange, spreadColour,
   type PreviewMode,
 } from './previewModes';
 import type { Preview, PreviewLayer } from './previewTypes';
@@ -71,7 +71,7 @@ function buildScale(mode: PreviewMode, data: Preview, times: (number | null)[]):
     for (const t of known) count[bandOf(edges, t)]++;
     return {
       edges,
-      colour: bandColour,
+      colour: (b) => spreadColour(b, edges.length),
       bandOf: (li) => (times[li] === null ? -1 : bandOf(edges, times[li]!)),
       legend: edges.map((_, i) => ({ band: i, label: bandLabel(edges, i, open), amount: `${count[i]} layer${count[i] === 1 ? '' : 's'}` })),
       title,
@@ -101,7 +101,7 @@ function buildScale(mode: PreviewMode, data: Preview, times: (number | null)[]):
   for (const { v, w } of weighted) lenMm[bandOf(edges, v)] += w * data.unitMm;
   return {
     edges,
-    colour: bandColour,
+    colour: (b) => spreadColour(b, edges.length),
     bandOf: (li, k) => {
       const v = values[li]?.[k];
       return v === null || v === undefined ? -1 : bandOf(edges, v);

@@ -107,6 +107,8 @@ export function robustRange(values: readonly { v: number; w: number }[], lowQ = 
 }
 
 export const bandColour = (i: number) => BAND_COLOURS[Math.max(0, Math.min(BAND_COLOURS.length - 1, i))];
+/** Colour of band i of n, spread over the whole scale so a legend of few bands still runs cool to warm. */
+export const spreadColour = (i: number, n: number) => bandColour(n <= 1 ? 0 : Math.round((i * (BAND_COLOURS.length - 1)) / (n - 1)));
 
 /** Speed of record k of a layer's props, mm/s. */
 export const recordSpeedMms = (props: readonly number[], k: number) => props[2 * k] / PROPS_SPEED_PER_MMS;

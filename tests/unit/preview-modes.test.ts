@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { bandLabel, bandOf, layerTimes, niceBands, niceStep, robustRange, BAND_COLOURS } from '@/components/judging/previewModes';
+import { bandLabel, bandOf, layerTimes, niceBands, niceStep, robustRange, spreadColour, BAND_COLOURS } from '@/components/judging/previewModes';
 
 describe('preview legend bands (rounded steps; common practice for chart axes, no source)', () => {
   it('picks 1, 2, 2.5 or 5 × 10^k steps', () => {
@@ -47,5 +47,11 @@ describe('preview legend bands (rounded steps; common practice for chart axes, n
     expect(bandLabel(e, e.length - 1, { high: true })).toMatch(/^≥ /);
     expect(bandLabel(e, 0, { low: true })).toMatch(e.length > 1 ? /^< / : /^\d/);
     expect(robustRange([])).toBeNull();
+  });
+
+  it('a legend of few bands still runs from the coolest to the warmest colour', () => {
+    expect(spreadColour(0, 5)).toBe(BAND_COLOURS[0]);
+    expect(spreadColour(4, 5)).toBe(BAND_COLOURS[BAND_COLOURS.length - 1]);
+    expect(spreadColour(0, 1)).toBe(BAND_COLOURS[0]);
   });
 });

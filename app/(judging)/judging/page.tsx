@@ -109,7 +109,7 @@ export default async function JudgingPage({ searchParams }: { searchParams: Prom
                   {view === 'waiting' ? (
                     <td className="num">{e.verifications.count}/{e.verifications.required}{e.verifications.byMe ? ' (you)' : ''}</td>
                   ) : (
-                    <td data-testid="queue-decision">
+                    <td className="first-letter:uppercase" data-testid="queue-decision">
                       {e.decision ? <>{DECISION_LABELS[e.decision.decision as ReviewDecision]?.past ?? e.decision.decision} by {e.decision.byMe ? 'you' : e.decision.judge}<span className="block text-xs text-ink-500">{formatDateTime(e.decision.at)} · now {e.state}</span></> : '—'}
                     </td>
                   )}
