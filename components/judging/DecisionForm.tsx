@@ -8,7 +8,8 @@ import { CHECKLIST_ITEMS, CHECKLIST_ITEM_LIST, CHECK_ANSWERS, CHECK_ANSWER_LABEL
 
 interface Deviation { axis: string; measuredMm: number; referenceMm: number; deltaMm: number; percent: number; withinTolerance: boolean }
 
-export function DecisionForm(props: { entryId: number; entryState: string; dimensions: Deviation[] | null; verifications: { count: number; required: number; byMe: boolean } }) {
+/** `afterDecision`: where the judge goes once the decision is recorded (the next entry of their queue). */
+export function DecisionForm(props: { afterDecision?: string; entryId: number; entryState: string; dimensions: Deviation[] | null; verifications: { count: number; required: number; byMe: boolean } }) {
   const router = useRouter();
   const [decision, setDecision] = useState<ReviewDecision | null>(null);
   const [reasons, setReasons] = useState<ReasonCode[]>([]);
@@ -41,12 +42,14 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
         setErrors({ _: body.error, ...(body.fields ?? {}) });
         return;
       }
-      setMessage(
+      const recorded =
         body.entryState === 'submitted'
           ? `Verification recorded (${body.verifications.count} of ${body.verifications.required}); another judge must verify before the entry counts.`
-          : `Decision recorded: the entry is now ${body.entryState}. The entrant has been e-mailed.`,
-      );
-      router.refresh();
+          : `Decision recorded: the entry is now ${body.entryState}. The entrant has been e-mailed.`;
+      setMessage(props.afterDecision ? `${recorded} Opening the next entry…` : recorded);
+      // On to the next entry, which shows what was recorded here (read back from the database).
+      if (props.afterDecision) router.push(props.afterDecision);
+      else router.refresh();
     } finally {
       setBusy(false);
     }
@@ -57,11 +60,10 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
     <form onSubmit={submit} className="space-y-5" aria-label="Decision" noValidate>
       <fieldset>
         <legend className="label">Quality checklist</legend>
-        <table className="table">
-          <tbody>
+        <ul className="divide-y divide-ink-100">
             {CHECKLIST_ITEM_LIST.map((item) => (
-              <tr key={item}>
-                <th scope="row" className="w-56">
+              <li key={item} className="py-2">
+                <p className="text-sm font-semibold text-ink-800">
                   {CHECKLIST_ITEMS[item].label}
                   <span className="block text-xs font-normal text-ink-500">{CHECKLIST_ITEMS[item].hint}</span>
                   {item === 'dimensional_accuracy' && props.dimensions && (
@@ -69,8 +71,8 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
                       {props.dimensions.map((d) => `${d.axis.toUpperCase()} ${d.deltaMm >= 0 ? '+' : ''}${d.deltaMm.toFixed(2)} mm (${d.percent >= 0 ? '+' : ''}${d.percent.toFixed(2)} %)`).join(' · ')}
                     </span>
                   )}
-                </th>
-                <td>
+                </p>
+                <div className="mt-1">
                   <div className="flex flex-wrap gap-3" role="radiogroup" aria-label={CHECKLIST_ITEMS[item].label}>
                     {CHECK_ANSWERS.map((a) => (
                       <label key={a} className="flex items-center gap-1 text-sm">
@@ -79,11 +81,10 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
                       </label>
                     ))}
                   </div>
-                </td>
-              </tr>
+                </div>
+              </li>
             ))}
-          </tbody>
-        </table>
+        </ul>
       </fieldset>
 
       <fieldset aria-describedby={errors.decision ? 'err-decision' : undefined}>
@@ -128,7 +129,7 @@ export function DecisionForm(props: { entryId: number; entryState: string; dimen
         {err('note')}
       </div>
       {err('_')}
-      {message && <p role="status" className="rounded-lg bg-coolant-50 p-3 text-coolant-700" data-testid="decision-result">{message}</p>}
+      {message && <p role="status" className="rounded-lg bg-coolant-50 p-3 text-coolant-700" data-testid={props.afterDecision ? 'decision-recorded' : 'decision-result'}>{message}</p>}
       <button type="submit" className="btn-primary" disabled={busy}>{busy ? 'Recording…' : 'Record decision'}</button>
     </form>
   );

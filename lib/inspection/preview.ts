@@ -12,6 +12,11 @@
  * where x/y are grid units from `originMm` (unit = `unitMm`), the first point absolute and the rest
  * differences from the previous point. `bucket` indexes `flowBucketsMm3s` (lower edges, mm³/s).
  *
+ * Since format 3 a layer also carries `props`: per record, in the same order, the length-weighted
+ * mean commanded speed (0.1 mm/s units) and bead cross-section (µm², filament volume ÷ path length),
+ * and `heightMm`, the Z step from the layer below. The viewer colours by speed and by line width
+ * (`lineWidthMm`) from these; format-2 previews stay readable and offer commanded flow only.
+ *
  * Built by the inspection pass itself: the PreviewCollector is one more sink of the engine's move
  * stream (InspectOptions.preview), so the preview is stored with the report and no web request
  * parses G-code. Environment-neutral (no node:* imports).
@@ -29,7 +34,24 @@ import { filamentAreaMm2 } from './materials';
 export const PREVIEW_FLOW_BUCKETS_MM3S = [0, 2, 4, 6, 8, 10, 12, 15, 18, 22, 26, 30, 35, 40, 50, 60] as const;
 
 /** Format version of the preview JSON; bump when the encoding changes (cached previews are keyed by it). */
-export const PREVIEW_VERSION = 2;
+export const PREVIEW_VERSION = 3;
+/** Older formats still read back (without the per-record speed and cross-section). */
+export const PREVIEW_READABLE_VERSIONS: readonly number[] = [2, 3];
+/** Polylines break where the commanded speed changes by this step, mm/s, so each keeps one speed. */
+const SPEED_STEP_MMS = 5;
+/** Units of `PreviewLayer.props`: speed in 0.1 mm/s, cross-section in µm² (1 mm² = 1e6 µm²). */
+export const PROPS_SPEED_PER_MMS = 10;
+export const PROPS_AREA_PER_MM2 = 1e6;
+
+/**
+ * Line width from the bead's cross-section and the layer height, with the rounded-rectangle bead
+ * model slicers use for extrusion (a rectangle with semicircular sides: area = (w − h)·h + π·h²/4,
+ * so w = area/h + h·(1 − π/4); common practice, no source). Null where the height is unknown.
+ */
+export function lineWidthMm(areaMm2: number, heightMm: number): number | null {
+  if (!(heightMm > 0) || !(areaMm2 > 0)) return null;
+  return areaMm2 / heightMm + heightMm * (1 - Math.PI / 4);
+}
 
 export interface PreviewOptions {
   filamentDiameterMm?: number;
@@ -50,6 +72,10 @@ export interface PreviewLayer {
   extrudedMm: number;
   /** Highest commanded flow on this layer, mm³/s. */
   peakFlowMm3s: number;
+  /** Format 3: per record, [speed ×10 (mm/s), cross-section (µm²)] — see the module comment. */
+  props?: number[];
+  /** Format 3: Z step from the layer below (the first layer: its Z), mm. */
+  heightMm?: number;
 }
 
 export interface ToolpathPreview {
@@ -91,11 +117,21 @@ export function flowBucket(flowMm3s: number): number {
   return i;
 }
 
+interface RawPoly {
+  bucket: number;
+  speedKey: number;
+  xy: number[];
+  /** Sums for the length-weighted means: length, speed × length, cross-section × length. */
+  len: number;
+  speedLen: number;
+  areaLen: number;
+}
+
 /** Raw polylines of one layer in mm, before quantization: bucket + flat xy list. */
 interface RawLayer {
   zMm: number;
   box: [number, number, number, number];
-  polys: { bucket: number; xy: number[] }[];
+  polys: RawPoly[];
   extrudedMm: number;
   peakFlowMm3s: number;
 }
@@ -107,7 +143,7 @@ export class PreviewCollector implements SegmentSink {
   private readonly layers: RawLayer[] = [];
   private readonly layerByKey = new Map<number, RawLayer>();
   private cur: RawLayer | null = null;
-  private poly: { bucket: number; xy: number[] } | null = null;
+  private poly: RawPoly | null = null;
   private lastX = NaN;
   private lastY = NaN;
   private points = 0;
@@ -179,17 +215,24 @@ export class PreviewCollector implements SegmentSink {
       return;
     }
     const p = this.poly;
-    const joined = p !== null && p.bucket === bucket && Math.abs(s.x0 - this.lastX) < JOIN_EPS_MM && Math.abs(s.y0 - this.lastY) < JOIN_EPS_MM;
+    const speedKey = Math.round(s.feedMms / SPEED_STEP_MMS);
+    const areaMm2 = (s.eMm * this.areaMm2) / s.lengthMm;
+    const joined = p !== null && p.bucket === bucket && p.speedKey === speedKey && Math.abs(s.x0 - this.lastX) < JOIN_EPS_MM && Math.abs(s.y0 - this.lastY) < JOIN_EPS_MM;
+    let target: RawPoly;
     if (joined) {
       p.xy.push(s.x1, s.y1);
       this.points++;
+      target = p;
     } else {
       // A bucket change keeps the polyline continuous: the new one starts where the old one ended.
-      const np = { bucket, xy: [s.x0, s.y0, s.x1, s.y1] };
-      layer.polys.push(np);
-      this.poly = np;
+      target = { bucket, speedKey, xy: [s.x0, s.y0, s.x1, s.y1], len: 0, speedLen: 0, areaLen: 0 };
+      layer.polys.push(target);
+      this.poly = target;
       this.points += 2;
     }
+    target.len += s.lengthMm;
+    target.speedLen += s.feedMms * s.lengthMm;
+    target.areaLen += areaMm2 * s.lengthMm;
     this.lastX = s.x1;
     this.lastY = s.y1;
   }
@@ -214,8 +257,9 @@ export class PreviewCollector implements SegmentSink {
     let pointsOut = 0;
     let polylines = 0;
     const layers = [...this.layers].sort((a, b) => a.zMm - b.zMm);
-    const out: PreviewLayer[] = layers.map((l) => {
+    const out: PreviewLayer[] = layers.map((l, li) => {
       const paths: number[] = [];
+      const props: number[] = [];
       for (const p of l.polys) {
         pointsIn += p.xy.length / 2;
         const simple = simplify(p.xy, toleranceMm);
@@ -239,11 +283,13 @@ export class PreviewCollector implements SegmentSink {
         }
         const m = qs.length / 2;
         paths.push(p.bucket, m, qs[0], qs[1]);
+        props.push(Math.round((p.speedLen / p.len) * PROPS_SPEED_PER_MMS), Math.round((p.areaLen / p.len) * PROPS_AREA_PER_MM2));
         for (let i = 2; i < qs.length; i += 2) paths.push(qs[i] - qs[i - 2], qs[i + 1] - qs[i - 1]);
         pointsOut += m;
         polylines++;
       }
-      return { zMm: l.zMm, paths, extrudedMm: round3(l.extrudedMm), peakFlowMm3s: round3(l.peakFlowMm3s) };
+      const heightMm = round3(li > 0 ? l.zMm - layers[li - 1].zMm : l.zMm);
+      return { zMm: l.zMm, paths, extrudedMm: round3(l.extrudedMm), peakFlowMm3s: round3(l.peakFlowMm3s), props, heightMm };
     });
     const focusLayers = layers.length > 3 ? layers.slice(2) : layers;
     const fb = [Infinity, Infinity, -Infinity, -Infinity];
@@ -359,13 +405,13 @@ export const ToolpathPreviewSchema = z.object({
   focusUnits: z.object({ x0: z.number(), y0: z.number(), x1: z.number(), y1: z.number() }),
   flowBucketsMm3s: nums,
   bucketLengthMm: nums,
-  layers: z.array(z.object({ zMm: z.number(), paths: nums, extrudedMm: z.number(), peakFlowMm3s: z.number() })),
+  layers: z.array(z.object({ zMm: z.number(), paths: nums, extrudedMm: z.number(), peakFlowMm3s: z.number(), props: nums.optional(), heightMm: z.number().optional() })),
   stats: z.object({ segments: z.number(), pointsIn: z.number(), pointsOut: z.number(), polylines: z.number() }),
   warnings: z.array(z.string()),
 });
 
-/** A stored preview of the current format, or null (an older format, or not a preview). */
+/** A stored preview of a format the viewer reads (PREVIEW_READABLE_VERSIONS), or null (too old, or not a preview). */
 export function parseStoredPreview(json: unknown): ToolpathPreview | null {
   const r = ToolpathPreviewSchema.safeParse(json);
-  return r.success && r.data.version === PREVIEW_VERSION ? r.data : null;
+  return r.success && PREVIEW_READABLE_VERSIONS.includes(r.data.version) ? r.data : null;
 }

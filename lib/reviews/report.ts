@@ -73,6 +73,8 @@ export function headline(report: InspectionReport | null) {
     meanFlowMm3s: report?.flow.mean_mm3s ?? null,
     layers: report?.layers.count ?? null,
     layerZMm: report?.layers.z_mm ?? [],
+    /** Planner time per layer of layerZMm, s (same order, same length). */
+    layerTimeS: report?.layers.time_s ?? [],
     layerHeightMm: report?.layers.height_mm ?? null,
     volumeMm3: report?.filament.volume_mm3 ?? null,
     massG: report?.filament.mass_g ?? null,

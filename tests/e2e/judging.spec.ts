@@ -79,7 +79,7 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await page.getByLabel(REASON_CODES.cooling_flaws.label).check();
   await page.getByLabel('Note to the entrant').fill('The video stops before the last layer and the bridge window droops.');
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(page.getByTestId('decision-result')).toContainText('now rejected');
+  await expect(page.getByTestId('decision-result')).toContainText('now rejected', { timeout: 30_000 });
   await page.screenshot({ path: test.info().outputPath('judging-review.png'), fullPage: true });
 
   const mail = await readLatestMail(browser, demoEmail('sasha'), `#${rejected} was rejected`);
@@ -95,7 +95,7 @@ test('a judge reviews an entry, steps through the preview layers, rejects it wit
   await page.getByLabel(REASON_CODES.evidence_consistent.label).check();
   await page.getByLabel('Note to the entrant').fill('Timing matches the video; clean overhang.');
   await page.getByRole('button', { name: 'Record decision' }).click();
-  await expect(page.getByTestId('decision-result')).toContainText('now verified');
+  await expect(page.getByTestId('decision-result')).toContainText('now verified', { timeout: 30_000 });
 
   // It counts: the class standings show it.
   await page.goto('/seasons/frostbite-sprint/classes/open-04');

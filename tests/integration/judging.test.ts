@@ -65,6 +65,69 @@ describe('queue', () => {
     expect(bad.status).toBe(400);
     expect((await bad.json()).fields.flag).toMatch(/Choose one of/);
   });
+
+  it('searches by entrant or machine in the database, sorts, pages, and refuses bad parameters with a sentence', async () => {
+    const { entryId } = await createReviewableEntry(dbFile, { entrant: 'pim', machine: 'Harrier 300', claimedTimeMs: 1_000_001 });
+    const byMachine = await (await clients.judge.get('/api/judging/queue?q=harrier')).json();
+    expect(byMachine.entries.map((e: { id: number }) => e.id)).toContain(entryId);
+    expect(byMachine.entries.every((e: { machine: string; entrant: string }) => /harrier/i.test(e.machine) || /harrier/i.test(e.entrant))).toBe(true);
+    const entrantName = byMachine.entries.find((e: { id: number }) => e.id === entryId).entrant as string;
+    const byEntrant = await (await clients.judge.get(`/api/judging/queue?q=${encodeURIComponent(entrantName.slice(0, 3).toUpperCase())}`)).json();
+    expect(byEntrant.entries.map((e: { id: number }) => e.id)).toContain(entryId);
+    // LIKE wildcards typed by the judge match one character each, never "everything".
+    const pct = await (await clients.judge.get('/api/judging/queue?q=%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25%25')).json();
+    expect(pct.entries).toHaveLength(0);
+    const none = await (await clients.judge.get('/api/judging/queue?q=no-such-name-anywhere')).json();
+    expect(none.entries).toHaveLength(0);
+    expect(none.matched).toBe(0);
+
+    const claimed = await (await clients.judge.get('/api/judging/queue?sort=claimed')).json();
+    const ms = claimed.entries.map((e: { claimedTimeMs: number }) => e.claimedTimeMs);
+    expect([...ms].sort((a, b) => a - b)).toEqual(ms);
+    const newest = await (await clients.judge.get('/api/judging/queue?sort=newest')).json();
+    const times = newest.entries.map((e: { submittedAt: string }) => Date.parse(e.submittedAt));
+    expect([...times].sort((a, b) => b - a)).toEqual(times);
+    expect(newest.page).toBe(1);
+    expect(newest.pageSize).toBe(50);
+    // A page past the end shows the last page, not an empty one.
+    const far = await (await clients.judge.get('/api/judging/queue?page=999')).json();
+    expect(far.page).toBe(far.pageCount);
+
+    for (const [query, field, sentence] of [
+      [`q=${'x'.repeat(81)}`, 'q', /at most 80 characters/],
+      ['sort=fastest', 'sort', /Choose one of/],
+      ['view=all', 'view', /Choose one of/],
+      ['page=0', 'page', /page number/],
+      ['page=1e1', 'page', /page number/],
+    ] as const) {
+      const res = await clients.judge.get(`/api/judging/queue?${query}`);
+      expect(res.status, query).toBe(400);
+      expect((await res.json()).fields[field], query).toMatch(sentence);
+    }
+  });
+
+  it('the decided view lists entries any judge decided, with the latest decision; previous/next follow the same list', async () => {
+    const { entryId: earlier } = await createReviewableEntry(dbFile, { ...NOT_JUDGE2S_CLASS, claimedTimeMs: 1_660_000 });
+    expect((await clients.judge2.post(`/api/judging/entries/${earlier}/decisions`, reject)).status).toBe(201);
+    const { entryId } = await createReviewableEntry(dbFile, { ...NOT_JUDGE2S_CLASS, claimedTimeMs: 1_650_000 });
+    const before = await (await clients.judge.get('/api/judging/queue?view=decided')).json();
+    expect(before.entries.map((e: { id: number }) => e.id)).not.toContain(entryId);
+    expect((await clients.judge2.post(`/api/judging/entries/${entryId}/decisions`, reject)).status).toBe(201);
+    const after = await (await clients.judge.get('/api/judging/queue?view=decided&sort=decided')).json();
+    const row = after.entries.find((e: { id: number }) => e.id === entryId);
+    expect(row.decision).toMatchObject({ decision: 'reject', byMe: false });
+    expect(row.state).toBe('rejected');
+    // Latest decision first.
+    expect(after.entries[0].id).toBe(entryId);
+    // Gone from the waiting view.
+    const waiting = await (await clients.judge.get('/api/judging/queue')).json();
+    expect(waiting.entries.map((e: { id: number }) => e.id)).not.toContain(entryId);
+    // The review screen opened from the decided view places it in that list (first, by latest decision).
+    const html = await (await clients.judge.get(`/judging/entries/${entryId}?view=decided&sort=decided`)).text();
+    expect(html).toContain(`Entry 1 of ${after.matched} in the decided list`);
+    expect(after.entries[1].id).toBe(earlier);
+    expect(html).toContain(`Next entry (#${earlier})`);
+  });
 });
 
 describe('season separation', () => {
@@ -91,7 +154,10 @@ describe('who may decide', () => {
     expect(res.status).toBe(403);
     expect((await res.json()).error).toMatch(/own entry/);
     expect((await clients.judge2.get(`/api/judging/entries/${judge2Own}`)).status).toBe(403);
-    expect((await clients.judge2.get(`/judging/entries/${judge2Own}`)).status).toBe(403);
+    const page = await clients.judge2.get(`/judging/entries/${judge2Own}`);
+    expect(page.status).toBe(403);
+    // The page's 403 screen carries the real reason (the browser shows it: tests/e2e/judge-desk.spec.ts).
+    expect(await page.text()).toContain('You cannot judge your own entry');
     const [row] = await sql<{ state: string }>(dbFile, 'SELECT state FROM entries WHERE id = ?', [judge2Own]);
     expect(row.state).toBe('submitted');
   });

@@ -8,7 +8,11 @@ import {
   decodeLayer,
   flowBucket,
   simplify,
+  lineWidthMm,
+  parseStoredPreview,
   PREVIEW_FLOW_BUCKETS_MM3S,
+  PROPS_AREA_PER_MM2,
+  PROPS_SPEED_PER_MMS,
 } from '@/lib/inspection/preview';
 import { InspectionError } from '@/lib/inspection';
 import { parseStl } from '@/lib/stl';
@@ -93,6 +97,42 @@ describe('preview of hand-written G-code', () => {
     expect(decodeLayer(p, p.layers[0].paths)[0].bucket).toBe(PREVIEW_FLOW_BUCKETS_MM3S.indexOf(4));
     expect(decodeLayer(p, p.layers[1].paths)[0].bucket).toBe(PREVIEW_FLOW_BUCKETS_MM3S.indexOf(15));
     expect(p.bucketLengthMm[PREVIEW_FLOW_BUCKETS_MM3S.indexOf(4)]).toBeCloseTo(40, 6);
+  });
+
+  it('keeps each record’s commanded speed and bead cross-section, and each layer’s height, for the speed and line-width colours', async () => {
+    const p = await fromText(gcode);
+    expect(p.version).toBe(3);
+    // One record per layer → one [speed, area] pair each, in the records' order.
+    expect(p.layers[0].props).toHaveLength(2);
+    expect(p.layers[0].props![0] / PROPS_SPEED_PER_MMS).toBe(50); // F3000 = 50 mm/s
+    expect(p.layers[1].props![0] / PROPS_SPEED_PER_MMS).toBe(200); // F12000 = 200 mm/s
+    // Cross-section back to the width the G-code was written for (rounded-rectangle bead, as ePerMm above).
+    const area = p.layers[0].props![1] / PROPS_AREA_PER_MM2;
+    expect(area).toBeCloseTo((w - h) * h + (Math.PI * h * h) / 4, 4);
+    expect(p.layers[0].heightMm).toBe(0.2);
+    expect(p.layers[1].heightMm).toBe(0.2);
+    expect(lineWidthMm(area, p.layers[1].heightMm!)).toBeCloseTo(w, 3);
+    expect(lineWidthMm(area, 0)).toBeNull();
+  });
+
+  it('breaks a polyline where the commanded speed changes, even at the same flow bucket', async () => {
+    const e = ePerMm(w, h);
+    const g = ['G21', 'G90', 'M83', 'G1 Z0.2 F600', 'G1 X0 Y0 F9000', `G1 X10 Y0 E${(e * 10).toFixed(5)} F3000`, `G1 X20 Y0 E${(e * 10 * 0.9).toFixed(5)} F3300`, ''].join('\n');
+    const p = await fromText(g);
+    // 50 mm/s and 55 mm/s with a thinner bead: about the same flow, two records with their own speed.
+    const speeds = [];
+    for (let i = 0; i < p.layers[0].props!.length; i += 2) speeds.push(p.layers[0].props![i] / PROPS_SPEED_PER_MMS);
+    expect(speeds).toEqual([50, 55]);
+  });
+
+  it('still reads a stored format-2 preview (no speed or cross-section); refuses unknown formats', async () => {
+    const p = await fromText(gcode);
+    const old = { ...p, version: 2, layers: p.layers.map(({ props: _props, heightMm: _h, ...l }) => l) };
+    const back = parseStoredPreview(JSON.parse(JSON.stringify(old)));
+    expect(back?.version).toBe(2);
+    expect(back?.layers[0].props).toBeUndefined();
+    expect(parseStoredPreview({ ...p, version: 1 })).toBeNull();
+    expect(parseStoredPreview(JSON.parse(JSON.stringify(p)))?.layers[1].props).toEqual(p.layers[1].props);
   });
 
   it('encodes coordinates as integers that fit an Int16', async () => {

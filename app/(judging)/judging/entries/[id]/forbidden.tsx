@@ -1,0 +1,5 @@
+import { ReviewForbidden } from '@/components/judging/ReviewForbidden';
+
+export default function Forbidden() {
+  return <ReviewForbidden />;
+}
