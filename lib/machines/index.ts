@@ -140,7 +140,7 @@ export async function publicFlowLimits(machineId: number): Promise<{ maxSpeedMms
     sequelize.query<{ material_family: string; n: number; peak: number | null; p95: number | null }>(
       `SELECT e.material_family, COUNT(*) AS n, MAX(i.peak_flow_mm3s) AS peak, MAX(i.p95_flow_mm3s) AS p95
        FROM entries e JOIN seasons s ON s.id = e.season_id
-       JOIN inspections i ON i.id = (SELECT i2.id FROM inspections i2 WHERE i2.entry_id = e.id AND i2.status = 'done' ORDER BY i2.created_at DESC, i2.id DESC LIMIT 1)
+       LEFT JOIN inspections i ON i.id = (SELECT i2.id FROM inspections i2 WHERE i2.entry_id = e.id AND i2.status = 'done' ORDER BY i2.created_at DESC, i2.id DESC LIMIT 1)
        WHERE e.machine_id = ? AND e.state = 'verified' AND s.state <> 'draft'
        GROUP BY e.material_family`,
       { replacements: [machineId], type: QueryTypes.SELECT },
