@@ -108,11 +108,11 @@ export function FileDrop(props: FileDropProps) {
           } ${disabled ? 'cursor-not-allowed opacity-60' : ''}`,
         })}
         data-drag-active={isDragActive || undefined}
+        data-testid={testId ? `${testId}-area` : undefined}
       >
         <input {...getInputProps({ id, accept, 'aria-invalid': shown ? true : undefined, 'aria-describedby': describedBy })} />
-        <p id={`${id}-prompt`} className="text-sm font-semibold text-ink-700">
-          {isDragActive ? `Release to add ${what}` : `Drop ${what} here, or click or press Enter to choose`}
-        </p>
+        <p id={`${id}-prompt`} className="text-sm font-semibold text-ink-700">{`Drop ${what} here, or click or press Enter to choose`}</p>
+        {isDragActive && <p className="text-xs text-ember-800" aria-hidden="true">Release to add {what}</p>}
       </div>
       {files.length > 0 && (
         <ul className="mt-2 space-y-2" aria-label={`Chosen: ${label}`} data-testid={testId ? `${testId}-list` : undefined}>

@@ -61,8 +61,10 @@ test('an entrant drops files onto the form, sees names, sizes, thumbnails and th
   await page.getByLabel('Z (mm)').fill('40');
   await page.getByRole('button', { name: 'Next' }).click();
 
-  const gcodeArea = page.getByTestId('e-gcode-drop').getByRole('button', { name: /^Drop the G-code here/ });
-  await expect(gcodeArea).toBeVisible();
+  const gcodeArea = page.getByTestId('e-gcode-drop-area');
+  // The area is a button named by its prompt (keyboard and screen-reader users reach it too).
+  await expect(gcodeArea).toHaveAccessibleName('Drop the G-code here, or click or press Enter to choose');
+  await expect(gcodeArea).toHaveAttribute('tabindex', '0');
   // A wrong file is refused at once, with a sentence that says what it is.
   await dropFiles(page, gcodeArea, [{ name: 'beacon.stl', type: 'model/stl', bytes: Buffer.from('solid beacon\nendsolid beacon\n') }]);
   await expect(page.locator('#e-gcode-error')).toHaveText('beacon.stl is a 3-D model, not G-code. Slice it first and add the .gcode your slicer exports.');
@@ -79,7 +81,7 @@ test('an entrant drops files onto the form, sees names, sizes, thumbnails and th
   // Photos: chosen with the keyboard (focus the area, Enter opens the file chooser).
   const front = await sharp({ create: { width: 640, height: 480, channels: 3, background: '#d74707' } }).jpeg().toBuffer();
   const windowShot = await sharp({ create: { width: 640, height: 480, channels: 3, background: '#159c86' } }).png().toBuffer();
-  const photoArea = page.getByTestId('e-photos-drop').getByRole('button', { name: /^Drop photos here/ });
+  const photoArea = page.getByTestId('e-photos-drop-area');
   await photoArea.focus();
   const chooser = page.waitForEvent('filechooser');
   await page.keyboard.press('Enter');
@@ -120,7 +122,7 @@ test('an entrant drops files onto the form, sees names, sizes, thumbnails and th
   await page.screenshot({ path: path.join(SHOTS, 'draft-1400x900.png'), fullPage: true });
 
   // The draft's replacement area takes a drop too, and says at once what is wrong.
-  const newGcode = page.getByTestId('r-gcode-drop').getByRole('button', { name: /^Drop the G-code here/ });
+  const newGcode = page.getByTestId('r-gcode-drop-area');
   await dropFiles(page, newGcode, [{ name: 'front.jpg', type: 'image/jpeg', bytes: front }]);
   await expect(page.locator('#r-gcode-error')).toHaveText('front.jpg is a photo, not G-code. Add it under Photos, and the .gcode or .gcode.gz here.');
 });

@@ -27,7 +27,7 @@ export default async function MachinePage({ params }: { params: Promise<{ id: st
       <header>
         <h1>{m.name}</h1>
         <p className="text-ink-700">
-          {MOTION_SYSTEM_LABELS[m.motion as MotionSystem] ?? m.motion} · build volume <span className="num">{m.build_volume_mm.x} × {m.build_volume_mm.y} × {m.build_volume_mm.z} mm</span> · nozzle <span className="num">{m.nozzle_mm} mm</span> · run by <Link href={`/entrants/${m.owner.id}`}>{m.owner.name}</Link>
+          {MOTION_SYSTEM_LABELS[m.motion as MotionSystem] ?? m.motion} · build volume <span className="num">{m.build_volume_mm.x} × {m.build_volume_mm.y} × {m.build_volume_mm.z} mm</span> · nozzle <span className="num">{m.nozzle_mm} mm</span> · owned by <Link href={`/entrants/${m.owner.id}`}>{m.owner.name}</Link>
         </p>
         <dl className="mt-2 grid gap-x-6 gap-y-1 text-sm text-ink-700 sm:grid-cols-[auto_1fr]">
           {m.hotend && (<><dt className="font-semibold">Hotend</dt><dd>{m.hotend}</dd></>)}
