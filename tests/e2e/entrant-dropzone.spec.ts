@@ -34,7 +34,11 @@ async function newEntrant(page: Page, baseURL: string, name: string) {
   const email = `${name.toLowerCase().replace(/\W+/g, '.')}.${Date.now()}@example.org`;
   const password = 'drop-zone-password';
   expect((await page.request.post(`${baseURL}/api/account/signup`, { data: { name, email, password } })).status()).toBe(202);
-  await sql(process.env.HOTLAP_E2E_DB!, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
+  // The account row may be written just after the answer: confirm it once it is there.
+  await expect.poll(async () => {
+    await sql(process.env.HOTLAP_E2E_DB!, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
+    return (await sql<{ n: number }>(process.env.HOTLAP_E2E_DB!, 'SELECT COUNT(*) AS n FROM users WHERE email = ? AND email_verified_at IS NOT NULL', [email]))[0].n;
+  }).toBe(1);
   await signIn(page, email, password);
 }
 
