@@ -249,11 +249,7 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
       {step === 2 && (
         <fieldset className="space-y-4">
           <legend className="sr-only">Files</legend>
-          <div className="space-y-3">
-            <GcodeDrop id="e-gcode" files={gcode} onFiles={(f) => { setGcode(f); setFileErrors((x) => ({ ...x, gcode: undefined })); }} error={fileErrors.gcode} disabled={progress !== null} />
-            {/* The same check in this browser: the verdict shows before the upload finishes. */}
-            <GcodeCheck seasonSlug={s.slug} classId={classId} file={gcode[0] ?? null} />
-          </div>
+          <GcodeDrop id="e-gcode" files={gcode} onFiles={(f) => { setGcode(f); setFileErrors((x) => ({ ...x, gcode: undefined })); }} error={fileErrors.gcode} disabled={progress !== null} />
           <PhotosDrop
             id="e-photos"
             label={`Photos (${s.photosRequired} required: JPEG, PNG, WebP or HEIC)`}
@@ -265,6 +261,13 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
           />
           <ProjectDrop id="e-project" files={project} onFiles={(f) => { setProject(f); setFileErrors((x) => ({ ...x, project: undefined })); }} error={fileErrors.project} disabled={progress !== null} />
           <UploadBar fraction={progress} label="Uploading" />
+          {gcode[0] && (
+            <section className="space-y-2 border-t border-ink-100 pt-4" aria-labelledby="e-check-h">
+              <h2 id="e-check-h" className="text-base font-semibold">Rulebook check of {gcode[0].name} in this browser</h2>
+              {/* The same check in this browser: the verdict shows before the upload finishes. */}
+              <GcodeCheck seasonSlug={s.slug} classId={classId} file={gcode[0]} />
+            </section>
+          )}
         </fieldset>
       )}
 

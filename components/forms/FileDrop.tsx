@@ -110,10 +110,12 @@ export function FileDrop(props: FileDropProps) {
         data-drag-active={isDragActive || undefined}
         data-testid={testId ? `${testId}-area` : undefined}
       >
-        <input {...getInputProps({ id, accept, 'aria-invalid': shown ? true : undefined, 'aria-describedby': describedBy })} />
+        {/* No aria-label (react-dropzone sets "file upload"): the <label> above names the input. */}
+        <input {...getInputProps({ id, accept, 'aria-label': undefined, 'aria-invalid': shown ? true : undefined, 'aria-describedby': describedBy })} />
         <p id={`${id}-prompt`} className="text-sm font-semibold text-ink-700">{`Drop ${what} here, or click or press Enter to choose`}</p>
         {isDragActive && <p className="text-xs text-ember-800" aria-hidden="true">Release to add {what}</p>}
       </div>
+      {shown && <p id={`${id}-error`} className="field-error" role="alert">{shown}</p>}
       {files.length > 0 && (
         <ul className="mt-2 space-y-2" aria-label={`Chosen: ${label}`} data-testid={testId ? `${testId}-list` : undefined}>
           {files.map((f, i) => (
@@ -130,7 +132,6 @@ export function FileDrop(props: FileDropProps) {
           ))}
         </ul>
       )}
-      {shown && <p id={`${id}-error`} className="field-error" role="alert">{shown}</p>}
     </div>
   );
 }

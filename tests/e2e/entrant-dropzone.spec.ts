@@ -69,6 +69,8 @@ test('an entrant drops files onto the form, sees names, sizes, thumbnails and th
   // The area is a button named by its prompt (keyboard and screen-reader users reach it too).
   await expect(gcodeArea).toHaveAccessibleName('Drop the G-code here, or click or press Enter to choose');
   await expect(gcodeArea).toHaveAttribute('tabindex', '0');
+  // The file input inside keeps the field's label (tests and assistive tools find it by name).
+  await expect(page.getByLabel(/^G-code/)).toHaveAttribute('type', 'file');
   // A wrong file is refused at once, with a sentence that says what it is.
   await dropFiles(page, gcodeArea, [{ name: 'beacon.stl', type: 'model/stl', bytes: Buffer.from('solid beacon\nendsolid beacon\n') }]);
   await expect(page.locator('#e-gcode-error')).toHaveText('beacon.stl is a 3-D model, not G-code. Slice it first and add the .gcode your slicer exports.');
