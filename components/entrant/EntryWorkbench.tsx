@@ -13,8 +13,10 @@ import { InspectionReport } from './InspectionReport';
 import { postJson, uploadWithProgress } from './upload';
 import { UploadBar } from './UploadBar';
 import { GcodeDrop, PhotosDrop, ProjectDrop } from '@/components/forms/EntryFileDrops';
+import { GCODE_MAX_BYTES, PROJECT_MAX_BYTES } from '@/lib/entries/fileLimits';
 
 const POLL_MS = 1000;
+const MB = 1024 * 1024;
 
 export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm3s: number | null }) {
   const router = useRouter();
@@ -118,10 +120,10 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
       {entry.canEdit && (
         <section className="card space-y-4" aria-labelledby="files-h">
           <h2 id="files-h">{entry.state === 'returned' ? 'Upload corrected files' : 'Replace files'}</h2>
-          <form onSubmit={uploadFiles} className="grid gap-4 lg:grid-cols-3" noValidate aria-label="Upload new files">
-            <GcodeDrop id="r-gcode" label="New G-code" files={gcode} onFiles={setGcode} error={fileErrors.gcode} disabled={progress !== null} />
+          <form onSubmit={uploadFiles} className="grid items-start gap-4 lg:grid-cols-3" noValidate aria-label="Upload new files">
+            <GcodeDrop id="r-gcode" label="New G-code" hint={`Plain or gzipped (.gcode.gz), up to ${GCODE_MAX_BYTES / MB} MB; inspected at once.`} files={gcode} onFiles={setGcode} error={fileErrors.gcode} disabled={progress !== null} />
             <PhotosDrop id="r-photos" label="New photos (replace all)" files={photos} onFiles={setPhotos} error={fileErrors.photos} disabled={progress !== null} />
-            <ProjectDrop id="r-project" label="New project file" files={project} onFiles={setProject} error={fileErrors.project} disabled={progress !== null} />
+            <ProjectDrop id="r-project" label="New project file" hint={`Slicer settings or project, up to ${PROJECT_MAX_BYTES / MB} MB.`} files={project} onFiles={setProject} error={fileErrors.project} disabled={progress !== null} />
             <div className="space-y-2 lg:col-span-3">
               <UploadBar fraction={progress} label="Uploading" />
               <button type="submit" className="btn-quiet" disabled={progress !== null}>Upload</button>
