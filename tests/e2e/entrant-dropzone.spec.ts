@@ -160,3 +160,29 @@ test('the public machine page shows the machine\'s measured flow limits', async 
   await expect(section.getByRole('heading', { name: 'Measured flow limits' })).toBeVisible();
   await expect(section.locator('tbody tr').first()).toBeVisible();
 });
+
+test('the server\'s sentence on a file shows under its drop area, and the form keeps what was typed', async ({ page, baseURL }) => {
+  test.setTimeout(120_000);
+  await newEntrant(page, baseURL!, 'Content Tester');
+  expect((await page.request.post('/api/entrant/machines', { data: { name: 'Content Rig', motionSystem: 'corexy', buildXMm: 250, buildYMm: 250, buildZMm: 240, nozzleMm: 0.4, isModified: false } })).status()).toBe(201);
+  await page.goto('/me/entries/new?season=frostbite-sprint');
+  await page.getByLabel('Class').selectOption({ label: 'Open · 0.4 mm' });
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.getByLabel('Claimed time (h:mm:ss.t)').fill('0:25:10.0');
+  await page.getByLabel(/Evidence video link/).fill('https://video.example.org/content-rig');
+  await page.getByRole('button', { name: 'Next' }).click();
+  // Named like G-code, but a JPEG inside: only the server's content check can tell.
+  const jpeg = await sharp({ create: { width: 32, height: 32, channels: 3, background: '#445566' } }).jpeg().toBuffer();
+  await dropFiles(page, page.getByTestId('e-gcode-drop-area'), [{ name: 'disguised.gcode', type: '', bytes: jpeg }]);
+  await page.getByLabel(/^Photos/).setInputFiles([
+    { name: 'a.jpg', mimeType: 'image/jpeg', buffer: jpeg },
+    { name: 'b.jpg', mimeType: 'image/jpeg', buffer: jpeg },
+  ]);
+  await page.getByRole('button', { name: 'Upload and inspect' }).click();
+  await expect(page.locator('#e-gcode-error')).toHaveText(/^disguised\.gcode is a JPEG image, not G-code\./);
+  await expect(page.getByLabel(/^G-code/)).toHaveAttribute('aria-invalid', 'true');
+  await expect(page).toHaveURL(/\/me\/entries\/new/);
+  // Nothing typed is lost: back on the previous step, the claimed time is still there.
+  await page.getByRole('button', { name: 'Back' }).click();
+  await expect(page.getByLabel('Claimed time (h:mm:ss.t)')).toHaveValue('0:25:10.0');
+});
