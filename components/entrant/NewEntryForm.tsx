@@ -261,13 +261,6 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
           />
           <ProjectDrop id="e-project" files={project} onFiles={(f) => { setProject(f); setFileErrors((x) => ({ ...x, project: undefined })); }} error={fileErrors.project} disabled={progress !== null} />
           <UploadBar fraction={progress} label="Uploading" />
-          {gcode[0] && (
-            <section className="space-y-2 border-t border-ink-100 pt-4" aria-labelledby="e-check-h">
-              <h2 id="e-check-h" className="text-base font-semibold">Rulebook check of {gcode[0].name} in this browser</h2>
-              {/* The same check in this browser: the verdict shows before the upload finishes. */}
-              <GcodeCheck seasonSlug={s.slug} classId={classId} file={gcode[0]} />
-            </section>
-          )}
         </fieldset>
       )}
 
@@ -276,6 +269,14 @@ export function NewEntryForm({ options, seasonId }: { options: Options; seasonId
         {step > 0 && <button type="button" className="btn-quiet" onClick={() => setStep(step - 1)} disabled={progress !== null}>Back</button>}
         <button type="submit" className="btn-primary" disabled={progress !== null || !!s.windowProblem}>{step < 2 ? 'Next' : 'Upload and inspect'}</button>
       </div>
+      {/* After the buttons, so the long report does not push them off a phone's screen. */}
+      {step === 2 && gcode[0] && (
+        <section className="space-y-2 border-t border-ink-100 pt-4" aria-labelledby="e-check-h">
+          <h2 id="e-check-h" className="text-base font-semibold">Rulebook check of {gcode[0].name} in this browser</h2>
+          {/* The same check in this browser: the verdict shows before the upload finishes. */}
+          <GcodeCheck seasonSlug={s.slug} classId={classId} file={gcode[0]} />
+        </section>
+      )}
     </form>
   );
 }
