@@ -3,6 +3,7 @@ import localFont from 'next/font/local';
 import Link from 'next/link';
 import { headers } from 'next/headers';
 import { SiteHeader } from '@/components/SiteHeader';
+import { Providers } from '@/components/Providers';
 import './globals.css';
 
 // Fonts ship with the app (SIL OFL, licences beside the files); nothing is fetched at build time.
@@ -34,7 +35,7 @@ export default async function RootLayout({ children }: { children: React.ReactNo
           Skip to content
         </a>
         <SiteHeader />
-        <main id="main" className="mx-auto max-w-6xl px-4 py-8">{children}</main>
+        <main id="main" className="mx-auto max-w-6xl px-4 py-8"><Providers>{children}</Providers></main>
         <footer className="mx-auto max-w-6xl px-4 pb-10 text-sm text-ink-500">
           Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a timed print.
         </footer>

@@ -79,3 +79,12 @@ export function formatPageStatus(page: number, pages: number, total: number): st
   if (page > last) return `Page ${page} does not exist: the last page is ${last} · ${total} ranked`;
   return `Page ${page} of ${last} · ${total} ranked`;
 }
+
+/** A file size as people read it: "812 bytes", "48.2 KB", "1.9 MB" (1 KB = 1024 bytes, as file managers show it). */
+export function formatBytes(bytes: number): string {
+  if (!Number.isFinite(bytes) || bytes < 0) return '—';
+  if (bytes < 1024) return `${bytes} bytes`;
+  if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} KB`;
+  if (bytes < 1024 * 1024 * 1024) return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+  return `${(bytes / 1024 / 1024 / 1024).toFixed(2)} GB`;
+}

@@ -1,24 +1,27 @@
 'use client';
 /**
  * Edits the details of a draft or returned entry in place (PUT /api/entries/:id, the same schema as
- * the new-entry form). Saving re-inspects the current G-code against the corrected claims; files
- * and the inspection history stay as they are.
+ * the new-entry form and the handler, through react-hook-form). Saving re-inspects the current
+ * G-code against the corrected claims; files and the inspection history stay as they are. The
+ * server's field errors show next to the fields.
  */
-import { useState } from 'react';
+import { useMemo, useState } from 'react';
 import { useRouter } from 'next/navigation';
+import { useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
 import type { EntryView } from '@/lib/entries';
 import { formatDurationMs } from '@/lib/format';
 import { postJson } from './upload';
-import { CLAIMED_TIME_REQUIRED, EVIDENCE_LINK_REQUIRED } from '@/lib/entries/messages';
+import { EDITABLE_DETAIL_FIELDS, entryDetailsFormSchema } from '@/components/forms/entrySchemas';
 
-const FIELDS = ['claimedTime', 'evidenceUrl', 'measuredXMm', 'measuredYMm', 'measuredZMm', 'materialName', 'notes'] as const;
-type Field = (typeof FIELDS)[number];
+type Field = (typeof EDITABLE_DETAIL_FIELDS)[number];
+type Values = Record<Field, string>;
 
 export function EntryDetailsForm({ entry }: { entry: EntryView }) {
   const router = useRouter();
   const [open, setOpen] = useState(false);
   const m = entry.measuredMm;
-  const initial: Record<Field, string> = {
+  const initial: Values = {
     claimedTime: formatDurationMs(entry.claimedTimeMs),
     evidenceUrl: entry.evidenceUrl ?? '',
     measuredXMm: m.x === null ? '' : String(m.x),
@@ -27,48 +30,40 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
     materialName: entry.materialName ?? '',
     notes: entry.notes ?? '',
   };
-  const [v, setV] = useState(initial);
-  const [errors, setErrors] = useState<Record<string, string>>({});
-  const [message, setMessage] = useState<{ tone: 'ok' | 'error'; text: string } | null>(null);
-  const [busy, setBusy] = useState(false);
-  const set = (k: Field) => (e: React.ChangeEvent<HTMLInputElement | HTMLTextAreaElement>) => setV((x) => ({ ...x, [k]: e.target.value }));
-  const aria = (k: string, hint?: string) => ({
-    'aria-invalid': errors[k] ? true : undefined,
-    'aria-describedby': [hint, errors[k] ? `d-${k}-error` : null].filter(Boolean).join(' ') || undefined,
+  const schema = useMemo(() => entryDetailsFormSchema(entry.season.videoRequired), [entry.season.videoRequired]);
+  const { register, handleSubmit, reset, setError, getValues, formState: { errors, isSubmitting } } = useForm<Values>({
+    // The resolver's input type is the schema's (numbers as unknown); the form holds text, as inputs do.
+    resolver: zodResolver(schema) as never,
+    defaultValues: initial,
+    reValidateMode: 'onChange',
   });
-  const err = (k: string) => (errors[k] ? <p id={`d-${k}-error`} className="field-error" role="alert">{errors[k]}</p> : null);
+  const [message, setMessage] = useState<{ tone: 'ok' | 'error'; text: string } | null>(null);
+  const aria = (k: Field) => ({
+    'aria-invalid': errors[k] ? true : undefined,
+    'aria-describedby': errors[k] ? `d-${k}-error` : undefined,
+  });
+  const err = (k: Field) => (errors[k]?.message ? <p id={`d-${k}-error`} className="field-error" role="alert">{errors[k]?.message}</p> : null);
 
-  async function save(e: React.FormEvent) {
-    e.preventDefault();
-    const local: Record<string, string> = {};
-    if (!v.claimedTime.trim()) local.claimedTime = CLAIMED_TIME_REQUIRED;
-    if (entry.season.videoRequired && !v.evidenceUrl.trim()) local.evidenceUrl = EVIDENCE_LINK_REQUIRED;
-    setErrors(local);
-    if (Object.keys(local).length) return;
-    setBusy(true);
+  // Sends the text as typed: the handler parses it with the same schema.
+  const save = handleSubmit(async () => {
     setMessage(null);
+    const typed = getValues();
     const res = await postJson<{ inspectionId: number | null }>(
       `/api/entries/${entry.id}`,
-      {
-        ...v,
-        seasonId: entry.season.id,
-        classId: entry.class.id,
-        machineId: entry.machine.id,
-        materialFamily: entry.materialFamily,
-        nozzleMm: entry.nozzleMm,
-      },
+      { ...typed, seasonId: entry.season.id, classId: entry.class.id, machineId: entry.machine.id, materialFamily: entry.materialFamily, nozzleMm: entry.nozzleMm },
       'PUT',
     );
-    setBusy(false);
     if (res.status === 200) {
       setMessage({ tone: 'ok', text: 'Details saved. The G-code is inspected again against them…' });
       setOpen(false);
+      reset(typed);
       router.refresh();
-    } else {
-      setErrors(res.body.fields ?? {});
-      setMessage({ tone: 'error', text: res.body.error ?? 'The details could not be saved; nothing was changed.' });
+      return;
     }
-  }
+    for (const [k, text] of Object.entries(res.body.fields ?? {}))
+      if ((EDITABLE_DETAIL_FIELDS as readonly string[]).includes(k)) setError(k as Field, { type: 'server', message: text });
+    setMessage({ tone: 'error', text: res.body.error ?? 'The details could not be saved; nothing was changed.' });
+  });
 
   return (
     <section className="card space-y-4" aria-labelledby="edit-details-h">
@@ -82,12 +77,12 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
           <div className="grid gap-4 sm:grid-cols-2">
             <div>
               <label htmlFor="d-claimedTime" className="label">Claimed time (h:mm:ss.t)</label>
-              <input id="d-claimedTime" className="input num" value={v.claimedTime} onChange={set('claimedTime')} {...aria('claimedTime')} />
+              <input id="d-claimedTime" className="input num" {...register('claimedTime')} {...aria('claimedTime')} />
               {err('claimedTime')}
             </div>
             <div>
               <label htmlFor="d-evidenceUrl" className="label">Evidence video link{entry.season.videoRequired ? '' : ' (optional)'}</label>
-              <input id="d-evidenceUrl" className="input" type="url" placeholder="https://" value={v.evidenceUrl} onChange={set('evidenceUrl')} {...aria('evidenceUrl')} />
+              <input id="d-evidenceUrl" className="input" type="url" placeholder="https://" {...register('evidenceUrl')} {...aria('evidenceUrl')} />
               {err('evidenceUrl')}
             </div>
           </div>
@@ -98,7 +93,7 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
               return (
                 <div key={a}>
                   <label htmlFor={`d-${k}`} className="label">{a} (mm)</label>
-                  <input id={`d-${k}`} className="input" type="number" step="0.01" value={v[k]} onChange={set(k)} {...aria(k)} />
+                  <input id={`d-${k}`} className="input" type="number" step="0.01" {...register(k)} {...aria(k)} />
                   {err(k)}
                 </div>
               );
@@ -106,17 +101,17 @@ export function EntryDetailsForm({ entry }: { entry: EntryView }) {
           </fieldset>
           <div>
             <label htmlFor="d-materialName" className="label">Material name</label>
-            <input id="d-materialName" className="input" value={v.materialName} onChange={set('materialName')} {...aria('materialName')} />
+            <input id="d-materialName" className="input" {...register('materialName')} {...aria('materialName')} />
             {err('materialName')}
           </div>
           <div>
             <label htmlFor="d-notes" className="label">Notes for the judges</label>
-            <textarea id="d-notes" className="input" rows={3} value={v.notes} onChange={set('notes')} {...aria('notes')} />
+            <textarea id="d-notes" className="input" rows={3} {...register('notes')} {...aria('notes')} />
             {err('notes')}
           </div>
           <div className="flex gap-3">
-            <button type="submit" className="btn-primary" disabled={busy}>Save details</button>
-            <button type="button" className="btn-quiet" disabled={busy} onClick={() => { setOpen(false); setV(initial); setErrors({}); }}>Cancel</button>
+            <button type="submit" className="btn-primary" disabled={isSubmitting}>Save details</button>
+            <button type="button" className="btn-quiet" disabled={isSubmitting} onClick={() => { setOpen(false); reset(); }}>Cancel</button>
           </div>
         </form>
       )}

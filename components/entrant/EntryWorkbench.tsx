@@ -1,18 +1,22 @@
 'use client';
 /**
- * The live part of an entry page: polls the inspection while it runs, shows the report, uploads
- * corrected files (with progress), and submits, withdraws or re-inspects.
+ * The live part of an entry page: polls the inspection while it runs (TanStack Query), shows the
+ * report, uploads corrected files dropped or chosen in drop areas (with progress), and submits,
+ * withdraws or re-inspects.
  */
 import { useEffect, useState } from 'react';
 import { useRouter } from 'next/navigation';
+import { useQuery } from '@tanstack/react-query';
 import type { EntryView } from '@/lib/entries';
 import type { InspectionJson } from '@/lib/entries/inspection';
 import { InspectionReport } from './InspectionReport';
 import { postJson, uploadWithProgress } from './upload';
 import { UploadBar } from './UploadBar';
-import { GCODE_ACCEPT, PHOTO_ACCEPT } from './NewEntryForm';
+import { GcodeDrop, PhotosDrop, ProjectDrop } from '@/components/forms/EntryFileDrops';
+import { GCODE_MAX_BYTES, PROJECT_MAX_BYTES } from '@/lib/entries/fileLimits';
 
 const POLL_MS = 1000;
+const MB = 1024 * 1024;
 
 export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm3s: number | null }) {
   const router = useRouter();
@@ -33,32 +37,47 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
     setBlockers(entry.blockers);
   }
 
+  // While the inspection is queued or running, ask for its status every second.
+  const poll = useQuery({
+    queryKey: ['entry-inspection', entry.id],
+    queryFn: async () => {
+      const res = await fetch(`/api/entries/${entry.id}/inspection`, { cache: 'no-store' });
+      if (!res.ok) throw new Error(`status ${res.status}`);
+      return (await res.json()) as { inspection: InspectionJson | null; blockers: string[] };
+    },
+    enabled: running,
+    refetchInterval: running ? POLL_MS : false,
+    gcTime: 0,
+  });
+  // Adopt each new answer once (during render, like the prop above).
+  const [seenPollAt, setSeenPollAt] = useState(0);
+  const finished = (i: InspectionJson | null | undefined) => !!i && (i.status === 'done' || i.status === 'failed');
+  if (poll.data && poll.dataUpdatedAt !== seenPollAt) {
+    setSeenPollAt(poll.dataUpdatedAt);
+    setInspection(poll.data.inspection);
+    setBlockers(poll.data.blockers);
+    if (finished(poll.data.inspection)) setMessage((msg) => (msg?.tone === 'ok' ? null : msg));
+  }
+  // Finished: refresh the server-rendered parts (history, details) too.
+  const doneAt = poll.data && finished(poll.data.inspection) ? poll.dataUpdatedAt : 0;
   useEffect(() => {
-    if (!running) return;
-    let stop = false;
-    const t = setInterval(async () => {
-      const res = await fetch(`/api/entries/${entry.id}/inspection`, { cache: 'no-store' }).catch(() => null);
-      if (!res?.ok || stop) return;
-      const body = (await res.json()) as { inspection: InspectionJson | null; blockers: string[] };
-      setInspection(body.inspection);
-      setBlockers(body.blockers);
-      // Finished: refresh the server-rendered parts (history, details) too.
-      if (body.inspection && (body.inspection.status === 'done' || body.inspection.status === 'failed')) {
-        setMessage((m) => (m?.tone === 'ok' ? null : m));
-        router.refresh();
-      }
-    }, POLL_MS);
-    return () => {
-      stop = true;
-      clearInterval(t);
-    };
-  }, [running, entry.id, router]);
+    if (doneAt) router.refresh();
+  }, [doneAt, router]);
+
+  const [gcode, setGcode] = useState<File[]>([]);
+  const [photos, setPhotos] = useState<File[]>([]);
+  const [project, setProject] = useState<File[]>([]);
 
   async function uploadFiles(e: React.FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const form = new FormData(e.currentTarget);
-    for (const k of ['gcode', 'project'] as const) if (!(form.get(k) as File | null)?.size) form.delete(k);
-    if (!form.getAll('photos').some((p) => (p as File).size)) form.delete('photos');
+    if (!gcode.length && !photos.length && !project.length) {
+      setMessage({ tone: 'error', text: 'Add a G-code, photos or a project file to upload first.' });
+      return;
+    }
+    const form = new FormData();
+    if (gcode[0]) form.append('gcode', gcode[0]);
+    for (const p of photos) form.append('photos', p);
+    if (project[0]) form.append('project', project[0]);
     setProgress(0);
     setMessage(null);
     const res = await uploadWithProgress<{ inspectionId: number | null }>(`/api/entries/${entry.id}/files`, form, setProgress);
@@ -66,7 +85,9 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
     if (res.status === 200) {
       setFileErrors({});
       setMessage({ tone: 'ok', text: res.body.inspectionId ? 'Uploaded. Inspecting the new G-code…' : 'Uploaded.' });
-      (e.target as HTMLFormElement).reset();
+      setGcode([]);
+      setPhotos([]);
+      setProject([]);
       if (res.body.inspectionId) setInspection((i) => (i ? { ...i, status: 'queued' } : i));
       router.refresh();
     } else {
@@ -99,22 +120,11 @@ export function EntryWorkbench({ entry, limitMm3s }: { entry: EntryView; limitMm
       {entry.canEdit && (
         <section className="card space-y-4" aria-labelledby="files-h">
           <h2 id="files-h">{entry.state === 'returned' ? 'Upload corrected files' : 'Replace files'}</h2>
-          <form onSubmit={uploadFiles} className="grid gap-4 sm:grid-cols-3" noValidate aria-label="Upload new files">
-            <div>
-              <label htmlFor="r-gcode" className="label">New G-code</label>
-              <input id="r-gcode" name="gcode" type="file" accept={GCODE_ACCEPT} aria-invalid={fileErrors.gcode ? true : undefined} aria-describedby={fileErrors.gcode ? 'r-gcode-error' : undefined} />
-              {fileErrors.gcode && <p id="r-gcode-error" className="field-error" role="alert">{fileErrors.gcode}</p>}
-            </div>
-            <div>
-              <label htmlFor="r-photos" className="label">New photos (replace all)</label>
-              <input id="r-photos" name="photos" type="file" multiple accept={PHOTO_ACCEPT} aria-invalid={fileErrors.photos ? true : undefined} aria-describedby={fileErrors.photos ? 'r-photos-error' : undefined} />
-              {fileErrors.photos && <p id="r-photos-error" className="field-error" role="alert">{fileErrors.photos}</p>}
-            </div>
-            <div>
-              <label htmlFor="r-project" className="label">New project file</label>
-              <input id="r-project" name="project" type="file" />
-            </div>
-            <div className="sm:col-span-3 space-y-2">
+          <form onSubmit={uploadFiles} className="grid items-start gap-4 lg:grid-cols-3" noValidate aria-label="Upload new files">
+            <GcodeDrop id="r-gcode" label="New G-code" hint={`Plain or gzipped (.gcode.gz), up to ${GCODE_MAX_BYTES / MB} MB; inspected at once.`} files={gcode} onFiles={setGcode} error={fileErrors.gcode} disabled={progress !== null} />
+            <PhotosDrop id="r-photos" label="New photos (replace all)" files={photos} onFiles={setPhotos} error={fileErrors.photos} disabled={progress !== null} />
+            <ProjectDrop id="r-project" label="New project file" hint={`Slicer settings or project, up to ${PROJECT_MAX_BYTES / MB} MB.`} files={project} onFiles={setProject} error={fileErrors.project} disabled={progress !== null} />
+            <div className="space-y-2 lg:col-span-3">
               <UploadBar fraction={progress} label="Uploading" />
               <button type="submit" className="btn-quiet" disabled={progress !== null}>Upload</button>
             </div>

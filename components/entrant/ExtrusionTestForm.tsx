@@ -114,7 +114,7 @@ export function ExtrusionTestForm({ machineId }: { machineId: number }) {
   );
 }
 
-export function ExtrusionTestResult({ test }: { test: { id: number; materialFamily: string; materialName: string; testedAt: string; thresholdPercent: number; limitFlowMm3s: number | null; nonMonotonic: boolean; referenceMassG: number; expectedMassG: number; steps: { rateMm3s: number; massG: number; efficiencyPercent: number; passes: boolean }[]; ceilings: { layerHeightMm: number; lineWidthMm: number; speedMms: number }[] } }) {
+export function ExtrusionTestResult({ test }: { test: { id: number; materialFamily: string; materialName: string; testedAt: string; thresholdPercent: number; limitFlowMm3s: number | null; nonMonotonic: boolean; referenceMassG: number; expectedMassG: number; steps: { rateMm3s: number; massG: number; efficiencyPercent: number; passes: boolean }[]; ceilings: { layerHeightMm: number; lineWidthMm: number; speedMms: number; flowSpeedMms: number; limitedBy: 'flow' | 'machine' }[] } }) {
   const widths = [...new Set(test.ceilings.map((c) => c.lineWidthMm))];
   const heights = [...new Set(test.ceilings.map((c) => c.layerHeightMm))];
   return (
@@ -134,9 +134,13 @@ export function ExtrusionTestResult({ test }: { test: { id: number; materialFami
             <table className="table" data-testid="speed-ceilings">
               <caption className="mb-1 text-left text-sm font-semibold text-ink-700">Speed ceiling (mm/s) = limit ÷ (layer height × line width)</caption>
               <thead><tr><th>layer \ line</th>{widths.map((w) => <th key={w} className="num">{w} mm</th>)}</tr></thead>
-              <tbody>{heights.map((h) => <tr key={h}><th className="num">{h} mm</th>{widths.map((w) => <td key={w} className="num">{Math.round(test.ceilings.find((c) => c.layerHeightMm === h && c.lineWidthMm === w)!.speedMms)}</td>)}</tr>)}</tbody>
+              <tbody>{heights.map((h) => <tr key={h}><th className="num">{h} mm</th>{widths.map((w) => {
+                const c = test.ceilings.find((x) => x.layerHeightMm === h && x.lineWidthMm === w)!;
+                return <td key={w} className="num" data-limited-by={c.limitedBy} title={c.limitedBy === 'machine' ? `The flow allows ${Math.round(c.flowSpeedMms)} mm/s; the machine's speed limit is lower.` : undefined}>{Math.round(c.speedMms)}{c.limitedBy === 'machine' ? '*' : ''}</td>;
+              })}</tr>)}</tbody>
             </table>
           )}
+          {test.ceilings.some((c) => c.limitedBy === 'machine') && <p className="text-xs text-ink-600" data-testid="ceiling-machine-note">* capped at the speed limit in this machine&apos;s record: the flow would allow more, the machine does not move faster.</p>}
           {test.nonMonotonic && <p className="text-sm text-ember-800">A faster step passed again after a failure; the limit stops at the first failure.</p>}
         </div>
       </div>

@@ -15,11 +15,9 @@ import { processPhoto, type PhotoType, type ProcessedPhoto } from '@/lib/photos'
 import type { StoredFileKind } from '@/lib/domain';
 import { ENTRY_DETAIL_FIELDS } from './schema';
 
-const MB = 1024 * 1024;
-export const GCODE_MAX_BYTES = 200 * MB;
-export const PHOTO_MAX_BYTES = 20 * MB;
-export const PHOTO_MAX_COUNT = 6;
-export const PROJECT_MAX_BYTES = 20 * MB;
+import { GCODE_MAX_BYTES, PHOTO_MAX_BYTES, PHOTO_MAX_COUNT, PROJECT_MAX_BYTES } from './fileLimits';
+
+export { GCODE_MAX_BYTES, PHOTO_MAX_BYTES, PHOTO_MAX_COUNT, PROJECT_MAX_BYTES };
 
 export const ENTRY_UPLOAD_SPEC: UploadSpec = {
   files: {

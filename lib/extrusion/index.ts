@@ -28,7 +28,17 @@ export interface ExtrusionStepResult extends ExtrusionStepInput {
 export interface SpeedCeiling {
   layerHeightMm: number;
   lineWidthMm: number;
+  /** The speed to plan with: the flow's ceiling, or the machine's own speed limit when that is lower. */
   speedMms: number;
+  /** What the flow alone would allow: Q ÷ (h × w). */
+  flowSpeedMms: number;
+  /** Which of the two sets `speedMms`. */
+  limitedBy: 'flow' | 'machine';
+}
+
+/** The machine's own limits that cap the table (null: not given in the machine's record). */
+export interface MachineSpeedLimits {
+  maxSpeedMms: number | null;
 }
 
 export interface ExtrusionResult {
@@ -59,10 +69,21 @@ export function speedCeilingMms(flowMm3s: number, layerHeightMm: number, lineWid
   return flowMm3s / (layerHeightMm * lineWidthMm);
 }
 
-export function speedCeilings(flowMm3s: number): SpeedCeiling[] {
+/**
+ * The speed-ceiling table: for each common layer height × line width, the speed the measured flow
+ * allows, capped by the machine's own speed limit (its record's `maxSpeedMms`, e.g. the firmware's
+ * maximum feed rate): a hotend that melts enough for 1,000 mm/s does not make a 600 mm/s machine
+ * move faster, so the table never tells that machine more than 600 mm/s.
+ */
+export function speedCeilings(flowMm3s: number, machine?: MachineSpeedLimits | null): SpeedCeiling[] {
+  const cap = machine?.maxSpeedMms != null && machine.maxSpeedMms > 0 ? machine.maxSpeedMms : null;
   const out: SpeedCeiling[] = [];
   for (const h of COMMON_LAYER_HEIGHTS_MM)
-    for (const w of COMMON_LINE_WIDTHS_MM) out.push({ layerHeightMm: h, lineWidthMm: w, speedMms: speedCeilingMms(flowMm3s, h, w) });
+    for (const w of COMMON_LINE_WIDTHS_MM) {
+      const flowSpeedMms = speedCeilingMms(flowMm3s, h, w);
+      const capped = cap !== null && cap < flowSpeedMms;
+      out.push({ layerHeightMm: h, lineWidthMm: w, flowSpeedMms, speedMms: capped ? cap : flowSpeedMms, limitedBy: capped ? 'machine' : 'flow' });
+    }
   return out;
 }
 
@@ -121,6 +142,8 @@ export function computeExtrusionLimit(input: {
   referenceMassG?: number | null;
   thresholdPercent?: number;
   steps: ExtrusionStepInput[];
+  /** The machine's own limits; the speed ceilings never exceed them. */
+  machine?: MachineSpeedLimits | null;
 }): ExtrusionResult {
   const threshold = input.thresholdPercent ?? DEFAULT_THRESHOLD_PERCENT;
   const expected = expectedMassG(input.sampleLengthMm, input.filamentDiameterMm, densityGcm3(input.materialFamily));
@@ -149,6 +172,6 @@ export function computeExtrusionLimit(input: {
     steps,
     limitFlowMm3s: limit,
     nonMonotonic,
-    ceilings: limit === null ? [] : speedCeilings(limit),
+    ceilings: limit === null ? [] : speedCeilings(limit, input.machine),
   };
 }

@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { computeExtrusionLimit, expectedMassG, speedCeilingMms, ExtrusionTestSchema } from '@/lib/extrusion';
+import { computeExtrusionLimit, expectedMassG, speedCeilingMms, speedCeilings, ExtrusionTestSchema } from '@/lib/extrusion';
 
 describe('extrusion-limit test', () => {
   it('expected mass of 100 mm of 1.75 mm PLA, worked by hand', () => {
@@ -71,5 +71,40 @@ describe('extrusion-limit test', () => {
     const msgs = bad.error!.issues.map((i) => i.message);
     expect(msgs).toContain('The filament diameter must be more than 0.');
     expect(msgs.some((m) => m.includes('listed twice'))).toBe(true);
+  });
+});
+
+describe('speed-ceiling table capped by the machine', () => {
+  it('a 600 mm/s machine is never told more than 600 mm/s', () => {
+    // Flow 60 mm³/s: 60 ÷ (0.1 × 0.4) = 1500 mm/s from the flow alone (v = Q ÷ (h × w), the trade's
+    // rectangular-bead rule of thumb, hand-computed); the machine's record says 600 mm/s (invented machine).
+    const rows = speedCeilings(60, { maxSpeedMms: 600 });
+    const thin = rows.find((c) => c.layerHeightMm === 0.1 && c.lineWidthMm === 0.4)!;
+    expect(thin.flowSpeedMms).toBeCloseTo(1500, 6);
+    expect(thin.speedMms).toBe(600);
+    expect(thin.limitedBy).toBe('machine');
+    expect(Math.max(...rows.map((c) => c.speedMms))).toBe(600);
+    // By hand: 60 ÷ (0.3 × 0.6) = 333.3 mm/s, below the machine's 600: the flow decides.
+    const thick = rows.find((c) => c.layerHeightMm === 0.3 && c.lineWidthMm === 0.6)!;
+    expect(thick.speedMms).toBeCloseTo(333.333, 2);
+    expect(thick.limitedBy).toBe('flow');
+  });
+
+  it('no speed limit in the record: the flow alone decides', () => {
+    // By hand: 30 ÷ (0.2 × 0.45) = 333.3 mm/s.
+    for (const machine of [undefined, null, { maxSpeedMms: null }]) {
+      const c = speedCeilings(30, machine).find((x) => x.layerHeightMm === 0.2 && x.lineWidthMm === 0.45)!;
+      expect(c.speedMms).toBeCloseTo(333.333, 2);
+      expect(c.limitedBy).toBe('flow');
+    }
+  });
+
+  it('computeExtrusionLimit passes the machine on to the table', () => {
+    // Limit 30 mm³/s (weighed reference 0.3 g, 0.3 g sample = 100 %); 30 ÷ (0.1 × 0.4) = 750 mm/s by
+    // flow, capped at the invented machine's 500 mm/s.
+    const r = computeExtrusionLimit({ materialFamily: 'pla', filamentDiameterMm: 1.75, sampleLengthMm: 100, referenceMassG: 0.3, steps: [{ rateMm3s: 30, massG: 0.3 }], machine: { maxSpeedMms: 500 } });
+    const c = r.ceilings.find((x) => x.layerHeightMm === 0.1 && x.lineWidthMm === 0.4)!;
+    expect(c.flowSpeedMms).toBeCloseTo(750, 6);
+    expect(c.speedMms).toBe(500);
   });
 });
