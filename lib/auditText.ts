@@ -69,6 +69,8 @@ export interface AuditEventData {
 
 const list = (xs: unknown) => (Array.isArray(xs) && xs.length ? xs.map(String).join(', ') : 'none');
 const roles = (xs: unknown) => (Array.isArray(xs) && xs.length ? xs.map((r) => ROLE_LABELS[r as Role] ?? String(r)).join(', ') : 'no role');
+/** A stored value as text, or the fallback when it is missing. */
+const str = (v: unknown, fallback: string) => (v == null || v === '' ? fallback : String(v));
 const num = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 
 /** One sentence saying what happened, e.g. "Rowan Pike changed Pim Ash's roles from Entrant to Entrant, Judge." */
@@ -88,21 +90,21 @@ export function auditSentence(e: AuditEventData, n: AuditNames): string {
     case 'user.password_reset': return `${who} set a new password through a reset link.`;
     case 'user.roles_changed':
       return `${who} changed ${user(id)}’s roles from ${roles(d.before)} to ${roles(d.after)}${typeof d.reason === 'string' && d.reason ? ` (${d.reason})` : ''}.`;
-    case 'season.created': return `${who} created the season ${String(d.name ?? season)}${d.slug ? ` (${d.slug})` : ''}.`;
+    case 'season.created': return `${who} created the season ${str(d.name, season)}${d.slug ? ` (${d.slug})` : ''}.`;
     case 'season.updated': return `${who} edited ${season}: ${list(d.changed)}.`;
     case 'season.test_piece_uploaded':
-      return `${who} uploaded the test piece ${String(d.file ?? '')} to ${season}${num(d.triangles) != null ? ` (${d.triangles} triangles)` : ''}.`;
-    case 'season.class_created': return `${who} added the class ${String(d.slug ?? d.classId)} to ${season}.`;
-    case 'season.class_updated': return `${who} edited the class ${String(d.slug ?? d.classId)} of ${season}.`;
+      return `${who} uploaded the test piece ${str(d.file, 'file')} to ${season}${num(d.triangles) != null ? ` (${d.triangles} triangles)` : ''}.`;
+    case 'season.class_created': return `${who} added the class ${str(d.slug ?? d.classId, 'a class')} to ${season}.`;
+    case 'season.class_updated': return `${who} edited the class ${str(d.slug ?? d.classId, 'a class')} of ${season}.`;
     case 'season.class_deleted':
-      return `${who} deleted the class ${String(d.slug ?? d.classId)} of ${season}${num(d.rulesRemoved) ? ` and its ${d.rulesRemoved} rule${d.rulesRemoved === 1 ? '' : 's'}` : ''}.`;
+      return `${who} deleted the class ${str(d.slug ?? d.classId, 'a class')} of ${season}${num(d.rulesRemoved) ? ` and its ${d.rulesRemoved} rule${d.rulesRemoved === 1 ? '' : 's'}` : ''}.`;
     case 'season.classes_reordered': return `${who} changed the order of the classes of ${season}.`;
     case 'season.rules_saved':
       return `${who} saved the rulebook of ${season}: ${d.after ?? '?'} rule${d.after === 1 ? '' : 's'} (before: ${d.before ?? '?'})${d.reinspect ? '; entries are inspected again' : ''}.`;
     case 'season.reinspect_requested':
       return `${who} asked for the entries of ${season} to be inspected again (${String(d.reason ?? 'no reason given')})${num(d.queued) != null ? `; ${d.queued} inspection${d.queued === 1 ? '' : 's'} queued` : ''}${num(d.withoutFile) ? `, ${d.withoutFile} without a G-code` : ''}.`;
     case 'season.state_changed':
-      return `${who} moved ${season} from ${String(d.from)} to ${String(d.to)}${d.notify ? ', notifying subscribers' : ''}${num(d.standingsRows) != null ? `; ${d.standingsRows} standings rows frozen` : ''}.`;
+      return `${who} moved ${season} from ${str(d.from, '?')} to ${str(d.to, '?')}${d.notify ? ', notifying subscribers' : ''}${num(d.standingsRows) != null ? `; ${d.standingsRows} standings rows frozen` : ''}.`;
     case 'season.judge_appointed': return `${who} appointed ${user(d.userId)} as a judge of ${season}.`;
     case 'season.judge_removed': return `${who} removed ${user(d.userId)} from the judges of ${season}.`;
     case 'season.judge_invited': return `${who} invited ${String(d.email ?? 'someone')} to judge ${season}.`;
@@ -112,7 +114,7 @@ export function auditSentence(e: AuditEventData, n: AuditNames): string {
     case 'entry.reopened_by_reinspection':
       return `A re-inspection sent ${entry} back to the judges (${String(d.fromState ?? '?')} → ${String(d.toState ?? '?')})${Array.isArray(d.changed) && d.changed.length ? `; changed: ${list(d.changed)}` : ''}.`;
     case 'review.decided': {
-      const past = DECISION_LABELS[d.decision as keyof typeof DECISION_LABELS]?.past ?? String(d.decision);
+      const past = DECISION_LABELS[d.decision as keyof typeof DECISION_LABELS]?.past ?? str(d.decision, 'decided on');
       const reasons = Array.isArray(d.reasonCodes) && d.reasonCodes.length ? ` (${d.reasonCodes.map((c) => reasonLabel(String(c))).join('; ')})` : '';
       const count = num(d.verifications) != null && num(d.verificationsRequired) != null ? `; ${d.verifications} of ${d.verificationsRequired} verifications` : '';
       return `${who} ${past} ${entry}${reasons}${count}.`;

@@ -118,5 +118,6 @@ test('an admin makes a user a judge and the audit log shows it', async ({ page }
   await page.getByLabel('Action').selectOption('user.roles_changed');
   await expect(page).toHaveURL(/action=user\.roles_changed/);
   await expect(page.getByTestId('audit-row').first()).toContainText('Roles changed');
+  await expect(page.locator('[aria-busy="true"]')).toHaveCount(0);
   for (const row of await page.getByTestId('audit-row').all()) await expect(row).toContainText('user.roles_changed');
 });
