@@ -71,7 +71,7 @@ export function EntriesTimeline({ days }: { days: { day: string; submitted_total
   const label = x.step >= 28 * 86_400_000 ? monthLabel : dayLabel;
   return (
     <Frame title="Entries over the season (running totals)" testId="chart-timeline" empty={!data.length}>
-      <LineChart data={data} margin={{ top: 5, right: 20, bottom: 20, left: 10 }}>
+      <LineChart data={data} margin={{ top: 5, right: 32, bottom: 20, left: 10 }}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="t" {...axisProps(x)} scale="time" tickFormatter={label} />
         <YAxis {...axisProps(y)} allowDecimals={false} />
@@ -110,7 +110,7 @@ export function TimesOverSeasons({ points }: { points: SeasonPoint[] }) {
       empty={!withT.length}
       note={pieces.length > 1 ? 'Each test piece is its own line: times on different pieces are not compared.' : undefined}
     >
-      <LineChart margin={{ top: 5, right: 20, bottom: 20, left: 10 }}>
+      <LineChart margin={{ top: 5, right: 32, bottom: 20, left: 10 }}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="t" {...axisProps(x)} scale="time" tickFormatter={label} tick={TICK} label={{ value: 'season opening', position: 'insideBottom', offset: -12, fontSize: 11 }} />
         <YAxis dataKey="time_s" {...axisProps(y)} tickFormatter={minutes} />
