@@ -63,6 +63,9 @@ async function expectReadableAxes(page: Page, testId: string) {
       }),
     );
     expect(boxes.length, `${testId} axis ${a}`).toBeGreaterThanOrEqual(2);
+    // Inside the drawing: a label past the edge of the svg is cut off.
+    const svg = (await page.getByTestId(testId).locator('.recharts-wrapper > svg').first().boundingBox())!;
+    for (const b of boxes) expect(b.x >= svg.x - 1 && b.x + b.w <= svg.x + svg.width + 1, `${testId} axis ${a}: "${b.text}" is cut off`).toBe(true);
     for (const b of boxes) expect(b.text.trim(), `${testId} axis ${a}`).not.toBe('');
     for (let i = 0; i < boxes.length; i++)
       for (let j = i + 1; j < boxes.length; j++) {
