@@ -27,12 +27,12 @@ function Frame({ title, children, empty, testId, note }: { title: string; childr
 export function TimesHistogram({ bins, classes }: { bins: Record<string, number>[]; classes: { slug: string; name: string }[] }) {
   // Bars sit on a numeric time axis at their bin's centre; ticks at round times, so labels never crowd.
   const data = bins.map((b) => ({ ...b, mid: (b.from_s + b.to_s) / 2, range: `${minutes(b.from_s)}–${minutes(b.to_s)}` }));
-  const x = bins.length ? niceTimeTicks(bins[0].from_s, bins[bins.length - 1].to_s, 6) : niceTimeTicks(0, 60);
+  const x = bins.length ? niceTimeTicks(bins[0].from_s, bins[bins.length - 1].to_s, 4) : niceTimeTicks(0, 60);
   const maxCount = Math.max(1, ...bins.map((b) => classes.reduce((s, c) => s + (b[c.slug] ?? 0), 0)));
   const y = niceTicks(0, maxCount, 4, { integer: true });
   return (
     <Frame title="Distribution of ranked times per class" testId="chart-histogram" empty={!bins.length}>
-      <BarChart data={data} margin={{ top: 5, right: 20, bottom: 20, left: 10 }} barCategoryGap={1}>
+      <BarChart data={data} margin={{ top: 14, right: 20, bottom: 20, left: 10 }} barCategoryGap={1}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="mid" {...axisProps(x)} tickFormatter={minutes} label={{ value: 'claimed time', position: 'insideBottom', offset: -12, fontSize: 11 }} />
         <YAxis {...axisProps(y)} allowDecimals={false} label={{ value: 'entrants', angle: -90, position: 'insideLeft', fontSize: 11 }} />
@@ -50,7 +50,7 @@ export function FlowScatter({ series }: { series: { slug: string; name: string; 
   const y = niceTimeTicks(Math.min(...all.map((p) => p.time_s)), Math.max(...all.map((p) => p.time_s)), 5);
   return (
     <Frame title="Claimed time against peak flow (does more flow buy speed?)" testId="chart-scatter" empty={!all.length}>
-      <ScatterChart margin={{ top: 5, right: 20, bottom: 20, left: 10 }}>
+      <ScatterChart margin={{ top: 14, right: 20, bottom: 20, left: 10 }}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="peak_flow_mm3s" name="peak flow" {...axisProps(x)} tickFormatter={tickFormat(x.step)} label={{ value: 'peak flow, mm³/s', position: 'insideBottom', offset: -12, fontSize: 11 }} />
         <YAxis dataKey="time_s" name="time" {...axisProps(y)} tickFormatter={minutes} />
@@ -71,7 +71,7 @@ export function EntriesTimeline({ days }: { days: { day: string; submitted_total
   const label = x.step >= 28 * 86_400_000 ? monthLabel : dayLabel;
   return (
     <Frame title="Entries over the season (running totals)" testId="chart-timeline" empty={!data.length}>
-      <LineChart data={data} margin={{ top: 5, right: 32, bottom: 20, left: 10 }}>
+      <LineChart data={data} margin={{ top: 14, right: 32, bottom: 20, left: 10 }}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="t" {...axisProps(x)} scale="time" tickFormatter={label} />
         <YAxis {...axisProps(y)} allowDecimals={false} />
@@ -110,7 +110,7 @@ export function TimesOverSeasons({ points }: { points: SeasonPoint[] }) {
       empty={!withT.length}
       note={pieces.length > 1 ? 'Each test piece is its own line: times on different pieces are not compared.' : undefined}
     >
-      <LineChart margin={{ top: 5, right: 32, bottom: 20, left: 10 }}>
+      <LineChart margin={{ top: 14, right: 32, bottom: 20, left: 10 }}>
         <CartesianGrid strokeDasharray="3 3" stroke="#e7ebee" />
         <XAxis dataKey="t" {...axisProps(x)} scale="time" tickFormatter={label} tick={TICK} label={{ value: 'season opening', position: 'insideBottom', offset: -12, fontSize: 11 }} />
         <YAxis dataKey="time_s" {...axisProps(y)} tickFormatter={minutes} />

@@ -93,6 +93,8 @@ for (const [w, h] of [[1400, 900], [390, 844]] as const) {
       expect(curves).toEqual([2]);
       await expect(chart.locator('.recharts-line-dot, .recharts-dot')).toHaveCount(3);
       await expectReadableAxes(page, 'chart-seasons');
+      // The page never scrolls sideways: the history table scrolls inside its card.
+      expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(w);
       await page.screenshot({ path: path.join(SHOTS, `entrant-history-${w}x${h}.png`), fullPage: true });
     });
 
