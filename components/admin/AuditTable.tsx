@@ -166,7 +166,7 @@ export function AuditTable({ initial }: { initial: AuditLogPage }) {
 
       <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
         <button type="button" className="btn-quiet" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>Previous page</button>
-        <span className="text-sm text-ink-700" data-testid="audit-page-status">{formatPageStatus(data.page, data.pages, data.total)}</span>
+        <span className="text-sm text-ink-700" data-testid="audit-page-status">{formatPageStatus(data.page, data.pages, data.total, (n) => `${n} event${n === 1 ? '' : 's'}`)}</span>
         <button type="button" className="btn-quiet" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>Next page</button>
         <label className="ml-auto flex items-center gap-2 text-sm text-ink-700">
           Rows per page
