@@ -67,7 +67,7 @@ export function AuditTable({ initial }: { initial: AuditLogPage }) {
       col.accessor('sentence', {
         header: 'What happened',
         cell: (c) => (
-          <div className="space-y-1">
+          <div className="min-w-64 space-y-1">
             <p>{c.getValue()}</p>
             {c.row.original.detailPairs.length > 0 && (
               <details className="text-xs text-ink-600">
