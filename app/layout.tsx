@@ -2,6 +2,7 @@ import type { Metadata } from 'next';
 import localFont from 'next/font/local';
 import Link from 'next/link';
 import { headers } from 'next/headers';
+import { NuqsAdapter } from 'nuqs/adapters/next/app';
 import { SiteHeader } from '@/components/SiteHeader';
 import { Providers } from '@/components/Providers';
 import './globals.css';
@@ -35,7 +36,10 @@ export default async function RootLayout({ children }: { children: React.ReactNo
           Skip to content
         </a>
         <SiteHeader />
-        <main id="main" className="mx-auto max-w-6xl px-4 py-8"><Providers>{children}</Providers></main>
+        {/* URL state for client tables (nuqs: standings page, sort, filters); client data fetching (Providers). */}
+        <NuqsAdapter>
+          <main id="main" className="mx-auto max-w-6xl px-4 py-8"><Providers>{children}</Providers></main>
+        </NuqsAdapter>
         <footer className="mx-auto max-w-6xl px-4 pb-10 text-sm text-ink-500">
           Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a timed print.
         </footer>

@@ -5,6 +5,7 @@ import { navFor } from '@/lib/nav';
 import { LogoMark } from '@/components/Logo';
 import { SignOutButton } from '@/components/SignOutButton';
 import { mayBeSignedIn } from '@/lib/auth/visitor';
+import { HeaderMenu, NavLink } from '@/components/HeaderMenu';
 
 export async function SiteHeader() {
   // Anonymous visitors (no session cookie) cost no session read.
@@ -18,26 +19,24 @@ export async function SiteHeader() {
           <LogoMark />
           Hotlap
         </Link>
-        <nav aria-label="Main" className="flex flex-1 flex-wrap items-center gap-1 text-sm">
-          {items.map((item) => (
-            <Link key={item.href} href={item.href} className="rounded-md px-2.5 py-1.5 text-ink-200 no-underline hover:bg-ink-800 hover:text-white hover:no-underline">
-              {item.label}
-            </Link>
-          ))}
-        </nav>
-        <div className="flex items-center gap-3 text-sm">
-          {user ? (
-            <>
-              <Link href="/account" className="text-ink-300" data-testid="signed-in-as" title="Your account">{user.name}</Link>
-              <SignOutButton />
-            </>
-          ) : (
-            <>
-              <Link href="/signin" className="text-ink-100">Sign in</Link>
-              <Link href="/signup" className="btn-primary">Sign up</Link>
-            </>
-          )}
-        </div>
+        <HeaderMenu>
+          <nav aria-label="Main" className="flex flex-col gap-1 text-sm md:flex-1 md:flex-row md:flex-wrap md:items-center">
+            {items.map((item) => <NavLink key={item.href} href={item.href} label={item.label} />)}
+          </nav>
+          <div className="flex items-center gap-3 px-2.5 text-sm md:px-0">
+            {user ? (
+              <>
+                <Link href="/account" className="text-ink-300" data-testid="signed-in-as" title="Your account">{user.name}</Link>
+                <SignOutButton />
+              </>
+            ) : (
+              <>
+                <Link href="/signin" className="text-ink-100">Sign in</Link>
+                <Link href="/signup" className="btn-primary">Sign up</Link>
+              </>
+            )}
+          </div>
+        </HeaderMenu>
       </div>
     </header>
   );

@@ -1,4 +1,5 @@
 /** Account lifecycle: sign-up, e-mail confirmation, password reset, roles. */
+import 'server-only';
 import { UniqueConstraintError } from 'sequelize';
 import { User } from '@/models';
 import { getSequelize } from '@/lib/db';

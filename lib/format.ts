@@ -74,10 +74,10 @@ export function formatSeasonWindow(opens: string | Date | null | undefined, clos
 }
 
 /** The standings pager's status line; a page past the end (an old or edited link) says so instead of "Page 99 of 1". */
-export function formatPageStatus(page: number, pages: number, total: number): string {
+export function formatPageStatus(page: number, pages: number, total: number, counted: (n: number) => string = (n) => `${n} ranked`): string {
   const last = Math.max(1, pages);
-  if (page > last) return `Page ${page} does not exist: the last page is ${last} · ${total} ranked`;
-  return `Page ${page} of ${last} · ${total} ranked`;
+  if (page > last) return `Page ${page} does not exist: the last page is ${last} · ${counted(total)}`;
+  return `Page ${page} of ${last} · ${counted(total)}`;
 }
 
 /** A file size as people read it: "812 bytes", "48.2 KB", "1.9 MB" (1 KB = 1024 bytes, as file managers show it). */

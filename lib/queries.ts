@@ -1,4 +1,5 @@
 /** Read models for the entrant's overview and the public season lists. */
+import 'server-only';
 import { Op } from 'sequelize';
 import { ContestClass, Entry, Machine, Season } from '@/models';
 

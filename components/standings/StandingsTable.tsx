@@ -1,17 +1,19 @@
 'use client';
 /**
  * The standings table: @tanstack/react-table in manual mode — sorting, filtering and paging run on
- * the server through /api/v1/…/standings, and the URL holds the table state so a link reproduces
- * the view. A row with several verified prints expands to show the entrant's other prints.
+ * the server through /api/v1/…/standings, and the URL holds the table state (nuqs, shallow: the
+ * page is not rendered again, the table fetches its rows) so a link reproduces the view. A row with several verified prints expands to show the entrant's other prints.
  */
 import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import Link from 'next/link';
-import { usePathname, useRouter, useSearchParams } from 'next/navigation';
+import { parseAsString, useQueryStates } from 'nuqs';
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
-import type { StandingsPage, StandingsRow } from '@/lib/standings/query';
+import type { PublicStandingsRow as StandingsRow } from '@/lib/standings/estimate';
+import { formatOverEstimate, OVER_ESTIMATE_EXPLANATION, OVER_ESTIMATE_LABEL } from '@/lib/standings/estimate';
+import type { PublicStandingsPage as StandingsPage } from '@/lib/standings/views';
 import { formatDate, formatDurationMs, formatNumber, formatPageStatus } from '@/lib/format';
 
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
@@ -43,14 +45,16 @@ interface OlderRun {
   date: string | null;
 }
 
-/** Columns left out on a phone, so rank, entrant, machine and time fit the screen (the entry page and the CSV have the rest). */
-const PHONE_HIDDEN = new Set(['motion', 'material', 'nozzle_mm', 'peak_flow_mm3s', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
+/** Columns left out on a phone, so rank, entrant and time lead and fit the screen (the entry page and the CSV have the rest). */
+const PHONE_HIDDEN = new Set(['over_estimate_percent', 'machine', 'motion', 'material', 'nozzle_mm', 'peak_flow_mm3s', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
+
+/** The URL parameters the table keeps (the API's names); validated by the shared zod schema, not here. */
+const URL_KEYS = ['page', 'per_page', 'sort', 'material', 'motion', 'q'] as const;
+const URL_STATE = Object.fromEntries(URL_KEYS.map((k) => [k, parseAsString])) as Record<(typeof URL_KEYS)[number], typeof parseAsString>;
 
 export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
-  const router = useRouter();
-  const pathname = usePathname();
-  const searchParams = useSearchParams();
-  const search = searchParams.toString();
+  const [urlState, setUrlState] = useQueryStates(URL_STATE, { history: 'push', scroll: false, shallow: true });
+  const search = new URLSearchParams(Object.entries(urlState).filter((e): e is [string, string] => e[1] != null)).toString();
   const query: StandingsQuery = useMemo(() => {
     try {
       return parseStandingsQuery(new URLSearchParams(search));
@@ -87,10 +91,10 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
   const navigate = useCallback(
     (patch: Partial<StandingsQuery>) => {
       const next = { ...query, ...patch };
-      const qs = standingsSearchParams(next).toString();
-      router.push(qs ? `${pathname}?${qs}` : pathname, { scroll: false });
+      const qs = standingsSearchParams(next);
+      void setUrlState(Object.fromEntries(URL_KEYS.map((k) => [k, qs.get(k)])));
     },
-    [query, pathname, router],
+    [query, setUrlState],
   );
 
   // Search as you type, a moment after the last key.
@@ -134,11 +138,21 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
           </div>
         ),
       }),
+      col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
+      col.accessor('over_estimate_percent', {
+        header: () => (
+          <span title={OVER_ESTIMATE_EXPLANATION} className="cursor-help underline decoration-dotted underline-offset-2">
+            {OVER_ESTIMATE_LABEL}
+            <span className="sr-only">: {OVER_ESTIMATE_EXPLANATION}</span>
+          </span>
+        ),
+        enableSorting: false,
+        cell: (c) => <span className="num" title={c.row.original.estimated_time_s != null ? `Estimate ${formatDurationMs(c.row.original.estimated_time_s * 1000)}` : 'No finished inspection'}>{formatOverEstimate(c.getValue())}</span>,
+      }),
       col.accessor('machine', { header: 'Machine', cell: (c) => <Link href={`/machines/${c.row.original.machine_id}`}>{c.getValue()}</Link> }),
       col.accessor('motion', { header: 'Motion', enableSorting: false, cell: (c) => motionLabel(c.getValue()) }),
       col.accessor('material', { header: 'Material', enableSorting: false, cell: (c) => materialLabel(c.getValue()) }),
       col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),
-      col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
       col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
       col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
       col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),

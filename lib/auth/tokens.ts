@@ -2,6 +2,7 @@
  * One-time links. The token (32 random bytes, base64url → 43 chars) goes only into the e-mail; the
  * database keeps its SHA-256, so a leaked database cannot be turned into working links.
  */
+import 'server-only';
 import crypto from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
 import { AuthToken } from '@/models';

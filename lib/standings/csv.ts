@@ -1,5 +1,6 @@
 /** Standings as CSV (RFC 4180: CRLF line ends, fields with comma, quote or line break in quotes). */
 import type { StandingsRow } from './query';
+import type { PublicStandingsRow } from './estimate';
 
 export const CSV_COLUMNS = [
   'rank', 'entry_id', 'entrant', 'machine', 'motion', 'material', 'nozzle_mm', 'time_ms',
@@ -14,9 +15,24 @@ export function csvField(v: unknown): string {
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
-export function standingsCsv(rows: StandingsRow[]): string {
-  const lines = [CSV_COLUMNS.join(',')];
-  for (const r of rows) lines.push(CSV_COLUMNS.map((c) => csvField(r[c])).join(','));
+/** Added after the ranked row's columns, so readers keyed on the first columns keep working. */
+export const ESTIMATE_COLUMNS = ['estimated_time_s', 'over_estimate_percent'] as const satisfies readonly (keyof PublicStandingsRow)[];
+
+const cellsOf = (r: StandingsRow | PublicStandingsRow) => [
+  ...CSV_COLUMNS.map((c) => csvField(r[c])),
+  ...ESTIMATE_COLUMNS.map((c) => csvField((r as Partial<PublicStandingsRow>)[c])),
+];
+
+export function standingsCsv(rows: (StandingsRow | PublicStandingsRow)[]): string {
+  const lines = [[...CSV_COLUMNS, ...ESTIMATE_COLUMNS].join(',')];
+  for (const r of rows) lines.push(cellsOf(r).join(','));
+  return lines.join('\r\n') + '\r\n';
+}
+
+/** A whole season in one file: every class's standings, one class after another, class columns first. */
+export function seasonResultsCsv(classes: { class: { slug: string; name: string }; rows: PublicStandingsRow[] }[]): string {
+  const lines = [['class', 'class_name', ...CSV_COLUMNS, ...ESTIMATE_COLUMNS].join(',')];
+  for (const c of classes) for (const r of c.rows) lines.push([csvField(c.class.slug), csvField(c.class.name), ...cellsOf(r)].join(','));
   return lines.join('\r\n') + '\r\n';
 }
 

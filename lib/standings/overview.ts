@@ -6,17 +6,9 @@ import { DEFAULT_QUERY } from './params';
 import { classRef, findSeason, seasonClasses, type ClassStandings } from './views';
 import { isoDate, standingsPage, type StandingsRow } from './query';
 
-/**
- * A round bin width near `raw` (1, 2 or 5 × 10ⁿ): Heckbert's "nice numbers" for graph labels
- * (Graphics Gems, 1990), which keeps histogram edges at readable times.
- */
-export function niceStep(raw: number): number {
-  if (!(raw > 0) || !Number.isFinite(raw)) return 1;
-  const exp = Math.floor(Math.log10(raw));
-  const f = raw / 10 ** exp;
-  const nice = f <= 1 ? 1 : f <= 2 ? 2 : f <= 5 ? 5 : 10;
-  return nice * 10 ** exp;
-}
+/** Round bin widths (1, 2 or 5 × 10ⁿ) keep histogram edges at readable times; one definition for bins and axes. */
+import { niceStep } from '@/lib/charts/niceTicks';
+export { niceStep };
 
 export interface HistogramBin {
   from_s: number;

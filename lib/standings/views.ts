@@ -11,11 +11,13 @@ import { parseJsonColumn } from '@/lib/dbDialect';
 import { badRequest, notFound } from '@/lib/errors';
 import { ruleSentence, RuleSchema } from '@/lib/inspection/rules';
 import { ensureFrozen, isFrozenState } from './freeze';
-import { isoDate, ranksOf, runFields, standingsPage, type ClassRef, type StandingsPage } from './query';
+import { isoDate, ranksOf, runFields, standingsPage, type ClassRef, type StandingsPage, type StandingsRow } from './query';
 import type { StandingsQuery } from './params';
 import { inspectionSummary, flowSeriesPoints, type FlowSeries } from './summary';
 import { latestReinspection } from '@/lib/reviews/reinspection';
 import { readStoredReport } from '@/lib/inspection/contract';
+import { overEstimatePercent, type PublicStandingsRow } from './estimate';
+import { DEFAULT_QUERY } from './params';
 
 const seq = () => getSequelize();
 const select = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>): Promise<T[]> =>
@@ -181,10 +183,35 @@ export async function seasonDetail(slug: string) {
   };
 }
 
+/** A standings page as published: rows carry the inspection's time estimate. */
+export interface PublicStandingsPage extends Omit<StandingsPage, 'rows'> {
+  rows: PublicStandingsRow[];
+}
+
 export interface ClassStandings {
   season: ReturnType<typeof seasonJson>;
   class: { slug: string; name: string; description: string };
-  page: StandingsPage;
+  page: PublicStandingsPage;
+}
+
+/**
+ * Adds each row's time estimate (the entry's newest finished inspection; the same inspection the
+ * live ranking reads its flow figures from). Looked up for the rows of the page only, in chunks.
+ */
+export async function withEstimates(rows: StandingsRow[]): Promise<PublicStandingsRow[]> {
+  const est = new Map<number, number | null>();
+  const ids = rows.map((r) => r.entry_id);
+  for (let i = 0; i < ids.length; i += 2000) {
+    const found = await select<{ entry_id: number; estimated_time_s: number | null }>(
+      `SELECT e.id AS entry_id, i.estimated_time_s FROM entries e ${LATEST_INSPECTION} WHERE e.id IN (:ids)`,
+      { ids: ids.slice(i, i + 2000) },
+    );
+    for (const f of found) est.set(f.entry_id, f.estimated_time_s);
+  }
+  return rows.map((r) => {
+    const e = est.get(r.entry_id) ?? null;
+    return { ...r, estimated_time_s: e, over_estimate_percent: overEstimatePercent(r.time_ms, e) };
+  });
 }
 
 export async function classStandings(seasonSlug: string, classSlug: string, q: StandingsQuery, opts: { all?: boolean } = {}): Promise<ClassStandings> {
@@ -192,7 +219,19 @@ export async function classStandings(seasonSlug: string, classSlug: string, q: S
   const cls = await findClass(season, classSlug);
   const ref = await classRef(season, cls);
   const page = await standingsPage(ref, q, opts);
-  return { season: seasonJson(season), class: { slug: cls.slug, name: cls.name, description: cls.description }, page };
+  return { season: seasonJson(season), class: { slug: cls.slug, name: cls.name, description: cls.description }, page: { ...page, rows: await withEstimates(page.rows) } };
+}
+
+/** Every class's whole standings of one published season, in the classes' display order. */
+export async function seasonResults(seasonSlug: string) {
+  const season = await findSeason(seasonSlug);
+  const classes = await seasonClasses(season.id);
+  const out: { class: { slug: string; name: string }; rows: PublicStandingsRow[] }[] = [];
+  for (const cls of classes) {
+    const page = await standingsPage(await classRef(season, cls), DEFAULT_QUERY, { all: true });
+    out.push({ class: { slug: cls.slug, name: cls.name }, rows: await withEstimates(page.rows) });
+  }
+  return { season: seasonJson(season), classes: out };
 }
 
 interface EntryFigures {
@@ -381,6 +420,18 @@ interface HistoryRow extends EntryFigures {
   class_name: string;
   entrant_id: number;
   entrant_name: string;
+  piece_name: string | null;
+  piece_sha256: string | null;
+  piece_x_mm: number | null;
+  piece_y_mm: number | null;
+  piece_z_mm: number | null;
+}
+
+/** Which test piece a season used: the same STL (by content) in several seasons is one piece. */
+function pieceOf(r: HistoryRow): { key: string; name: string } | null {
+  if (r.piece_name == null) return null;
+  const size = [r.piece_x_mm, r.piece_y_mm, r.piece_z_mm].map((v) => (v == null ? '?' : Number(v).toFixed(2))).join('×');
+  return { key: r.piece_sha256 ? r.piece_sha256.slice(0, 16) : `${r.piece_name}|${size}`, name: r.piece_name };
 }
 
 export interface HistoryEntry {
@@ -389,6 +440,8 @@ export interface HistoryEntry {
   class: { slug: string; name: string };
   entrant: { id: number; name: string };
   machine: { id: number; name: string };
+  /** The season's test piece; times are comparable only within one piece. */
+  test_piece: { key: string; name: string } | null;
   time_ms: number;
   rank: number | null;
   material: string;
@@ -400,8 +453,10 @@ async function history(where: string, id: number): Promise<HistoryEntry[]> {
   const rows = await select<HistoryRow>(
     `SELECT e.id, e.season_id, e.class_id, e.entrant_id, u.name AS entrant_name, e.claimed_time_ms, e.submitted_at, e.decided_at, e.material_family, e.nozzle_mm,
             e.machine_id, m.name AS machine_name, m.motion_system, i.peak_flow_mm3s, i.p95_flow_mm3s, i.layer_height_mm,
-            s.slug AS season_slug, s.name AS season_name, s.state AS season_state, s.opens_at, c.slug AS class_slug, c.name AS class_name
+            s.slug AS season_slug, s.name AS season_name, s.state AS season_state, s.opens_at, c.slug AS class_slug, c.name AS class_name,
+            tp.name AS piece_name, tp.size_x_mm AS piece_x_mm, tp.size_y_mm AS piece_y_mm, tp.size_z_mm AS piece_z_mm, sf.sha256 AS piece_sha256
      FROM entries e JOIN users u ON u.id = e.entrant_id JOIN machines m ON m.id = e.machine_id JOIN seasons s ON s.id = e.season_id JOIN classes c ON c.id = e.class_id
+     LEFT JOIN test_pieces tp ON tp.season_id = s.id LEFT JOIN stored_files sf ON sf.id = tp.stored_file_id
      ${LATEST_INSPECTION}
      WHERE ${where} = ? AND e.state = 'verified' AND s.state <> 'draft'
      ORDER BY s.opens_at DESC, c.display_order, e.claimed_time_ms, e.id
@@ -422,6 +477,7 @@ async function history(where: string, id: number): Promise<HistoryEntry[]> {
     class: { slug: r.class_slug, name: r.class_name },
     entrant: { id: r.entrant_id, name: r.entrant_name },
     machine: { id: r.machine_id, name: r.machine_name },
+    test_piece: pieceOf(r),
     time_ms: r.claimed_time_ms,
     rank: ranks.get(r.id) ?? null,
     material: r.material_family,
@@ -430,7 +486,7 @@ async function history(where: string, id: number): Promise<HistoryEntry[]> {
   }));
 }
 
-/** One point per season and class: the entrant's best verified time there. */
+/** One point per season and class: the entrant's best verified time there, with the season's test piece (the chart draws one line per piece). */
 export function bestPerSeason(entries: HistoryEntry[]) {
   const best = new Map<string, HistoryEntry>();
   for (const e of entries) {
@@ -440,7 +496,7 @@ export function bestPerSeason(entries: HistoryEntry[]) {
   }
   return [...best.values()]
     .sort((a, b) => String(a.season.opens_at).localeCompare(String(b.season.opens_at)))
-    .map((e) => ({ season: e.season.name, opens_at: e.season.opens_at, class: e.class.name, time_s: e.time_ms / 1000, rank: e.rank }));
+    .map((e) => ({ season: e.season.name, opens_at: e.season.opens_at, class: e.class.name, piece: e.test_piece ?? { key: 'none', name: 'no published test piece' }, time_s: e.time_ms / 1000, rank: e.rank }));
 }
 
 export async function entrantHistory(id: number) {

@@ -13,6 +13,7 @@
  * - nobody else: 404 with one sentence, whatever the reason, so sequential ids say nothing about
  *   which files exist.
  */
+import 'server-only';
 import { Readable } from 'node:stream';
 import { Entry, Season, SeasonJudge, StoredFile, TestPiece } from '@/models';
 import { notFound } from '@/lib/errors';

@@ -111,6 +111,13 @@ test('an admin makes a user a judge and the audit log shows it', async ({ page }
   await expect(row.getByRole('status')).toHaveText('Saved');
   await page.goto('/admin/audit');
   const entry = page.getByRole('row').filter({ hasText: 'user.roles_changed' }).first();
-  await expect(entry).toContainText('"after":["entrant","judge"]');
-  await expect(entry).toContainText('Rowan Pike');
+  // A sentence, not the stored JSON.
+  await expect(entry).toContainText('Rowan Pike changed Pim Okafor’s roles from Entrant to Entrant, Judge.');
+  await expect(entry).not.toContainText('"after"');
+  // Filter by action: only role changes remain; the filter is in the address.
+  await page.getByLabel('Action').selectOption('user.roles_changed');
+  await expect(page).toHaveURL(/action=user\.roles_changed/);
+  await expect(page.getByTestId('audit-row').first()).toContainText('Roles changed');
+  await expect(page.locator('[aria-busy="true"]')).toHaveCount(0);
+  for (const row of await page.getByTestId('audit-row').all()) await expect(row).toContainText('user.roles_changed');
 });

@@ -44,7 +44,7 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   await page.getByLabel('Material').selectOption('pla');
   await expect(page).toHaveURL(/material=pla/);
   await expect(page.getByTestId('page-status')).toHaveText(/15 ranked/);
-  const materials = (await tableRows(page)).map((r) => r.cells[4]);
+  const materials = (await tableRows(page)).map((r) => r.cells[6]);
   expect(new Set(materials)).toEqual(new Set(['PLA']));
 
   // Sort by peak flow: highest first on the first click.
@@ -52,7 +52,7 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   await expect(page).toHaveURL(/sort=-peak_flow/);
   await expect(page.getByRole('columnheader', { name: /Peak flow/ })).toHaveAttribute('aria-sort', 'descending');
   await expect.poll(async () => {
-    const peaks = (await tableRows(page)).map((r) => Number(r.cells[7]));
+    const peaks = (await tableRows(page)).map((r) => Number(r.cells[8]));
     return peaks.length > 1 && peaks.every((p, i) => i === 0 || peaks[i - 1] >= p);
   }).toBe(true);
 
@@ -85,8 +85,8 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   expect(csv).toHaveLength(15);
   const onScreen = csv.slice(10, 15);
   expect(onScreen.map((r) => Number(r[1]))).toEqual(shown.map((r) => r.entry));
-  expect(onScreen.map((r) => [r[0], r[2], r[3]])).toEqual(shown.map((r) => [r.cells[0], r.cells[1], r.cells[2]]));
-  expect(onScreen.map((r) => Number(r[8]).toFixed(1))).toEqual(shown.map((r) => r.cells[7]));
+  expect(onScreen.map((r) => [r[0], r[2], r[3]])).toEqual(shown.map((r) => [r.cells[0], r.cells[1], r.cells[4]]));
+  expect(onScreen.map((r) => Number(r[8]).toFixed(1))).toEqual(shown.map((r) => r.cells[8]));
 });
 
 test('older prints open under the row, and the entry, entrant and machine pages follow', async ({ page }) => {

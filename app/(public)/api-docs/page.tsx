@@ -99,6 +99,15 @@ export default async function ApiDocsPage() {
       </section>
 
       <section>
+        <h2><code>GET /api/v1/seasons/{'{season}'}/results</code></h2>
+        <p className="text-ink-700">
+          The whole season in one CSV file: every class’s standings one after another, with <code>class</code> and <code>class_name</code> columns first, then the columns of a class’s CSV.
+          <code> estimated_time_s</code> is the inspection’s estimate of the time the G-code needs; <code>over_estimate_percent</code> how much longer the claimed time is. No parameters.
+        </p>
+        <p className="mt-2 text-sm text-ink-700">Example: <a href={`/api/v1/seasons/${s}/results`}><code>/api/v1/seasons/{s}/results</code></a></p>
+      </section>
+
+      <section>
         <h2><code>GET /api/v1/entries/{'{id}'}</code></h2>
         <p className="text-ink-700">A verified entry with its machine, rank, inspection figures, a plain-words summary and the flow time series. Unverified entries answer 404. Photos: <code>GET /api/v1/entries/{'{id}'}/photos/{'{photo_id}'}</code>.</p>
         {ex?.entry && <Example data={ex.entry} />}

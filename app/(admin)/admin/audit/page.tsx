@@ -1,31 +1,33 @@
 import { requirePageRole } from '@/lib/auth/guard';
-import { listAudit } from '@/lib/admin';
-import { formatDateTime } from '@/lib/format';
+import { listAudit, parseAuditQuery, type AuditQuery } from '@/lib/admin';
+import { HttpError } from '@/lib/errors';
+import { AuditTable } from '@/components/admin/AuditTable';
 
 export const metadata = { title: 'Audit log' };
 
-export default async function AuditPage() {
+type Props = { searchParams: Promise<Record<string, string | string[] | undefined>> };
+
+export default async function AuditPage({ searchParams }: Props) {
   await requirePageRole('/admin/audit', 'admin');
-  const events = await listAudit();
+  let q: AuditQuery = {};
+  let queryError: string | null = null;
+  try {
+    q = parseAuditQuery(await searchParams);
+  } catch (err) {
+    if (!(err instanceof HttpError)) throw err;
+    queryError = err.message;
+  }
+  const initial = await listAudit(q);
   return (
     <div className="space-y-6">
-      <h1>Audit log</h1>
-      <section className="card overflow-x-auto">
-        <table className="table">
-          <thead><tr><th>When</th><th>Who</th><th>Action</th><th>Subject</th><th>Details</th></tr></thead>
-          <tbody>
-            {events.map((e) => (
-              <tr key={e.id}>
-                <td className="whitespace-nowrap">{formatDateTime(e.createdAt)}</td>
-                <td>{e.actor}</td>
-                <td className="font-mono text-xs">{e.action}</td>
-                <td>{e.subject}</td>
-                <td className="font-mono text-xs">{JSON.stringify(e.details)}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </section>
+      <header className="space-y-1">
+        <h1>Audit log</h1>
+        <p className="text-sm text-ink-600">
+          Who did what, newest first. Times in UTC; the address is the client’s as the trusted proxy reported it (empty when the app runs without one).
+        </p>
+      </header>
+      {queryError && <p role="alert" className="field-error">{queryError} Showing the whole log.</p>}
+      <AuditTable initial={initial} />
     </div>
   );
 }

@@ -44,7 +44,7 @@ export default async function SeasonPage({ params }: { params: Promise<{ slug: s
       )}
       <section>
         <h2 className="mb-3">Classes</h2>
-        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/overview`}>Season overview charts</Link></p>
+        <p className="mb-3 text-sm"><Link href={`/seasons/${season.slug}/overview`}>Season overview charts</Link> · <a href={`/api/v1/seasons/${season.slug}/results`} download data-testid="season-results-csv">Download all classes’ results (CSV)</a></p>
         <ul className="grid gap-4 sm:grid-cols-3">
           {classes.map((c) => (
             <li key={c.id} className="card">

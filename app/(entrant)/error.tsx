@@ -1,0 +1,6 @@
+'use client';
+import { PageError } from '@/components/RouteStates';
+
+export default function ErrorPage({ error, reset }: { error: Error & { digest?: string }; reset: () => void }) {
+  return <PageError error={error} reset={reset} what="your entries" home="/me" />;
+}
