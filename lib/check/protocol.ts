@@ -10,7 +10,7 @@ export interface CheckRequest {
   file: Blob;
   name: string;
   /** Options the engine takes that can cross to a worker (rules, rule context, claims, diameter, material). */
-  options: Omit<InspectOptions, 'sinks' | 'name' | 'preview' | 'toolpathAnalyzer'>;
+  options: Omit<InspectOptions, 'sinks' | 'name' | 'preview'>;
 }
 
 export type CheckMessage =
