@@ -19,8 +19,6 @@ export const OUT_DIR = join(ROOT, '.hotlap', 'engine');
 /**
  * The engine's bundles (`outDir` when not OUT_DIR).
  *  - inspect-cli: `npm run inspect -- FILE` (lib/inspection/cli.ts), Node, CommonJS.
- *  - toolpath-thread: the CLI's second thread for the toolpath-settings analysis
- *    (lib/inspection/toolpathThread.ts), found beside inspect-cli.cjs.
  *  - inspect-worker: the inspection pool's worker thread (lib/jobs/pool.ts), Node, CommonJS.
  *  - worker: `npm run worker` (scripts/worker.ts), the inspection worker process, Node, CommonJS.
  *    `external`: its packages (the ORM, database drivers, pg-boss) load from node_modules at run time.
@@ -29,7 +27,6 @@ export const OUT_DIR = join(ROOT, '.hotlap', 'engine');
  */
 export const ENTRIES = [
   { name: 'inspect-cli', source: 'lib/inspection/cli.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
-  { name: 'toolpath-thread', source: 'lib/inspection/toolpathThreadEntry.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'inspect-worker', source: 'lib/jobs/inspect-worker.ts', platform: 'node', format: 'cjs', ext: 'cjs' },
   { name: 'worker', source: 'scripts/worker.ts', platform: 'node', format: 'cjs', ext: 'cjs', external: true },
   { name: 'gcode-check', source: 'lib/check/checkWorker.ts', platform: 'browser', format: 'iife', ext: 'js', outDir: join(ROOT, 'public', 'engine') },

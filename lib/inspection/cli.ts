@@ -3,23 +3,12 @@
  *                                       [--material pla] [--json]
  * Exit 0 with a report; exit 2 with one line on stderr when the file (or an option) cannot be used.
  */
-import { existsSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
-import { join } from 'node:path';
 import { inspectFile } from './inspect';
 import { toJsonReport, type EngineReport } from './report';
 import { RulebookSchema, type Rule, type RuleResult } from './rules';
 import { MATERIAL_FAMILIES, isMaterialFamily } from './materials';
 import { runInspectionMain, firstLine, type InspectionMainContext } from './main';
-import { createToolpathSettingsThread } from './toolpathThread';
-import type { ToolpathSettingsOptions } from './toolpathSettings';
-
-/**
- * The toolpath analysis on a second core when its bundle sits beside this one (npm run
- * build:engine builds both); run from source (tsx) it stays on this thread. Same report either way.
- */
-const TOOLPATH_THREAD = join(__dirname, 'toolpath-thread.cjs');
-const toolpathAnalyzer = existsSync(TOOLPATH_THREAD) ? (o: ToolpathSettingsOptions) => createToolpathSettingsThread(o, TOOLPATH_THREAD) : undefined;
 
 const USAGE = 'usage: npm run inspect -- FILE [--rules rules.json] [--filament-diameter 1.75] [--material pla] [--json]';
 
@@ -168,7 +157,6 @@ async function main(ctx: InspectionMainContext): Promise<number> {
     filamentDiameterMm: args.diameterMm,
     material: args.material as (typeof MATERIAL_FAMILIES)[number] | undefined,
     rules,
-    toolpathAnalyzer,
   });
   if (args.json) process.stdout.write(`${JSON.stringify(toJsonReport(report))}\n`);
   else process.stdout.write(`${textReport(report, report.rules)}\n`);

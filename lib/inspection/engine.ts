@@ -19,7 +19,7 @@ import { DEFAULT_MATERIAL_FAMILY, MATERIALS, type MaterialFamily } from './mater
 import { toJsonReport, type EngineReport, type ReportSettings } from './report';
 import type { InspectionReport, StoredInspectionJson } from './contract';
 import { PreviewCollector, type PreviewOptions } from './preview';
-import { createToolpathSettingsAnalyzer, type MeasuredSettings, type ToolpathSettingsAnalyzer, type ToolpathSettingsOptions } from './toolpathSettings';
+import { createToolpathSettingsAnalyzer, type MeasuredSettings, type ToolpathSettingsAnalyzer } from './toolpathSettings';
 import { evaluateRules, settingsMismatchFlags, type Rule } from './rules';
 import type { MetricContext } from './metrics';
 import { checkPlausibility, type PlausibilityClaims } from './plausibility';
@@ -46,11 +46,6 @@ export interface InspectOptions {
   skipToolpathSettings?: boolean;
   /** Build the judges' toolpath preview in the same pass (EngineReport.preview). */
   preview?: boolean | Omit<PreviewOptions, 'filamentDiameterMm' | 'parser'>;
-  /**
-   * Where the toolpath-settings analyzer runs: default on this thread; the Node CLI passes
-   * toolpathThread.ts's createToolpathSettingsThread to run it on a second core (same result).
-   */
-  toolpathAnalyzer?: (options: ToolpathSettingsOptions) => ToolpathSettingsAnalyzer;
 }
 
 /** What an inspection job keeps: the report contract, and the preview beside it (its own column). */
@@ -154,7 +149,7 @@ export function createInspector(options: InspectOptions = {}): Inspector {
   const declared = createDeclaredSettingsReader();
   const machine = new MachineState();
   const measure = new Measurements({ filamentDiameterMm: diameterMm, limits }, machine);
-  const toolpath = options.skipToolpathSettings ? null : (options.toolpathAnalyzer ?? createToolpathSettingsAnalyzer)({ filamentDiameterMm: diameterMm });
+  const toolpath = options.skipToolpathSettings ? null : createToolpathSettingsAnalyzer({ filamentDiameterMm: diameterMm });
   const previewOptions = options.preview ? (options.preview === true ? {} : options.preview) : null;
   const preview = previewOptions ? new PreviewCollector(diameterMm, previewOptions.maxPoints) : null;
   const fan = new Fanout(measure, toolpath, declared, preview ? [...(options.sinks ?? []), preview] : (options.sinks ?? []));
