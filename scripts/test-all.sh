@@ -30,8 +30,10 @@ fi
 npm run build:engine
 npx next build
 npx vitest run
-# The integration project again, on PostgreSQL (every test server gets a fresh database on a
-# throwaway cluster that the global setup starts). More settings for this run: one line each.
+# The integration project again, on PostgreSQL with S3-compatible storage: every test server gets
+# a fresh database on a throwaway cluster and its own prefix in a bucket of a local S3 fake
+# (s3rver), both started by the global setup. More settings for this run: one line each.
 HOTLAP_TEST_DB=postgres \
+HOTLAP_TEST_STORAGE=s3 \
   npx vitest run --project integration
 npx playwright test
