@@ -77,9 +77,13 @@ function forget(key: string) {
   kept.delete(key);
 }
 
-/** This server's own address (set by `next start`), not the Host header a visitor sent. */
-function ownOrigin(fallback: string): string {
-  return process.env.__NEXT_PRIVATE_ORIGIN || fallback;
+/**
+ * This server's own address (set by `next start` and `next dev`), never the Host header a visitor
+ * sent: a render asked of a visitor-named host would carry the render secret there. Unknown → no
+ * page cache (every request renders).
+ */
+function ownOrigin(): string | null {
+  return process.env.__NEXT_PRIVATE_ORIGIN || null;
 }
 
 interface Rendered extends Kept {
@@ -88,7 +92,7 @@ interface Rendered extends Kept {
 }
 
 async function render(key: string, version: number, origin: string): Promise<Rendered> {
-  const res = await fetch(ownOrigin(origin) + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(RENDER_TIMEOUT_MS) });
+  const res = await fetch(origin + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(RENDER_TIMEOUT_MS) });
   const html = await res.text();
   const nonce = res.headers.get('content-security-policy')?.match(/'nonce-([A-Za-z0-9+/=]+)'/)?.[1] ?? '';
   const keep = res.status === 200 && !!nonce && !!res.headers.get('content-type')?.startsWith('text/html') && !res.headers.has('set-cookie') && html.length <= KEPT_MAX_CHARS / 8;
@@ -110,6 +114,8 @@ async function render(key: string, version: number, origin: string): Promise<Ren
  * or the render for the cache failed (the caller then lets the request through to a normal render).
  */
 export async function keptPage(req: PageRequest & { url: string }, nonce: string): Promise<Response | null> {
+  const origin = ownOrigin();
+  if (origin === null) return null;
   const version = await standingsVersion();
   if (version === null) return null;
   const key = req.nextUrl.pathname + req.nextUrl.search;
@@ -122,7 +128,7 @@ export async function keptPage(req: PageRequest & { url: string }, nonce: string
     const flight = `${version}:${key}`;
     let p = rendering.get(flight);
     if (!p) {
-      p = render(key, version, new URL(req.url).origin).finally(() => rendering.delete(flight));
+      p = render(key, version, origin).finally(() => rendering.delete(flight));
       rendering.set(flight, p);
     }
     try {
