@@ -33,9 +33,10 @@ export const AuditQuerySchema = z
   .refine((q) => !q.from || !q.to || q.from <= q.to, { message: 'The end date is before the start date: swap them.', path: ['to'] });
 export type AuditQuery = z.infer<typeof AuditQuerySchema>;
 
+/** Midnight UTC of a YYYY-MM-DD day; null for a day the calendar lacks (Date rolls 02-30 over to March). */
 const dayStart = (d: string) => {
   const t = new Date(`${d}T00:00:00.000Z`);
-  return Number.isNaN(t.getTime()) ? null : t;
+  return Number.isNaN(t.getTime()) || t.toISOString().slice(0, 10) !== d ? null : t;
 };
 
 /**

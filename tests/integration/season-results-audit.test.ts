@@ -106,7 +106,7 @@ describe('audit log', () => {
   });
 
   it('refuses bad filters with a sentence naming them', async () => {
-    for (const [qs, re] of [['action=nope', /action must be one of/], ['from=2026-13-45', /not a real date/], ['per_page=7', /per_page must be one of/], ['from=2026-12-05&to=2026-12-01', /before the start date/], ['zzz=1', /Unknown parameter/]] as const) {
+    for (const [qs, re] of [['action=nope', /action must be one of/], ['from=2026-13-45', /not a real date/], ['to=2026-02-30', /not a real date/], ['per_page=7', /per_page must be one of/], ['from=2026-12-05&to=2026-12-01', /before the start date/], ['zzz=1', /Unknown parameter/]] as const) {
       const res = await admin.get(`/api/admin/audit?${qs}`);
       expect(res.status, qs).toBe(400);
       expect((await res.json()).error, qs).toMatch(re);
