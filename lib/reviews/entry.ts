@@ -118,7 +118,7 @@ export async function entryReview(judgeId: number, entryId: number, meta: { ip?:
       modifications: machine.modifications,
       isModified: machine.isModified,
     },
-    extrusionTests: tests.map((t) => ({ ...extrusionTestJson(t), matchesEntryMaterial: t.materialFamily === entry.materialFamily })),
+    extrusionTests: tests.map((t) => ({ ...extrusionTestJson(t, machine ? { maxSpeedMms: machine.maxSpeedMms } : null), matchesEntryMaterial: t.materialFamily === entry.materialFamily })),
     photos: photos.map((p) => {
       const t = thumbnailOf(p, thumbs);
       return {
