@@ -7,9 +7,8 @@
  * can fail.
  */
 import { describe, it, expect, inject, beforeAll } from 'vitest';
-import sqlite3 from 'sqlite3';
 import { Client } from '../support/client';
-import { sql } from '../support/db';
+import { sql, sqlTransaction } from '../support/db';
 import { DEMO_PASSWORD, demoEmail, freshEntrant } from '../support/demo';
 import { addPhoto, idOf, inspectEntryWithFixture, seasonId, sqlDate } from '../support/judging-fixtures';
 import { insertEntrant, insertEntry, insertInspection, insertMachine, insertSeason, setSeasonState } from '../support/standings-fixtures';
@@ -26,15 +25,6 @@ async function page(path: string, client = anonymous): Promise<{ status: number;
   return { status: res.status, html: await res.text() };
 }
 
-/** Several statements in one transaction (sqlite3's exec), for a write the triggers would count. */
-function exec(script: string): Promise<void> {
-  return new Promise((ok, fail) => {
-    const d = new sqlite3.Database(db);
-    d.configure('busyTimeout', 5000);
-    d.exec(script, (err) => d.close(() => (err ? fail(err) : ok())));
-  });
-}
-
 describe('kept page data', () => {
   it('is reused while the counter is unchanged, and reloaded as soon as it moves', async () => {
     const s = await insertSeason(db, { classes: ['open'] });
@@ -44,7 +34,7 @@ describe('kept page data', () => {
     const path = `/seasons/${s.slug}/classes/open`;
     expect((await page(path)).html).toContain('Ivo Marchetti-Kell');
     // A rename whose counter bump is taken back in the same transaction: invisible to the cache by design.
-    await exec(`BEGIN IMMEDIATE; UPDATE users SET name = 'Ivo Renamed' WHERE id = ${who}; UPDATE standings_version SET version = version - 1 WHERE id = 1; COMMIT;`);
+    await sqlTransaction(db, [`UPDATE users SET name = 'Ivo Renamed' WHERE id = ${who}`, 'UPDATE standings_version SET version = version - 1 WHERE id = 1']);
     const kept = await page(path);
     expect(kept.html).toContain('Ivo Marchetti-Kell');
     expect(kept.html).not.toContain('Ivo Renamed');

@@ -9,10 +9,11 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { sql } from '../support/db';
 import { testStorage } from '../support/storage';
+import { dataDirOf } from '../support/server';
 
 const base = inject('baseUrl');
 const dbFile = inject('dbFile');
-const dataDir = path.dirname(dbFile);
+const dataDir = dataDirOf(dbFile);
 const s3 = process.env.HOTLAP_TEST_STORAGE === 's3';
 
 describe(`stored files (${s3 ? 'S3 fake' : 'local disk'})`, () => {

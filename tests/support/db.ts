@@ -66,3 +66,22 @@ export function sql<T = Record<string, unknown>>(db: string, query: string, para
     });
   });
 }
+
+/** Several statements (no parameters) in one transaction, on either database: a write the triggers see as one. */
+export async function sqlTransaction(db: string, statements: string[]): Promise<void> {
+  if (/^postgres(ql)?:\/\//.test(db)) {
+    const client = new pg.Client({ connectionString: db });
+    await client.connect();
+    try {
+      await client.query(['BEGIN', ...statements, 'COMMIT'].join(';\n'));
+    } finally {
+      await client.end();
+    }
+    return;
+  }
+  await new Promise<void>((ok, fail) => {
+    const conn = new sqlite3.Database(db);
+    conn.configure('busyTimeout', 5000);
+    conn.exec(['BEGIN IMMEDIATE', ...statements, 'COMMIT'].join(';\n'), (err) => conn.close(() => (err ? fail(err) : ok())));
+  });
+}
