@@ -6,6 +6,7 @@ import { gunzipSync, gzipSync } from 'node:zlib';
 import sharp from 'sharp';
 import { signIn } from './helpers';
 import { sql } from '../support/db';
+import { waitForAccount } from '../support/demo';
 
 const FIXTURE = path.resolve(__dirname, '..', 'fixtures', 'gcode', 'prusa-beacon-020.gcode.gz');
 
@@ -16,6 +17,8 @@ test('an entrant fixes a blocked draft by editing its details on the draft page,
   const email = `draft.fixer.${Date.now()}@example.org`;
   const password = 'draft-fixer-password';
   expect((await page.request.post(`${baseURL}/api/account/signup`, { data: { name: 'Draft Fixer', email, password } })).status()).toBe(202);
+  // Sign-up writes the account just after answering (same timing for taken and new addresses).
+  await waitForAccount(dbFile, email);
   await sql(dbFile, "UPDATE users SET email_verified_at = '2026-11-01 00:00:00.000 +00:00' WHERE email = ?", [email]);
   await signIn(page, email, password);
 
