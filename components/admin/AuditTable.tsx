@@ -5,6 +5,7 @@
  */
 import { useEffect, useMemo, useState } from 'react';
 import { parseAsInteger, parseAsString, parseAsStringLiteral, useQueryStates } from 'nuqs';
+import { useJsonRead } from '@/components/useJsonRead';
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable } from '@tanstack/react-table';
 import { AUDIT_ACTIONS } from '@/lib/domain';
 import { AUDIT_ACTION_LABELS, AUDIT_PER_PAGE } from '@/lib/auditText';
@@ -30,27 +31,10 @@ export function AuditTable({ initial }: { initial: AuditLogPage }) {
     for (const [k, v] of Object.entries(q)) if (v != null && v !== '') p.set(k, String(v));
     return p.toString();
   }, [q]);
-  const [data, setData] = useState(initial);
-  const [loadedKey, setLoadedKey] = useState(key);
-  const [error, setError] = useState<string | null>(null);
+  const [initialKey] = useState(key);
+  const { data, error, loading } = useJsonRead<AuditLogPage>(`/api/admin/audit?${key}`, initial, `/api/admin/audit?${initialKey}`);
   const [actorText, setActorText] = useState(q.actor ?? '');
 
-  useEffect(() => {
-    if (key === loadedKey) return;
-    const ctrl = new AbortController();
-    fetch(`/api/admin/audit?${key}`, { signal: ctrl.signal })
-      .then(async (res) => {
-        const body = await res.json();
-        if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
-        setData(body);
-        setLoadedKey(key);
-        setError(null);
-      })
-      .catch((err) => {
-        if (!ctrl.signal.aborted) setError(err instanceof Error ? err.message : String(err));
-      });
-    return () => ctrl.abort();
-  }, [key, loadedKey]);
 
   const columns = useMemo(
     () => [
@@ -106,7 +90,6 @@ export function AuditTable({ initial }: { initial: AuditLogPage }) {
     },
   });
   const filter = (patch: Partial<typeof q>) => void setQ({ ...patch, page: null });
-  const loading = key !== loadedKey && !error;
 
   return (
     <section aria-label="Audit events" className="space-y-4">

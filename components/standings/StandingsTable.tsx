@@ -7,6 +7,7 @@
 import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import Link from 'next/link';
 import { parseAsString, useQueryStates } from 'nuqs';
+import { useJsonRead } from '@/components/useJsonRead';
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
@@ -63,30 +64,12 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
     }
   }, [search]);
   const api = `/api/v1/seasons/${seasonSlug}/classes/${classSlug}/standings`;
-  const [data, setData] = useState<StandingsPage>(initial);
-  const [loadedKey, setLoadedKey] = useState(initialKey);
-  const [error, setError] = useState<string | null>(null);
   const [qText, setQText] = useState(query.q ?? '');
   const [older, setOlder] = useState<Record<number, OlderRun[] | 'loading' | string>>({});
   const [copied, setCopied] = useState(false);
   const key = standingsSearchParams(query).toString();
 
-  useEffect(() => {
-    if (key === loadedKey) return;
-    const ctrl = new AbortController();
-    fetch(`${api}?${key}`, { signal: ctrl.signal })
-      .then(async (res) => {
-        const body = await res.json();
-        if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
-        setData(body);
-        setLoadedKey(key);
-        setError(null);
-      })
-      .catch((err) => {
-        if (!ctrl.signal.aborted) setError(err instanceof Error ? err.message : String(err));
-      });
-    return () => ctrl.abort();
-  }, [api, key, loadedKey, query]);
+  const { data, error, loading } = useJsonRead<StandingsPage>(`${api}?${key}`, initial, `${api}?${initialKey}`);
 
   const navigate = useCallback(
     (patch: Partial<StandingsQuery>) => {
@@ -188,7 +171,6 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
   const sortableIds = new Set(Object.keys(SORTABLE));
 
   const csvHref = `${api}?${standingsSearchParams(query, { format: 'csv', withPaging: false }).toString()}`;
-  const loading = key !== loadedKey && !error;
 
   return (
     <section aria-label="Standings" className="space-y-4">
