@@ -39,7 +39,7 @@ function forEachRecord(layer: PreviewLayer, fn: (k: number, bucket: number, star
 /** What a mode needs to colour a record: a band index per record (-1 = no value) and the legend. */
 export interface ModeScale {
   /** Band edges for speed/width/layer time; the flow mode uses the stored buckets. */
-  edges: number[];
+  edges: readonly number[];
   colour: (band: number) => string;
   /** Band of record k of layer li, -1 when the record has no value. */
   bandOf: (li: number, k: number, bucket: number) => number;

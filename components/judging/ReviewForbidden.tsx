@@ -2,6 +2,7 @@
 /** The review page's 403 screen: the reason the layout found (own entry, conflict of interest), else the role sentence. */
 import Link from 'next/link';
 import { createContext, useContext } from 'react';
+import Forbidden from '@/app/forbidden';
 
 const DenialContext = createContext<string | null>(null);
 
@@ -11,15 +12,7 @@ export function DenialProvider({ reason, children }: { reason: string | null; ch
 
 export function ReviewForbidden() {
   const reason = useContext(DenialContext);
-  if (!reason) {
-    return (
-      <div className="mx-auto max-w-md card text-center" data-testid="forbidden">
-        <h1 className="mb-2">Not for your role</h1>
-        <p className="text-ink-600">Your account does not have the role this page needs. If you think it should, ask an admin.</p>
-        <p className="mt-4"><Link href="/">Back to the start</Link></p>
-      </div>
-    );
-  }
+  if (!reason) return <Forbidden />;
   return (
     <div className="mx-auto max-w-md card text-center" data-testid="forbidden">
       <h1 className="mb-2">You cannot judge this entry</h1>
