@@ -26,7 +26,7 @@ const ROOT = path.resolve(__dirname, '..');
 const VIEWS = ['', '?page=40', '?sort=-peak_flow', '?material=petg&motion=corexy', '?q=heron'];
 
 /** Demo data on a new PostgreSQL database, then `entries` generated entries (one entrant per ten). */
-async function generatePostgres(clusterUrl: string, entries: number, port: number): Promise<Generated & { url: string }> {
+export async function generatePostgres(clusterUrl: string, entries: number, port: number): Promise<Generated & { url: string }> {
   const t0 = Date.now();
   const name = `hotlap_bench_${Date.now().toString(36)}`;
   const at = (db: string) => Object.assign(new URL(clusterUrl), { pathname: `/${db}` }).toString();
@@ -189,7 +189,8 @@ async function main() {
   for (const r of rows) console.log(r.db.padEnd(12) + String(r.entries).padStart(9) + '  ' + r.view.padEnd(32) + r.p50.toFixed(1).padStart(8) + r.p95.toFixed(1).padStart(8) + String(r.total).padStart(8));
 }
 
-main().then(
+// Run only as a script (the generator is imported by other tools).
+if (process.argv[1] && path.resolve(process.argv[1]) === __filename) main().then(
   () => process.exit(0),
   (err) => {
     console.error(err instanceof Error ? err.stack : err);
