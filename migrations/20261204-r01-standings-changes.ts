@@ -22,11 +22,13 @@ const BUMP = 'UPDATE standings_version SET version = version + 1 WHERE id = 1';
 const PRUNE = `DELETE FROM standings_changes WHERE version <= (SELECT version FROM standings_version WHERE id = 1) - ${STANDINGS_CHANGES_KEPT}`;
 const COLUMNS = 'INSERT INTO standings_changes (version, kind, ref_id, entrant_id, season_id, class_id)';
 /** An entry row (NEW/OLD of entries): its entrant in its season and class. */
-const logEntry = (ref: 'NEW' | 'OLD') =>
-  `${COLUMNS} SELECT v.version, 'entry', ${ref}.id, ${ref}.entrant_id, ${ref}.season_id, ${ref}.class_id FROM standings_version v WHERE v.id = 1`;
+const logEntry = (ref: 'NEW' | 'OLD', onlyIf = '') =>
+  `${COLUMNS} SELECT v.version, 'entry', ${ref}.id, ${ref}.entrant_id, ${ref}.season_id, ${ref}.class_id FROM standings_version v WHERE v.id = 1${onlyIf}`;
+/** An update's old row matters only when it named another entrant, season or class (none of them NULL). */
+const MOVED = ' AND (OLD.entrant_id <> NEW.entrant_id OR OLD.season_id <> NEW.season_id OR OLD.class_id <> NEW.class_id)';
 /** The entry an inspection row (NEW/OLD of inspections) belongs to. */
-const logInspected = (ref: 'NEW' | 'OLD') =>
-  `${COLUMNS} SELECT v.version, 'entry', e.id, e.entrant_id, e.season_id, e.class_id FROM standings_version v JOIN entries e ON e.id = ${ref}.entry_id WHERE v.id = 1`;
+const logInspected = (ref: 'NEW' | 'OLD', onlyIf = '') =>
+  `${COLUMNS} SELECT v.version, 'entry', e.id, e.entrant_id, e.season_id, e.class_id FROM standings_version v JOIN entries e ON e.id = ${ref}.entry_id WHERE v.id = 1${onlyIf}`;
 const logRef = (kind: 'entrant' | 'machine') => `${COLUMNS} SELECT v.version, '${kind}', NEW.id, NULL, NULL, NULL FROM standings_version v WHERE v.id = 1`;
 
 const verifiedEntry = (ref: 'NEW' | 'OLD') => `EXISTS (SELECT 1 FROM entries e WHERE e.id = ${ref}.entry_id AND e.state = 'verified')`;
@@ -37,10 +39,10 @@ const verifiedEntry = (ref: 'NEW' | 'OLD') => `EXISTS (SELECT 1 FROM entries e W
  */
 export const LOGGING_TRIGGERS: [name: string, event: string, statements: string[], when?: string][] = [
   ['standings_bump_entries_ins', 'AFTER INSERT ON entries', [BUMP, logEntry('NEW'), PRUNE], "NEW.state = 'verified'"],
-  ['standings_bump_entries_upd', 'AFTER UPDATE ON entries', [BUMP, logEntry('NEW'), logEntry('OLD'), PRUNE], "OLD.state = 'verified' OR NEW.state = 'verified'"],
+  ['standings_bump_entries_upd', 'AFTER UPDATE ON entries', [BUMP, logEntry('NEW'), logEntry('OLD', MOVED), PRUNE], "OLD.state = 'verified' OR NEW.state = 'verified'"],
   ['standings_bump_entries_del', 'AFTER DELETE ON entries', [BUMP, logEntry('OLD'), PRUNE], "OLD.state = 'verified'"],
   ['standings_bump_inspections_ins', 'AFTER INSERT ON inspections', [BUMP, logInspected('NEW'), PRUNE], verifiedEntry('NEW')],
-  ['standings_bump_inspections_upd', 'AFTER UPDATE ON inspections', [BUMP, logInspected('NEW'), logInspected('OLD'), PRUNE], `${verifiedEntry('NEW')} OR ${verifiedEntry('OLD')}`],
+  ['standings_bump_inspections_upd', 'AFTER UPDATE ON inspections', [BUMP, logInspected('NEW'), logInspected('OLD', ' AND OLD.entry_id <> NEW.entry_id'), PRUNE], `${verifiedEntry('NEW')} OR ${verifiedEntry('OLD')}`],
   ['standings_bump_inspections_del', 'AFTER DELETE ON inspections', [BUMP, logInspected('OLD'), PRUNE], verifiedEntry('OLD')],
   ['standings_bump_machines_upd', 'AFTER UPDATE OF name, motion_system ON machines', [BUMP, logRef('machine'), PRUNE]],
   ['standings_bump_users_upd', 'AFTER UPDATE OF name ON users', [BUMP, logRef('entrant'), PRUNE]],
