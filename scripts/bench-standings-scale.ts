@@ -134,7 +134,7 @@ async function exec(gen: Generated, sql: string): Promise<void> {
  * (spread over the class) set to a new value, as a judge's or organizer's change would.
  */
 async function moveRank(gen: Generated, i: number): Promise<void> {
-  const offset = (i * 7919) % 20_000;
+  const offset = (i * 7919) % 2000;
   const timeMs = 1_150_000 + ((i * 104_729) % 1_000_000);
   await exec(
     gen,
