@@ -229,16 +229,15 @@ export async function rankedRows(ref: ClassRef, opts: { transaction?: Transactio
   if (version === null) return computeRanked(ref);
   const key = `${ref.frozen ? 'f' : 'l'}:${ref.seasonId}:${ref.classId}`;
   const hit = cache.get(key);
-  // Equal, or kept at a newer value than this reader saw (another reader got there first): at
-  // least as fresh as asked.
-  if (hit && hit.version >= version) {
+  if (hit && hit.version === version) {
     cache.delete(key);
     cache.set(key, hit); // most recently used last
     return hit.rows;
   }
   // The label is the counter value read before any row: the rows are never older than it.
   let rows: Promise<StandingsRow[]>;
-  if (hit && !ref.frozen) rows = refresh(ref, hit, version);
+  // Only forward: a counter below the kept one (a slower reader, or a restored database) re-ranks.
+  if (hit && !ref.frozen && hit.version < version) rows = refresh(ref, hit, version);
   else {
     noteRefresh('cold');
     rows = computeRanked(ref);
