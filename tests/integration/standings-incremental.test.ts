@@ -206,6 +206,17 @@ describe('incremental standings refresh', () => {
     for (const ref of refs()) expect((await serverA.rankedRows(ref)).length).toBeGreaterThan(3);
   });
 
+  it('the newest finished inspection is looked up through its index', async () => {
+    if (cluster) {
+      // Read back from the catalogue (on a table this small the planner may prefer a scan).
+      const [ix] = await select<{ def: string }>("SELECT indexdef AS def FROM pg_indexes WHERE indexname = 'inspections_newest_done'");
+      expect(ix.def).toMatch(/ON (public\.)?inspections USING btree \(entry_id, status, created_at, id\)/);
+      return;
+    }
+    const plan = (await serverA.explainLiveRanking(seasonId, classIds[0])).join('\n');
+    expect(plan).toMatch(/SEARCH i2 USING COVERING INDEX inspections_newest_done \(entry_id=\? AND status=\?\)/);
+  });
+
   it('the change log rows carry the counter value of their bump, in the same transaction', async () => {
     const [{ version: v0 }] = await select<{ version: number }>('SELECT version FROM standings_version WHERE id = 1');
     const [{ id }] = await select<{ id: number }>("SELECT id FROM entries WHERE state = 'verified' AND class_id = ? ORDER BY id LIMIT 1", [classIds[0]]);
