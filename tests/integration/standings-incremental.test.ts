@@ -22,11 +22,13 @@ import path from 'node:path';
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import { createDatabase } from '../support/postgres';
 import { mulberry32 } from '../support/prng';
+import { sql as otherConnection } from '../support/db';
 
 const cluster = process.env.HOTLAP_TEST_PG_URL;
 const dbName = `hotlap_incr_${crypto.randomBytes(4).toString('hex')}`;
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-incr-'));
-process.env.DATABASE_URL = cluster ? `${cluster}/${dbName}` : `sqlite:${path.join(dir, 'hotlap.sqlite')}`;
+const dbRef = cluster ? `${cluster}/${dbName}` : path.join(dir, 'hotlap.sqlite');
+process.env.DATABASE_URL = cluster ? dbRef : `sqlite:${dbRef}`;
 process.env.HOTLAP_DATA_DIR = dir;
 
 type Lib = typeof import('@/lib/standings');
@@ -204,6 +206,33 @@ describe('incremental standings refresh', () => {
     expect(after.incremental - before.incremental).toBeGreaterThan(100);
     expect(after.pruned + after.too_many + after.unknown_kind + after.base_failed).toBe(before.pruned + before.too_many + before.unknown_kind + before.base_failed);
     for (const ref of refs()) expect((await serverA.rankedRows(ref)).length).toBeGreaterThan(3);
+  });
+
+  it('writes committed by another connection while a server refreshes are never lost', async () => {
+    const rand = mulberry32(7);
+    const ref = refs()[1];
+    const ids = (await select<{ id: number }>("SELECT id FROM entries WHERE season_id = ? AND state = 'verified' ORDER BY id", [seasonId])).map((r) => Number(r.id));
+    const before = serverA.refreshCounts();
+    let writing = true;
+    const writer = (async () => {
+      for (let i = 0; i < 40; i++) {
+        const id = ids[Math.floor(rand() * ids.length)];
+        // Its own connection (another process, as far as the database can tell): no in-process write queue.
+        if (rand() < 0.7) await otherConnection(dbRef, 'UPDATE entries SET claimed_time_ms = ? WHERE id = ?', [1_000_000 + Math.floor(rand() * 12) * 1000, id]);
+        else await otherConnection(dbRef, "UPDATE entries SET state = CASE WHEN state = 'verified' THEN 'rejected' ELSE 'verified' END WHERE id = ?", [id]);
+      }
+      writing = false;
+    })();
+    let reads = 0;
+    while (writing) {
+      await Promise.all([serverA.rankedRows(ref), serverA.rankedRows(ref), serverB.rankedRows(ref)]);
+      reads += 1;
+    }
+    await writer;
+    expect(reads).toBeGreaterThan(1);
+    await expectSameAsFresh(serverA, 'A after the concurrent writes');
+    await expectSameAsFresh(serverB, 'B after the concurrent writes');
+    expect(serverA.refreshCounts().incremental).toBeGreaterThan(before.incremental);
   });
 
   it('the newest finished inspection is looked up through its index', async () => {
