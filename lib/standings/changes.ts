@@ -35,8 +35,8 @@ import type { ClassRef, StandingsRow } from './query';
 export const MAX_CHANGE_ROWS = 2000;
 export const MAX_CHANGED_ENTRANTS = 500;
 
-export type RefreshKind = 'cold' | 'incremental' | 'unchanged' | 'pruned' | 'too_many' | 'unknown_kind' | 'base_failed';
-const counts: Record<RefreshKind, number> = { cold: 0, incremental: 0, unchanged: 0, pruned: 0, too_many: 0, unknown_kind: 0, base_failed: 0 };
+export type RefreshKind = 'cold' | 'incremental' | 'unchanged' | 'pruned' | 'too_many' | 'unknown_kind' | 'base_failed' | 'log_failed';
+const counts: Record<RefreshKind, number> = { cold: 0, incremental: 0, unchanged: 0, pruned: 0, too_many: 0, unknown_kind: 0, base_failed: 0, log_failed: 0 };
 
 /** How the ranking cache refreshed its classes in this process (tests and diagnostics). */
 export function refreshCounts(): Readonly<Record<RefreshKind, number>> {

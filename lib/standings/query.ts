@@ -218,7 +218,15 @@ async function refresh(ref: ClassRef, base: Kept, version: number): Promise<Stan
     noteRefresh('base_failed');
     return computeRanked(ref);
   }
-  const next = await applyChanges(ref, rows, base.version, version, (ids) => rankedRowsOfEntrants(ref, ids));
+  let next: StandingsRow[] | null;
+  try {
+    next = await applyChanges(ref, rows, base.version, version, (ids) => rankedRowsOfEntrants(ref, ids));
+  } catch (err) {
+    // The log could not be read (a database without it?): the full re-rank still answers.
+    console.warn('standings: change log unreadable, re-ranking the class in full:', err instanceof Error ? err.message : err);
+    noteRefresh('log_failed');
+    next = null;
+  }
   return next ?? computeRanked(ref);
 }
 
