@@ -3,7 +3,8 @@
  * SQLite data set comes from scripts/bench-standings.ts's generator). Each database gets the demo
  * data, then generated entrants, machines, entries and finished inspections in the demo's open
  * season (60 % in the Open class); the built app (`next start`) is started on it and the standings
- * API is timed, sequential requests, p50 and p95 per view. Prints; asserts nothing.
+ * API is timed, sequential requests, p50 and p95 per view, then the first request after a write
+ * (through the change log, and with the log pruned: a full re-rank). Prints; asserts nothing.
  *
  *   npx next build && npx tsx scripts/bench-standings-scale.ts [--pg-entries 500000] [--sqlite-entries 50000] [--requests 100]
  *
@@ -21,12 +22,13 @@ import sqlite3 from 'sqlite3';
 import { arg, generate, quantile, startApp, type Generated } from './bench-standings';
 import { testEnv } from '../tests/support/server';
 import { startCluster, type Cluster } from '../tests/support/postgres';
+import { STANDINGS_CHANGES_KEPT } from '../migrations/20261204-r01-standings-changes';
 
 const ROOT = path.resolve(__dirname, '..');
 const VIEWS = ['', '?page=40', '?sort=-peak_flow', '?material=petg&motion=corexy', '?q=heron'];
 
 /** Demo data on a new PostgreSQL database, then `entries` generated entries (one entrant per ten). */
-async function generatePostgres(clusterUrl: string, entries: number, port: number): Promise<Generated & { url: string }> {
+export async function generatePostgres(clusterUrl: string, entries: number, port: number): Promise<Generated & { url: string }> {
   const t0 = Date.now();
   const name = `hotlap_bench_${Date.now().toString(36)}`;
   const at = (db: string) => Object.assign(new URL(clusterUrl), { pathname: `/${db}` }).toString();
@@ -112,9 +114,8 @@ interface Row {
   total: number;
 }
 
-/** A write anywhere in entries: the standings change counter moves, the next request re-ranks the class in SQL. */
-async function touch(gen: Generated): Promise<void> {
-  const sql = "UPDATE entries SET updated_at = updated_at WHERE id = (SELECT MIN(id) FROM entries WHERE state = 'verified')";
+/** Runs one statement on the generated database (plain SQL, no parameters). */
+async function exec(gen: Generated, sql: string): Promise<void> {
   if (/^postgres/.test(gen.dbFile)) {
     const c = new pg.Client({ connectionString: gen.dbFile });
     await c.connect();
@@ -128,7 +129,26 @@ async function touch(gen: Generated): Promise<void> {
   await new Promise<void>((ok) => db.close(() => ok()));
 }
 
-/** Times `requests` sequential GETs of each view (after 10 warm-up requests each), then 20 re-ranks after a write. */
+/**
+ * A write that moves a rank in the measured class: the claimed time of the i-th verified entry
+ * (spread over the class) set to a new value, as a judge's or organizer's change would.
+ */
+async function moveRank(gen: Generated, i: number): Promise<void> {
+  const offset = (i * 7919) % 2000;
+  const timeMs = 1_150_000 + ((i * 104_729) % 1_000_000);
+  await exec(
+    gen,
+    `UPDATE entries SET claimed_time_ms = ${timeMs} WHERE id = (SELECT e.id FROM entries e JOIN classes c ON c.id = e.class_id
+       WHERE c.slug = 'open-04' AND e.state = 'verified' ORDER BY e.id LIMIT 1 OFFSET ${offset})`,
+  );
+}
+
+/**
+ * Times `requests` sequential GETs of each view (after 10 warm-up requests each); then the first
+ * request after a write that moves a rank (20 times: the kept ranking is brought forward from the
+ * change log), and after the same write with the counter pushed past what the log keeps (5 times:
+ * the fallback, a full re-rank of the class).
+ */
 async function measure(label: string, entries: number, gen: Generated, port: number, requests: number): Promise<Row[]> {
   const server = await startApp(gen, port);
   const rows: Row[] = [];
@@ -148,14 +168,21 @@ async function measure(label: string, entries: number, gen: Generated, port: num
       }
       rows.push({ db: label, entries, view: v || '(default: rank, page 1)', p50: quantile(times, 0.5), p95: quantile(times, 0.95), total });
     }
-    const cold: number[] = [];
-    for (let i = 0; i < 20; i++) {
-      await touch(gen);
-      const t = performance.now();
-      await (await fetch(base)).arrayBuffer();
-      cold.push(performance.now() - t);
-    }
-    rows.push({ db: label, entries, view: 'after a write (re-rank)', p50: quantile(cold, 0.5), p95: quantile(cold, 0.95), total: rows[0]?.total ?? 0 });
+    const afterWrite = async (n: number, first: number, before?: () => Promise<void>) => {
+      const times: number[] = [];
+      for (let i = 0; i < n; i++) {
+        await moveRank(gen, first + i);
+        await before?.();
+        const t = performance.now();
+        await (await fetch(base)).arrayBuffer();
+        times.push(performance.now() - t);
+      }
+      return times;
+    };
+    const incremental = await afterWrite(20, 1);
+    rows.push({ db: label, entries, view: 'after a write (change log)', p50: quantile(incremental, 0.5), p95: quantile(incremental, 0.95), total: rows[0]?.total ?? 0 });
+    const full = await afterWrite(5, 100, () => exec(gen, `UPDATE standings_version SET version = version + ${STANDINGS_CHANGES_KEPT + 1} WHERE id = 1`));
+    rows.push({ db: label, entries, view: 'after a write, log pruned (full)', p50: quantile(full, 0.5), p95: quantile(full, 0.95), total: rows[0]?.total ?? 0 });
   } finally {
     await server.stop();
   }
@@ -170,6 +197,8 @@ async function main() {
   let cluster: Cluster | undefined;
   const clusterUrl = process.env.HOTLAP_BENCH_POSTGRES_URL || (cluster = startCluster(Number(process.env.HOTLAP_BENCH_PG_PORT || port + 2400))).url;
   const rows: Row[] = [];
+  const load = () => os.loadavg().map((l) => l.toFixed(2)).join(' ');
+  console.log(`load average at start: ${load()}`);
   try {
     const pgGen = await generatePostgres(clusterUrl, pgEntries, port);
     rows.push(...(await measure('PostgreSQL', pgEntries, pgGen, port, requests)));
@@ -184,12 +213,14 @@ async function main() {
   } finally {
     cluster?.stop();
   }
-  console.log(`\nStandings API (open-04), ${requests} sequential requests per view after 10 warm-up requests, 127.0.0.1:`);
+  console.log(`\nload average at the end: ${load()} (${os.cpus().length} cores)`);
+  console.log(`Standings API (open-04), ${requests} sequential requests per view after 10 warm-up requests, 127.0.0.1:`);
   console.log('database'.padEnd(12) + 'entries'.padStart(9) + '  ' + 'view'.padEnd(32) + 'p50 ms'.padStart(8) + 'p95 ms'.padStart(8) + 'ranked'.padStart(8));
   for (const r of rows) console.log(r.db.padEnd(12) + String(r.entries).padStart(9) + '  ' + r.view.padEnd(32) + r.p50.toFixed(1).padStart(8) + r.p95.toFixed(1).padStart(8) + String(r.total).padStart(8));
 }
 
-main().then(
+// Run only as a script (the generator is imported by other tools).
+if (process.argv[1] && path.resolve(process.argv[1]) === __filename) main().then(
   () => process.exit(0),
   (err) => {
     console.error(err instanceof Error ? err.stack : err);

@@ -12,6 +12,7 @@ import { STANDINGS_TRIGGERS } from '@/migrations/20261201-0402-standings-version
 import { PUBLIC_READ_TRIGGERS } from '@/migrations/20261203-1801-standings-version-public-reads';
 import { ENTRY_PAGE_TRIGGERS } from '@/migrations/20261204-p01-standings-version-entry-pages';
 import { closeCounterReader, readCounter } from './version';
+import { applyChanges, noteRefresh } from './changes';
 
 /** Every trigger that bumps `standings_version`; without all of them the counter can miss a change. */
 const TRIGGER_NAMES = [...new Set([...STANDINGS_TRIGGERS, ...PUBLIC_READ_TRIGGERS, ...ENTRY_PAGE_TRIGGERS].map(([name]) => name))];
@@ -52,15 +53,21 @@ const SOURCE_COLUMNS =
 /**
  * Live ranking of one class. ROW_NUMBER over the entrant partition picks each entrant's best entry;
  * the WHERE on (season_id, class_id, state) and the ORDER BY claimed_time_ms, submitted_at follow
- * the `entries_standings` index. The inspection figures come from the newest finished inspection.
+ * the `entries_standings` index. The inspection figures come from the newest finished inspection
+ * (an index-only look-up in `inspections_newest_done`: entry_id, status, created_at, id).
+ *
+ * `forEntrants`: the same definition restricted to the entrants in `:entrantIds` — their rows as the
+ * whole ranking has them, except `rank` (numbered among those entrants only). The incremental
+ * refresh (lib/standings/changes.ts) re-reads changed entrants through it.
  */
-export const LIVE_SOURCE_SQL = `
+export function liveSourceSql(opts: { forEntrants?: boolean } = {}): string {
+  return `
   best AS (
     SELECT e.id AS entry_id, e.entrant_id, e.machine_id, e.material_family, e.nozzle_mm, e.claimed_time_ms, e.submitted_at,
            ROW_NUMBER() OVER (PARTITION BY e.entrant_id ORDER BY e.claimed_time_ms, e.submitted_at, e.id) AS nth,
            COUNT(*) OVER (PARTITION BY e.entrant_id) AS verified_entries
     FROM entries e
-    WHERE e.season_id = :seasonId AND e.class_id = :classId AND e.state = 'verified'
+    WHERE e.season_id = :seasonId AND e.class_id = :classId AND e.state = 'verified'${opts.forEntrants ? ' AND e.entrant_id IN (:entrantIds)' : ''}
   ),
   src AS (
     SELECT ROW_NUMBER() OVER (ORDER BY b.claimed_time_ms, b.submitted_at, b.entry_id) AS rank,
@@ -75,6 +82,9 @@ export const LIVE_SOURCE_SQL = `
       ORDER BY i2.created_at DESC, i2.id DESC LIMIT 1)
     WHERE b.nth = 1
   )`;
+}
+
+export const LIVE_SOURCE_SQL = liveSourceSql();
 
 const SNAPSHOT_SOURCE_SQL = `
   src AS (
@@ -145,7 +155,7 @@ export function sourceSql(frozen: boolean): string {
 }
 
 /** Every ranked row of one class, computed in SQL (the ranking is defined there once). */
-async function computeRanked(ref: ClassRef, transaction?: Transaction): Promise<StandingsRow[]> {
+export async function computeRanked(ref: ClassRef, transaction?: Transaction): Promise<StandingsRow[]> {
   const raw = await getSequelize().query<RawRow>(`${sourceSql(ref.frozen)} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, {
     replacements: { seasonId: ref.seasonId, classId: ref.classId },
     type: QueryTypes.SELECT,
@@ -155,12 +165,32 @@ async function computeRanked(ref: ClassRef, transaction?: Transaction): Promise<
 }
 
 /**
+ * The ranked rows of just these entrants in a live class (none for an entrant without a verified
+ * entry there), by the same SQL; `rank` counts among them only — the caller places them.
+ */
+export async function rankedRowsOfEntrants(ref: Omit<ClassRef, 'frozen'>, entrantIds: number[]): Promise<StandingsRow[]> {
+  if (!entrantIds.length) return [];
+  const raw = await getSequelize().query<RawRow>(`WITH ${liveSourceSql({ forEntrants: true })} SELECT ${SOURCE_COLUMNS} FROM src ORDER BY rank`, {
+    replacements: { seasonId: ref.seasonId, classId: ref.classId, entrantIds },
+    type: QueryTypes.SELECT,
+  });
+  return raw.map(toRow);
+}
+
+/**
  * The ranked rows of a class, from the in-process cache while `standings_version` (bumped by
- * triggers on every relevant write, migrations/20261201-0402) is unchanged. Frozen snapshots never
- * change, so they stay cached. Concurrent readers of a stale class share one recomputation.
+ * triggers on every relevant write, migrations/20261201-0402) is unchanged. When the counter moved,
+ * a live class kept at an older version is brought forward from the change log (changes.ts:
+ * only the entrants named in the log are re-read); when that cannot be done, it is re-ranked in
+ * full. Frozen snapshots never change, so they stay cached. Concurrent readers of a stale class
+ * share one refresh.
  */
 const CACHE_CLASSES = 32;
-const cache = new Map<string, { version: number; rows: Promise<StandingsRow[]> }>();
+interface Kept {
+  version: number;
+  rows: Promise<StandingsRow[]>;
+}
+const cache = new Map<string, Kept>();
 let triggersChecked: boolean | null = null;
 
 /**
@@ -179,6 +209,27 @@ export async function standingsVersion(): Promise<number | null> {
   return readCounter();
 }
 
+/** The kept rows at `base.version`, brought to `version` from the change log, else ranked anew. */
+async function refresh(ref: ClassRef, base: Kept, version: number): Promise<StandingsRow[]> {
+  let rows: StandingsRow[];
+  try {
+    rows = await base.rows;
+  } catch {
+    noteRefresh('base_failed');
+    return computeRanked(ref);
+  }
+  let next: StandingsRow[] | null;
+  try {
+    next = await applyChanges(ref, rows, base.version, version, (ids) => rankedRowsOfEntrants(ref, ids));
+  } catch (err) {
+    // The log could not be read (a database without it?): the full re-rank still answers.
+    console.warn('standings: change log unreadable, re-ranking the class in full:', err instanceof Error ? err.message : err);
+    noteRefresh('log_failed');
+    next = null;
+  }
+  return next ?? computeRanked(ref);
+}
+
 export async function rankedRows(ref: ClassRef, opts: { transaction?: Transaction } = {}): Promise<StandingsRow[]> {
   // Inside a caller's transaction the rows must be what that transaction sees: no cache.
   if (opts.transaction) return computeRanked(ref, opts.transaction);
@@ -191,9 +242,19 @@ export async function rankedRows(ref: ClassRef, opts: { transaction?: Transactio
     cache.set(key, hit); // most recently used last
     return hit.rows;
   }
-  const rows = computeRanked(ref);
-  cache.set(key, { version, rows });
-  rows.catch(() => cache.delete(key));
+  // The label is the counter value read before any row: the rows are never older than it.
+  let rows: Promise<StandingsRow[]>;
+  // Only forward: a counter below the kept one (a slower reader, or a restored database) re-ranks.
+  if (hit && !ref.frozen && hit.version < version) rows = refresh(ref, hit, version);
+  else {
+    noteRefresh('cold');
+    rows = computeRanked(ref);
+  }
+  const kept = { version, rows };
+  cache.set(key, kept);
+  rows.catch(() => {
+    if (cache.get(key) === kept) cache.delete(key);
+  });
   while (cache.size > CACHE_CLASSES) cache.delete(cache.keys().next().value as string);
   return rows;
 }
