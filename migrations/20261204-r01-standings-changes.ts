@@ -3,7 +3,7 @@
  * append what changed (the entry with its entrant, season and class; an entrant's name; a machine)
  * to `standings_changes`, in the same statement's transaction, labelled with the counter value that
  * bump produced. A server holding a class's ranking at version v re-reads only the entrants named
- * in (v, now] (lib/standings/incremental.ts) instead of re-ranking the whole class.
+ * in (v, now] (lib/standings/changes.ts) instead of re-ranking the whole class.
  *
  * The log keeps the changes of the newest STANDINGS_CHANGES_KEPT counter values (each logging
  * trigger deletes older rows); `standings_version.changes_from` is the counter value the log
