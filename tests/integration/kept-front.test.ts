@@ -8,12 +8,18 @@
  * the very next request are in public-cache.test.ts (API) and public-page-cache.test.ts (pages),
  * whose second requests are front answers.
  */
+import type { ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
 import http from 'node:http';
+import os from 'node:os';
+import path from 'node:path';
 import zlib from 'node:zlib';
-import { describe, it, expect, inject, beforeAll } from 'vitest';
+import { describe, it, expect, inject, beforeAll, afterAll } from 'vitest';
 import { Client } from '../support/client';
 import { sql } from '../support/db';
 import { DEMO_PASSWORD, demoEmail } from '../support/demo';
+import { createReviewableEntry } from '../support/judging-fixtures';
+import { spawnApp, testEnv } from '../support/server';
 
 const base = inject('baseUrl');
 const db = inject('dbFile');
@@ -26,9 +32,9 @@ interface Raw {
 }
 
 /** One request as sent, the answer's bytes as received (no decoding, no redirects). */
-function raw(path: string, headers: Record<string, string> = {}, method = 'GET'): Promise<Raw> {
+function raw(path: string, headers: Record<string, string> = {}, method = 'GET', origin = base): Promise<Raw> {
   return new Promise((resolve, reject) => {
-    const req = http.request(base + path, { method, headers, agent: false }, (res) => {
+    const req = http.request(origin + path, { method, headers, agent: false }, (res) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
       res.on('end', () => resolve({ status: res.statusCode ?? 0, headers: res.headers, body: Buffer.concat(chunks) }));
@@ -245,5 +251,60 @@ describe('what the front never answers', () => {
     const res = await raw(api, {}, 'TRACE');
     expect(res.status).toBe(405);
     expect(res.headers.allow).toBeTruthy();
+  });
+});
+
+describe('a second web server on the same database', () => {
+  // Server B runs with HOTLAP_PAGE_CACHE=0: it never answers from kept answers, and a judge's
+  // verification made through it shows on server A's very next answer (A reads the counter from the
+  // database per request).
+  let b: ChildProcess | undefined;
+  let baseB: string;
+  let dataDir: string;
+
+  beforeAll(async () => {
+    const port = Number(new URL(base).port) + 7;
+    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'hotlap-test-b-'));
+    const databaseUrl = /^postgres(ql)?:\/\//.test(db) ? db : `sqlite:${db}`;
+    b = await spawnApp(port, { ...testEnv(port, dataDir), DATABASE_URL: databaseUrl, HOTLAP_PAGE_CACHE: '0' }, 'Server B');
+    baseB = `http://127.0.0.1:${port}`;
+  });
+
+  afterAll(() => {
+    b?.kill('SIGTERM');
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  });
+
+  it('B answers everything through Next.js; B’s write shows on A’s very next page and API answer', async () => {
+    // The demo entrant's new entry in a class where she has no verified entry yet: verified, it is her row.
+    const runs = '/api/v1/seasons/frostbite-sprint/classes/open-04/standings?per_page=100';
+    const page = '/seasons/frostbite-sprint/classes/open-04';
+    const { entryId } = await createReviewableEntry(db, { claimedTimeMs: 1_590_000 });
+    // The fixture's writes (inspection, photos) may still be moving the counter: wait until both are front answers.
+    for (let i = 0; i < 50; i++) {
+      const [r, p] = [await raw(runs), await raw(page, { accept: HTML })];
+      if (r.headers['x-hotlap-kept'] === 'hit' && p.headers['x-hotlap-kept'] === 'hit') break;
+      await new Promise((ok) => setTimeout(ok, 100));
+    }
+    const before = await raw(runs);
+    expect(before.headers['x-hotlap-kept']).toBe('hit');
+    expect(before.body.toString()).not.toContain(`"entry_id":${entryId},`);
+    expect((await raw(page, { accept: HTML })).headers['x-hotlap-kept']).toBe('hit');
+    // B: the same URLs twice, never a front answer.
+    for (let i = 0; i < 2; i++) {
+      expect((await raw(runs, {}, 'GET', baseB)).headers['x-hotlap-kept']).toBeUndefined();
+      const p = await raw(page, { accept: HTML }, 'GET', baseB);
+      expect(p.headers['x-hotlap-kept']).toBeUndefined();
+      expect(p.headers['x-page-cache']).toBeUndefined();
+    }
+    const judge = new Client(baseB);
+    expect((await judge.signIn(demoEmail('judge'), DEMO_PASSWORD)).status).toBe(200);
+    const res = await judge.post(`/api/judging/entries/${entryId}/decisions`, { decision: 'verify', reasonCodes: ['evidence_consistent'], note: 'Verified on the second server.' });
+    expect(res.status, await res.clone().text()).toBe(201);
+    const after = await raw(runs);
+    expect(after.headers['x-hotlap-kept']).toBe('miss');
+    expect(after.body.toString()).toContain(`"entry_id":${entryId},`);
+    expect(after.headers.etag).not.toBe(before.headers.etag);
+    expect((await raw(page, { accept: HTML })).headers['x-hotlap-kept']).toBe('miss');
   });
 });
