@@ -14,6 +14,21 @@ import { keptAnswerFront } from './keptFront';
 
 const PATCHED = Symbol.for('hotlap.front');
 
+/** The kept-answer step; a fault in it hands the request to Next.js rather than failing it. */
+function keptFrontOrNext(req: http.IncomingMessage, res: http.ServerResponse, next: () => void): boolean {
+  let handedOn = false;
+  try {
+    return keptAnswerFront(req, res, () => {
+      handedOn = true;
+      next();
+    });
+  } catch (err) {
+    if (handedOn) throw err; // Next.js's own error, as without this step
+    console.error(`kept answers: ${req.url}: ${err instanceof Error ? err.message : err}`);
+    return false;
+  }
+}
+
 export function installFront() {
   const proto = http.Server.prototype as http.Server & { [PATCHED]?: boolean };
   if (proto[PATCHED]) return;
@@ -24,7 +39,7 @@ export function installFront() {
     if (event === 'request') {
       const [req, res] = args as [http.IncomingMessage, http.ServerResponse];
       if (refuseForbiddenMethod(req, res)) return true;
-      if (kept && keptAnswerFront(req, res, () => emit.call(this, event, ...args))) return true;
+      if (kept && keptFrontOrNext(req, res, () => emit.call(this, event, ...args))) return true;
     }
     return emit.call(this, event, ...args);
   } as typeof proto.emit;

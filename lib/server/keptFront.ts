@@ -62,10 +62,17 @@ export function keptAnswerFront(req: http.IncomingMessage, res: http.ServerRespo
     pass(req, res, url, next);
     return true;
   }
-  readCounter().then(
-    (version) => (version === entry.version && entry.wire ? answer(req, res, entry, entry.wire) : pass(req, res, url, next)),
-    () => pass(req, res, url, next),
-  );
+  readCounter()
+    .then(
+      (version) => (version === entry.version && entry.wire ? answer(req, res, entry, entry.wire) : pass(req, res, url, next)),
+      () => pass(req, res, url, next),
+    )
+    .catch((err) => {
+      // Never an unhandled rejection (it would end the process): Next.js answers, or the connection closes.
+      console.error(`kept answers: ${url}: ${err instanceof Error ? err.message : err}`);
+      if (!res.headersSent) pass(req, res, url, next);
+      else res.destroy();
+    });
   return true;
 }
 
