@@ -19,9 +19,20 @@
 import crypto from 'node:crypto';
 import { hasSessionCookie } from '@/lib/auth/sessionCookie';
 import { standingsVersion } from './query';
+import { StandingsParamsSchema } from './params';
 import { clearKept, keepEntry, keepMarker, keptFor, OTHER_ANSWERS, RENDER_HEADER, type KeptEntry } from './keptAnswers';
 
-const PATHS = [/^\/$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/entries\/[1-9]\d{0,15}$/];
+/**
+ * The kept pages and the query parameters each one reads. A request with any other parameter is
+ * rendered for itself, not kept: made-up query strings (`/?x=1`, `?x=2`…) cannot push the kept
+ * pages out of the store (values of known parameters still can; the store is bounded).
+ */
+const PATHS: [RegExp, readonly string[]][] = [
+  [/^\/$/, []],
+  [/^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, []],
+  [/^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, Object.keys(StandingsParamsSchema.shape)],
+  [/^\/entries\/[1-9]\d{0,15}$/, []],
+];
 /*
  * Requests of client-side navigation and actions ask for other answers than the HTML page
  * (OTHER_ANSWERS). Next.js strips its RSC headers (and `_rsc`) from the request the proxy sees, so
@@ -59,7 +70,8 @@ export function isCacheRender(req: PageRequest): boolean {
 
 export function pageCacheable(req: PageRequest): boolean {
   if (process.env.HOTLAP_PAGE_CACHE === '0' || req.method !== 'GET') return false;
-  if (!PATHS.some((p) => p.test(req.nextUrl.pathname)) || req.nextUrl.searchParams.has('_rsc')) return false;
+  const params = PATHS.find(([p]) => p.test(req.nextUrl.pathname))?.[1];
+  if (!params || [...req.nextUrl.searchParams.keys()].some((k) => !params.includes(k))) return false;
   if (!req.headers.get('accept')?.includes('text/html')) return false;
   if (OTHER_ANSWERS.some((h) => req.headers.has(h)) || isCacheRender(req)) return false;
   return !hasSessionCookie(req.cookies.getAll().map((c) => c.name));

@@ -199,6 +199,20 @@ describe('what the front never answers', () => {
     expect(ra.headers.etag).not.toBe(rb.headers.etag);
   });
 
+  it('a page with a query parameter it does not read is rendered for itself, never kept', async () => {
+    for (const p of ['/?utm=1', `${page}?x=1`, `/entries/${entryId}?v=2`]) {
+      for (let i = 0; i < 2; i++) {
+        const res = await raw(p, { accept: HTML });
+        expect(res.status, p).toBe(200);
+        expect(res.headers['x-hotlap-kept'], p).toBe('miss');
+        expect(res.headers['x-page-cache'], p).toBeUndefined();
+      }
+    }
+    // The parameters the class page reads are kept per value.
+    for (let i = 0; i < 2; i++) await raw(`${page}?sort=-time`, { accept: HTML });
+    expect((await raw(`${page}?sort=-time`, { accept: HTML })).headers['x-hotlap-kept']).toBe('hit');
+  });
+
   it('a member (session cookie) never gets a kept answer, page or API', async () => {
     const judge = new Client(base);
     expect((await judge.signIn(demoEmail('judge'), DEMO_PASSWORD)).status).toBe(200);
