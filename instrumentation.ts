@@ -5,7 +5,8 @@
  */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs' || process.env.NEXT_PHASE === 'phase-production-build') return;
-  (await import('@/lib/security/forbiddenMethods')).refuseForbiddenMethods();
+  // TRACE/TRACK and kept public answers, at the HTTP server ahead of Next.js (see lib/server/front.ts).
+  (await import('@/lib/server/front')).installFront();
   // Mail that a stopped server left pending goes out now; retries keep running in the background.
   (await import('@/lib/mail')).startOutbox();
   // Inspections: SQLite runs them here; PostgreSQL only enqueues (workers run them: npm run worker),

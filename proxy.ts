@@ -14,7 +14,7 @@
  * could not refuse an oversized body before it was read.
  */
 import { NextResponse, type NextRequest } from 'next/server';
-import { contentSecurityPolicy, HSTS_VALUE, trustedProxyHops } from '@/lib/security/headers';
+import { contentSecurityPolicy, HSTS_VALUE, isHttpsRequest } from '@/lib/security/headers';
 import { hasSessionCookie } from '@/lib/auth/sessionCookie';
 import { keptPage, pageCacheable } from '@/lib/standings/pageCache';
 
@@ -23,8 +23,7 @@ const PAGE_METHODS = 'GET, HEAD, OPTIONS, POST';
 
 function isHttps(req: NextRequest) {
   // Behind a TLS-terminating proxy the app sees http; the proxy says what the browser used.
-  const forwarded = trustedProxyHops() ? req.headers.get('x-forwarded-proto')?.split(',')[0].trim() : null;
-  return (forwarded ?? req.nextUrl.protocol.replace(':', '')) === 'https';
+  return isHttpsRequest(req.headers.get('x-forwarded-proto'), req.nextUrl.protocol);
 }
 
 function withSecurityHeaders(res: NextResponse, csp: string, req: NextRequest) {

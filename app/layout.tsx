@@ -2,9 +2,7 @@ import type { Metadata } from 'next';
 import localFont from 'next/font/local';
 import Link from 'next/link';
 import { headers } from 'next/headers';
-import { NuqsAdapter } from 'nuqs/adapters/next/app';
 import { SiteHeader } from '@/components/SiteHeader';
-import { Providers } from '@/components/Providers';
 import './globals.css';
 
 // Fonts ship with the app (SIL OFL, licences beside the files); nothing is fetched at build time.
@@ -36,10 +34,8 @@ export default async function RootLayout({ children }: { children: React.ReactNo
           Skip to content
         </a>
         <SiteHeader />
-        {/* URL state for client tables (nuqs: standings page, sort, filters); client data fetching (Providers). */}
-        <NuqsAdapter>
-          <main id="main" className="mx-auto max-w-6xl px-4 py-8"><Providers>{children}</Providers></main>
-        </NuqsAdapter>
+        {/* Client data providers (TanStack Query, nuqs) are mounted by the components that use them (components/Providers.tsx), so other pages do not load them. */}
+        <main id="main" className="mx-auto max-w-6xl px-4 py-8">{children}</main>
         <footer className="mx-auto max-w-6xl px-4 pb-10 text-sm text-ink-500">
           Fast printing means hot parts and fumes: read the <Link href="/safety">safety notes</Link> before a timed print.
         </footer>

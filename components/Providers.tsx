@@ -1,11 +1,14 @@
 'use client';
 /**
- * Client-side providers, mounted once in the root layout: TanStack Query's client (polling and
- * client reads go through it, not hand-written fetch + useState). One client per browser tab,
- * kept in state so a re-render does not drop its cache.
+ * Client-side providers for the components that read data in the browser: TanStack Query's client
+ * (polling and client reads go through it, not hand-written fetch + useState) and nuqs's adapter (URL
+ * state of client tables). Mounted around those components only (the standings table, the audit
+ * table, the entry workbench), not in the root layout: every other page would load both libraries
+ * for nothing. One client per mounted tree, kept in state so a re-render does not drop its cache.
  */
 import { useState } from 'react';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { NuqsAdapter } from 'nuqs/adapters/next/app';
 
 export function Providers({ children }: { children: React.ReactNode }) {
   const [client] = useState(
@@ -16,5 +19,9 @@ export function Providers({ children }: { children: React.ReactNode }) {
         defaultOptions: { queries: { refetchOnWindowFocus: false, retry: false } },
       }),
   );
-  return <QueryClientProvider client={client}>{children}</QueryClientProvider>;
+  return (
+    <NuqsAdapter>
+      <QueryClientProvider client={client}>{children}</QueryClientProvider>
+    </NuqsAdapter>
+  );
 }

@@ -9,7 +9,7 @@
  * --only LABEL measures the static file and the routes whose label contains LABEL.
  * --path P (repeatable) adds any path, e.g. an empty route handler to measure the framework's own floor.
  * Before the load runs it prints each HTML page's first-load JavaScript: the scripts the page's HTML
- * loads (files and inline), their bytes and gzip-compressed bytes.
+ * loads (files and inline; not the `noModule` polyfills), their bytes and gzip-compressed bytes.
  * --weight-only prints that and stops.
  * --no-static leaves the static file out (a CPU profile of the routes alone); ratios are then not printed.
  * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
@@ -118,7 +118,9 @@ async function main() {
     const pageTargets = [...targets.filter((t) => !t.path.startsWith('/api/') && t.path !== '/favicon.svg'), { label: 'season overview (charts)', path: `/seasons/${gen.season}/overview` }];
     for (const t of pageTargets) {
       const html = await (await fetch(server.url + t.path, { headers: { accept: ACCEPT_HTML } })).text();
-      const srcs = [...new Set([...html.matchAll(/<script[^>]*\ssrc="([^"]+\.js)"/g)].map((m) => m[1]))];
+      // `noModule` scripts (Next.js's polyfills for browsers without ES modules) are never loaded by a
+      // browser that runs modules, i.e. every browser the app supports: not counted.
+      const srcs = [...new Set([...html.matchAll(/<script[^>]*\ssrc="([^"]+\.js)"[^>]*>/g)].filter((m) => !/\snoModule/i.test(m[0])).map((m) => m[1]))];
       const inline = [...html.matchAll(/<script(?![^>]*\ssrc=)[^>]*>([\s\S]*?)<\/script>/g)].map((m) => m[1]).join('');
       let raw = Buffer.byteLength(inline);
       let gz = zlib.gzipSync(inline).length;

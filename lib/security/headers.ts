@@ -37,3 +37,13 @@ export function trustedProxyHops(): number {
   const hops = Number(process.env.TRUST_PROXY || 0);
   return Number.isInteger(hops) && hops >= 1 ? hops : 0;
 }
+
+/**
+ * Whether the browser's request came over https: the first X-Forwarded-Proto value when a trusted
+ * proxy terminates TLS (TRUST_PROXY), else the protocol the app saw ('https:' or 'http:'). Decides
+ * HSTS, in proxy.ts and in the front layer alike.
+ */
+export function isHttpsRequest(forwardedProto: string | null, protocol: string): boolean {
+  const forwarded = trustedProxyHops() ? forwardedProto?.split(',')[0].trim() : null;
+  return (forwarded ?? protocol.replace(':', '')) === 'https';
+}

@@ -4,36 +4,28 @@
  * `versionedResponse` keeps each built answer in process under the database's standings change
  * counter, so a repeated or revalidating request is answered without building the body again.
  */
-import crypto from 'node:crypto';
 import { standingsVersion } from './query';
+import { etagOf, keepEntry, keepMarker, keptFor, matchesEtag, clearKept, type KeptEntry } from './keptAnswers';
+
+export { etagOf, matchesEtag };
 
 export interface CachePolicy {
   /** Seconds a browser or shared cache may reuse the answer without asking again. */
   maxAgeS: number;
 }
 
-/** Frozen standings never change; live ones change with each judge's decision. */
-export const CACHE_LIVE: CachePolicy = { maxAgeS: 30 };
+/**
+ * Frozen standings never change; live ones change with each judge's decision, so a browser or
+ * shared cache must ask again every time (a cheap 304 while the ETag holds): never a stale rank
+ * after a verification.
+ */
+export const CACHE_LIVE: CachePolicy = { maxAgeS: 0 };
 export const CACHE_FROZEN: CachePolicy = { maxAgeS: 3600 };
-
-export function etagOf(body: string): string {
-  return `"${crypto.createHash('sha1').update(body).digest('base64url')}"`;
-}
-
-/** True when an If-None-Match header names this ETag (weak comparison, "*" matches any). */
-export function matchesEtag(header: string | null, etag: string): boolean {
-  if (!header) return false;
-  const bare = etag.replace(/^W\//, '');
-  return header.split(',').some((t) => {
-    const v = t.trim();
-    return v === '*' || v.replace(/^W\//, '') === bare;
-  });
-}
 
 export function cachedResponse(req: Request, body: string, contentType: string, policy: CachePolicy, extra: Record<string, string> = {}, etag = etagOf(body)): Response {
   const headers: Record<string, string> = {
     ETag: etag,
-    'Cache-Control': `public, max-age=${policy.maxAgeS}, stale-while-revalidate=${policy.maxAgeS}`,
+    'Cache-Control': policy.maxAgeS > 0 ? `public, max-age=${policy.maxAgeS}, stale-while-revalidate=${policy.maxAgeS}` : 'public, max-age=0, must-revalidate',
     Vary: 'Accept-Encoding',
     ...extra,
   };
@@ -59,24 +51,6 @@ export const jsonAnswer = (data: unknown, policy: CachePolicy, extra?: Record<st
   extra,
 });
 
-interface Kept extends BuiltAnswer {
-  version: number;
-  etag: string;
-}
-
-/** Built answers by path and query, least recently used first; bounded by count and by bytes (a full CSV is large). */
-const kept = new Map<string, Kept>();
-const KEPT_MAX = 256;
-const KEPT_MAX_CHARS = 24 * 1024 * 1024;
-let keptChars = 0;
-
-function forget(key: string) {
-  const k = kept.get(key);
-  if (!k) return;
-  keptChars -= k.body.length;
-  kept.delete(key);
-}
-
 /**
  * Answers a public GET from the answer built for the same path and query while `standings_version`
  * held the same value, or builds it (`build`) and keeps it. The counter is read before building, so
@@ -88,25 +62,19 @@ export async function versionedResponse(req: Request, build: () => Promise<Built
   const url = new URL(req.url);
   const key = url.pathname + url.search;
   const version = await standingsVersion();
-  const hit = version === null ? undefined : kept.get(key);
-  if (hit && hit.version === version) {
-    kept.delete(key);
-    kept.set(key, hit); // most recently used last
-    return cachedResponse(req, hit.body, hit.contentType, hit.policy, { ...hit.extra, 'X-Cache': 'HIT' }, hit.etag);
+  const hit = version === null ? undefined : keptFor(key, version, 'api');
+  if (hit) {
+    const a = hit.app as BuiltAnswer;
+    return cachedResponse(req, a.body, a.contentType, a.policy, { ...a.extra, 'X-Cache': 'HIT', ...keepMarker(req.headers, hit) }, hit.etag!);
   }
   const answer = await build();
   const etag = etagOf(answer.body);
-  if (version !== null && answer.body.length <= KEPT_MAX_CHARS / 4) {
-    forget(key);
-    kept.set(key, { ...answer, version, etag });
-    keptChars += answer.body.length;
-    while (kept.size > KEPT_MAX || keptChars > KEPT_MAX_CHARS) forget(kept.keys().next().value as string);
-  }
-  return cachedResponse(req, answer.body, answer.contentType, answer.policy, { ...answer.extra, 'X-Cache': 'MISS' }, etag);
+  let entry: KeptEntry | null = null;
+  if (version !== null) entry = keepEntry(key, { version, kind: 'api', status: 200, body: answer.body, nonce: null, etag, app: answer });
+  return cachedResponse(req, answer.body, answer.contentType, answer.policy, { ...answer.extra, 'X-Cache': 'MISS', ...keepMarker(req.headers, entry) }, etag);
 }
 
 /** Forget kept answers (tests and tools that rewrite the database wholesale). */
 export function clearPublicAnswers() {
-  kept.clear();
-  keptChars = 0;
+  clearKept('api');
 }

@@ -19,16 +19,26 @@
 import crypto from 'node:crypto';
 import { hasSessionCookie } from '@/lib/auth/sessionCookie';
 import { standingsVersion } from './query';
+import { StandingsParamsSchema } from './params';
+import { clearKept, keepEntry, keepMarker, keptFor, OTHER_ANSWERS, RENDER_HEADER, type KeptEntry } from './keptAnswers';
 
-const PATHS = [/^\/$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, /^\/entries\/[1-9]\d{0,15}$/];
 /**
- * Requests of client-side navigation and actions ask for other answers than the HTML page. Next.js
- * strips its RSC headers (and `_rsc`) from the request the proxy sees, so these checks are a second
- * line only; the first is that a page load asks for HTML (Accept: text/html, as browsers send for a
- * document) while the router's fetches do not.
+ * The kept pages and the query parameters each one reads. A request with any other parameter is
+ * rendered for itself, not kept: made-up query strings (`/?x=1`, `?x=2`…) cannot push the kept
+ * pages out of the store (values of known parameters still can; the store is bounded).
  */
-const OTHER_ANSWERS = ['rsc', 'next-router-prefetch', 'next-router-state-tree', 'next-router-segment-prefetch', 'next-action'];
-export const RENDER_HEADER = 'x-hotlap-page-render';
+const PATHS: [RegExp, readonly string[]][] = [
+  [/^\/$/, []],
+  [/^\/seasons\/[a-z0-9][a-z0-9-]{0,63}$/, []],
+  [/^\/seasons\/[a-z0-9][a-z0-9-]{0,63}\/classes\/[a-z0-9][a-z0-9-]{0,63}$/, Object.keys(StandingsParamsSchema.shape)],
+  [/^\/entries\/[1-9]\d{0,15}$/, []],
+];
+/*
+ * Requests of client-side navigation and actions ask for other answers than the HTML page
+ * (OTHER_ANSWERS). Next.js strips its RSC headers (and `_rsc`) from the request the proxy sees, so
+ * those checks are a second line only; the first is that a page load asks for HTML (Accept:
+ * text/html, as browsers send for a document) while the router's fetches do not.
+ */
 const SECRET = crypto.randomBytes(18).toString('base64url');
 /** Headers of the render not copied: this answer sets its own CSP and security headers; length and encoding change. */
 const NOT_COPIED = new Set([
@@ -42,13 +52,9 @@ interface Kept {
   nonce: string;
   headers: [string, string][];
 }
-const kept = new Map<string, Kept>();
 const rendering = new Map<string, Promise<Rendered>>();
-const KEPT_MAX = 500;
 /** A render slower than this is given up; the visitor then gets a render of their own. */
 const RENDER_TIMEOUT_MS = 30_000;
-const KEPT_MAX_CHARS = 64 * 1024 * 1024;
-let keptChars = 0;
 
 interface PageRequest {
   method: string;
@@ -64,17 +70,11 @@ export function isCacheRender(req: PageRequest): boolean {
 
 export function pageCacheable(req: PageRequest): boolean {
   if (process.env.HOTLAP_PAGE_CACHE === '0' || req.method !== 'GET') return false;
-  if (!PATHS.some((p) => p.test(req.nextUrl.pathname)) || req.nextUrl.searchParams.has('_rsc')) return false;
+  const params = PATHS.find(([p]) => p.test(req.nextUrl.pathname))?.[1];
+  if (!params || [...req.nextUrl.searchParams.keys()].some((k) => !params.includes(k))) return false;
   if (!req.headers.get('accept')?.includes('text/html')) return false;
   if (OTHER_ANSWERS.some((h) => req.headers.has(h)) || isCacheRender(req)) return false;
   return !hasSessionCookie(req.cookies.getAll().map((c) => c.name));
-}
-
-function forget(key: string) {
-  const k = kept.get(key);
-  if (!k) return;
-  keptChars -= k.html.length;
-  kept.delete(key);
 }
 
 /**
@@ -88,24 +88,18 @@ function ownOrigin(): string | null {
 
 interface Rendered extends Kept {
   status: number;
-  kept: boolean;
+  entry: KeptEntry | null;
 }
 
 async function render(key: string, version: number, origin: string): Promise<Rendered> {
   const res = await fetch(origin + key, { headers: { [RENDER_HEADER]: SECRET, accept: 'text/html' }, redirect: 'manual', signal: AbortSignal.timeout(RENDER_TIMEOUT_MS) });
   const html = await res.text();
   const nonce = res.headers.get('content-security-policy')?.match(/'nonce-([A-Za-z0-9+/=]+)'/)?.[1] ?? '';
-  const keep = res.status === 200 && !!nonce && !!res.headers.get('content-type')?.startsWith('text/html') && !res.headers.has('set-cookie') && html.length <= KEPT_MAX_CHARS / 8;
+  const keep = res.status === 200 && !!nonce && !!res.headers.get('content-type')?.startsWith('text/html') && !res.headers.has('set-cookie');
   // An answer that is not kept (a 404, a redirect) is sent once as rendered, its cookies included.
   const headers = [...res.headers].filter(([k]) => !NOT_COPIED.has(k.toLowerCase()) || (!keep && k.toLowerCase() === 'set-cookie'));
-  const page: Rendered = { version, html, nonce, headers, status: res.status, kept: keep };
-  if (keep) {
-    forget(key);
-    kept.set(key, { version, html, nonce, headers });
-    keptChars += html.length;
-    while (kept.size > KEPT_MAX || keptChars > KEPT_MAX_CHARS) forget(kept.keys().next().value as string);
-  }
-  return page;
+  const entry = keep ? keepEntry(key, { version, kind: 'page', status: 200, body: html, nonce, etag: null, app: headers }) : null;
+  return { version, html, nonce, headers, status: res.status, entry };
 }
 
 /**
@@ -119,11 +113,11 @@ export async function keptPage(req: PageRequest & { url: string }, nonce: string
   const version = await standingsVersion();
   if (version === null) return null;
   const key = req.nextUrl.pathname + req.nextUrl.search;
-  let page: Kept & { status?: number } | undefined = kept.get(key);
+  const hit = keptFor(key, version, 'page');
+  let page: Kept & { status?: number; entry?: KeptEntry | null };
   let state = 'HIT';
-  if (page && page.version === version) {
-    kept.delete(key);
-    kept.set(key, page); // most recently used last
+  if (hit) {
+    page = { version, html: hit.body, nonce: hit.nonce ?? '', headers: hit.app as [string, string][], entry: hit };
   } else {
     const flight = `${version}:${key}`;
     let p = rendering.get(flight);
@@ -137,15 +131,16 @@ export async function keptPage(req: PageRequest & { url: string }, nonce: string
       console.warn(`page cache: rendering ${key} for the cache failed (${err instanceof Error ? err.message : err}); rendering for this request`);
       return null;
     }
-    state = page.status === 200 && (page as Rendered).kept ? 'MISS' : 'PASS';
+    state = page.entry ? 'MISS' : 'PASS';
   }
-  const headers = new Headers(page.headers);
+  // The render nonce is in header values too (Link: preloads carry it): replaced there as well.
+  const headers = new Headers(page.nonce ? page.headers.map(([k, v]) => [k, v.replaceAll(page.nonce, nonce)]) : page.headers);
   headers.set('X-Page-Cache', state);
+  for (const [k, v] of Object.entries(keepMarker(req.headers, page.entry))) headers.set(k, v);
   return new Response(page.nonce ? page.html.replaceAll(page.nonce, nonce) : page.html, { status: page.status ?? 200, headers });
 }
 
 /** Forget kept pages (tests and tools that rewrite the database wholesale). */
 export function clearKeptPages() {
-  kept.clear();
-  keptChars = 0;
+  clearKept('page');
 }

@@ -28,6 +28,8 @@ async function settled<T>(path: string): Promise<{ body: T; etag: string }> {
   const again = await get(path);
   expect(again.status).toBe(200);
   expect(again.headers.get('x-cache')).toBe('HIT');
+  // Answered at the HTTP server ahead of Next.js (lib/server/keptFront.ts), so the writes below must reach it too.
+  expect(again.headers.get('x-hotlap-kept')).toBe('hit');
   const etag = again.headers.get('etag')!;
   expect(etag).toBe(first.headers.get('etag'));
   const revalidated = await get(path, etag);

@@ -20,9 +20,14 @@ const anonymous = new Client(base);
 /** As a browser loads a document (public pages are kept only for requests that ask for HTML). */
 const HTML = { accept: 'text/html,application/xhtml+xml,*/*;q=0.8' };
 
-async function page(path: string, client = anonymous): Promise<{ status: number; html: string }> {
+async function page(path: string, client = anonymous): Promise<{ status: number; html: string; kept: string | null }> {
   const res = await client.request(path, { headers: HTML });
-  return { status: res.status, html: await res.text() };
+  return { status: res.status, html: await res.text(), kept: res.headers.get('x-hotlap-kept') };
+}
+
+/** The page is answered at the HTTP server ahead of Next.js (lib/server/keptFront.ts), so the write that follows must reach that layer too. */
+async function frontAnswers(path: string) {
+  expect((await page(path)).kept, path).toBe('hit');
 }
 
 describe('kept page data', () => {
@@ -36,6 +41,7 @@ describe('kept page data', () => {
     // A rename whose counter bump is taken back in the same transaction: invisible to the cache by design.
     await sqlTransaction(db, [`UPDATE users SET name = 'Ivo Renamed' WHERE id = ${who}`, 'UPDATE standings_version SET version = version - 1 WHERE id = 1']);
     const kept = await page(path);
+    expect(kept.kept).toBe('hit');
     expect(kept.html).toContain('Ivo Marchetti-Kell');
     expect(kept.html).not.toContain('Ivo Renamed');
     // Any counted write: the very next request loads afresh.
@@ -74,6 +80,7 @@ describe('a judge’s verification and the entrant’s withdrawal', () => {
     // Asked twice, so that the second answer comes from kept data.
     for (let i = 0; i < 2; i++) expect((await page(classPage)).html).not.toContain('Page Cache Rig 3');
     expect((await page(`/entries/${entryId}`)).status).toBe(404);
+    await frontAnswers(classPage);
     const res = await judge.post(`/api/judging/entries/${entryId}/decisions`, { decision: 'verify', reasonCodes: ['evidence_consistent'], note: 'Clean run, timing matches the video.' });
     expect(res.status, await res.clone().text()).toBe(201);
     expect((await page(classPage)).html).toContain('Page Cache Rig 3');
@@ -85,6 +92,8 @@ describe('a judge’s verification and the entrant’s withdrawal', () => {
   it('the withdrawn entry is gone from the very next class page and entry page', async () => {
     for (let i = 0; i < 2; i++) expect((await page(classPage)).html).toContain('Page Cache Rig 3');
     expect((await page(`/entries/${entryId}`)).status).toBe(200);
+    await frontAnswers(classPage);
+    await frontAnswers(`/entries/${entryId}`);
     const res = await maker.post(`/api/entries/${entryId}/withdraw`, {});
     expect(res.status, await res.clone().text()).toBe(200);
     expect((await page(classPage)).html).not.toContain('Page Cache Rig 3');
@@ -110,6 +119,8 @@ describe('a re-inspection and a season transition', () => {
       expect((await page(`/entries/${entryId}`)).html).not.toContain('37.9');
       expect((await page(classPage)).html).not.toContain('37.9');
     }
+    await frontAnswers(`/entries/${entryId}`);
+    await frontAnswers(classPage);
     // What a re-inspection job stores: a newer finished inspection of the same entry.
     await insertInspection(db, entryId, { peak: 37.9, p95: 31, layerMm: 0.25, createdAt: new Date(Date.now() + 1000).toISOString() });
     expect((await page(`/entries/${entryId}`)).html).toContain('37.9');
@@ -122,6 +133,7 @@ describe('a re-inspection and a season transition', () => {
       expect(stateNear((await page(`/seasons/${s.slug}`)).html, 'Page cache season')).toMatch(/\bopen\b/);
       expect(stateNear((await page('/')).html, 'Page cache season')).toMatch(/\bopen\b/);
     }
+    for (const p of [classPage, `/seasons/${s.slug}`, '/']) await frontAnswers(p);
     // The row the organizer's transition writes.
     await setSeasonState(db, s.seasonId, 'final');
     const cls = await page(classPage);
@@ -188,8 +200,10 @@ describe('kept whole pages keep the per-request nonce', () => {
     const rsc = await fetch(base + path, { headers: { rsc: '1', accept: '*/*' } });
     expect(rsc.headers.get('x-page-cache')).toBeNull();
     expect(rsc.headers.get('content-type')).not.toMatch(/text\/html/);
+    // HEAD: the kept page's headers without a body, from the HTTP server's front layer.
     const head = await fetch(base + path, { method: 'HEAD', headers: HTML });
-    expect(head.headers.get('x-page-cache')).toBeNull();
+    expect(head.headers.get('x-hotlap-kept')).toBe('hit');
+    expect(await head.text()).toBe('');
     // A forged render marker is not the server's secret: the visitor still gets the kept page.
     const forged = await fetch(base + path, { headers: { ...HTML, 'x-hotlap-page-render': 'guess' } });
     expect(forged.headers.get('x-page-cache')).toBe('HIT');

@@ -57,8 +57,9 @@ export default async function ApiDocsPage() {
         <h1>Public API, version 1</h1>
         <p className="text-ink-700">
           Read-only JSON over HTTP GET, no sign-in. Every answer carries an <code>ETag</code>; send it back in <code>If-None-Match</code> and an unchanged resource answers
-          <strong> 304 Not Modified</strong> with no body. <code>Cache-Control</code> allows reuse for {CACHE_LIVE.maxAgeS} s on live seasons and {CACHE_FROZEN.maxAgeS} s on final ones,
-          whose standings are frozen. Errors are JSON <code>{'{ "error": "…", "fields": { "param": "…" } }'}</code>: 400 for a bad parameter (the message names it), 404 for an
+          <strong> 304 Not Modified</strong> with no body. On live seasons <code>Cache-Control</code> asks for revalidation every time
+          (<code>max-age={CACHE_LIVE.maxAgeS}, must-revalidate</code>: the answer changes with the next judge’s decision, and a 304 is cheap); final seasons, whose
+          standings are frozen, may be reused for {CACHE_FROZEN.maxAgeS} s. Errors are JSON <code>{'{ "error": "…", "fields": { "param": "…" } }'}</code>: 400 for a bad parameter (the message names it), 404 for an
           unknown season, class or entry. Dates are ISO 8601 in UTC; times in milliseconds; flows in mm³/s. Examples below are live answers of this server, shortened.
         </p>
       </header>

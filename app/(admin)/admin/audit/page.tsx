@@ -2,6 +2,7 @@ import { requirePageRole } from '@/lib/auth/guard';
 import { listAudit, parseAuditQuery, type AuditQuery } from '@/lib/admin';
 import { HttpError } from '@/lib/errors';
 import { AuditTable } from '@/components/admin/AuditTable';
+import { Providers } from '@/components/Providers';
 
 export const metadata = { title: 'Audit log' };
 
@@ -27,7 +28,9 @@ export default async function AuditPage({ searchParams }: Props) {
         </p>
       </header>
       {queryError && <p role="alert" className="field-error">{queryError} Showing the whole log.</p>}
-      <AuditTable initial={initial} />
+      <Providers>
+        <AuditTable initial={initial} />
+      </Providers>
     </div>
   );
 }

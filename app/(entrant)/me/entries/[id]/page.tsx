@@ -7,6 +7,7 @@ import { HttpError } from '@/lib/errors';
 import { StatePill } from '@/components/StatePill';
 import { SafetyNotes } from '@/components/SafetyNotes';
 import { EntryWorkbench } from '@/components/entrant/EntryWorkbench';
+import { Providers } from '@/components/Providers';
 import { EntryDetailsForm } from '@/components/entrant/EntryDetailsForm';
 import { formatDateTime, formatDurationMs } from '@/lib/format';
 import { reasonLabel } from '@/lib/reviews/reasons';
@@ -74,7 +75,9 @@ export default async function EntryPage({ params }: { params: Promise<{ id: stri
       {entry.windowProblem && <p className="card text-sm" role="status" data-testid="window-problem">{entry.windowProblem}</p>}
       {entry.canEdit && <EntryDetailsForm entry={entry} />}
 
-      <EntryWorkbench entry={entry} limitMm3s={limit?.limitMm3s ?? null} />
+      <Providers>
+        <EntryWorkbench entry={entry} limitMm3s={limit?.limitMm3s ?? null} />
+      </Providers>
 
       {entry.canEdit && <SafetyNotes />}
 

@@ -5,6 +5,7 @@ import { HttpError } from '@/lib/errors';
 import { DEFAULT_QUERY, parseStandingsQuery, standingsSearchParams, type StandingsQuery } from '@/lib/standings/params';
 import { classStandings, findSeason, parseSlug } from '@/lib/standings/views';
 import { StandingsTable } from '@/components/standings/StandingsTable';
+import { Providers } from '@/components/Providers';
 import { loadOr404 } from '@/components/standings/load';
 import { StatePill } from '@/components/StatePill';
 import { getSequelize } from '@/lib/db';
@@ -64,7 +65,9 @@ export default async function ClassStandingsPage({ params, searchParams }: Props
       </header>
       {queryError && <p role="alert" className="field-error">{queryError} Showing the default view.</p>}
       <Suspense>
-        <StandingsTable seasonSlug={season.slug} classSlug={view.class.slug} initial={view.page} initialKey={standingsSearchParams(query).toString()} />
+        <Providers>
+          <StandingsTable seasonSlug={season.slug} classSlug={view.class.slug} initial={view.page} initialKey={standingsSearchParams(query).toString()} />
+        </Providers>
       </Suspense>
     </div>
   );
