@@ -4,13 +4,13 @@
  * each public route in turn. Prints req/s, p50 and p99 latency and the rate as a share of the static
  * file's. A measurement to read, not a test: nothing here passes or fails.
  *
- *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL]
+ *   npx next build && npx tsx scripts/bench-public.ts [--entries 50000] [--connections 20] [--seconds 10] [--profile DIR] [--only LABEL] [--path /x]…
  *
  * --only LABEL measures the static file and the routes whose label contains LABEL.
  * --path P (repeatable) adds any path, e.g. an empty route handler to measure the framework's own floor.
  * Before the load runs it prints each HTML page's first-load JavaScript: the scripts the page's HTML
  * loads (files and inline; not the `noModule` polyfills), their bytes and gzip-compressed bytes.
- * --weight-only prints that and stops.
+ * --weight-only prints that and stops; --files also lists each page's script files.
  * --no-static leaves the static file out (a CPU profile of the routes alone); ratios are then not printed.
  * --profile DIR runs the server with `node --cpu-prof` and leaves the .cpuprofile files in DIR.
  */
@@ -124,14 +124,16 @@ async function main() {
       const inline = [...html.matchAll(/<script(?![^>]*\ssrc=)[^>]*>([\s\S]*?)<\/script>/g)].map((m) => m[1]).join('');
       let raw = Buffer.byteLength(inline);
       let gz = zlib.gzipSync(inline).length;
+      const inlineGz = gz;
       for (const src of srcs) {
         const body = Buffer.from(await (await fetch(new URL(src, server.url))).arrayBuffer());
         raw += body.length;
         gz += zlib.gzipSync(body).length;
       }
-      weights.push(t.label.padEnd(38) + String(srcs.length).padStart(8) + `${(raw / 1024).toFixed(0)} KB`.padStart(10) + `${(gz / 1024).toFixed(0)} KB`.padStart(10));
+      weights.push(t.label.padEnd(38) + String(srcs.length).padStart(8) + `${(raw / 1024).toFixed(0)} KB`.padStart(10) + `${(gz / 1024).toFixed(0)} KB`.padStart(10) + `${(inlineGz / 1024).toFixed(0)} KB`.padStart(16));
+      if (process.argv.includes('--files')) for (const src of srcs) weights.push('  ' + src);
     }
-    console.log('\nfirst-load JavaScript'.padEnd(39) + 'files'.padStart(8) + 'raw'.padStart(10) + 'gzip'.padStart(10));
+    console.log('\nfirst-load JavaScript'.padEnd(39) + 'files'.padStart(8) + 'raw'.padStart(10) + 'gzip'.padStart(10) + 'of it inline'.padStart(16));
     for (const w of weights) console.log(w);
     if (process.argv.includes('--weight-only')) targets.length = 0;
     for (const t of targets) {

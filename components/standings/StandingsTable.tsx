@@ -1,26 +1,28 @@
-'use client';
 /**
- * The standings table: @tanstack/react-table in manual mode — sorting, filtering and paging run on
- * the server through /api/v1/…/standings, and the URL holds the table state (nuqs, shallow: the
- * page is not rendered again, the table fetches its rows) so a link reproduces the view. A row with several verified prints expands to show the entrant's other prints.
+ * The standings table, rendered on the server: @tanstack/table-core (the engine under
+ * @tanstack/react-table) in manual mode holds the columns, headers and cells; sorting, filtering and
+ * paging are links and GET forms of this page, so the URL holds the view and a link reproduces it,
+ * with or without JavaScript. The client parts (components/standings/StandingsControls.tsx) only
+ * move between views without a reload and open an entrant's other prints.
+ *
+ * Why not the client table it was: its JavaScript (react-table, zod for the URL state, TanStack Query
+ * and nuqs) took the page's first load from about 141 KB to 208 KB compressed
+ * (scripts/bench-public.ts --weight-only), over the 150 KB public pages are allowed.
  */
-import { Fragment, useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import Link from 'next/link';
-import { parseAsString, useQueryStates } from 'nuqs';
-import { useJsonRead } from '@/components/useJsonRead';
-import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import { createColumnHelper, createTable, getCoreRowModel, type ColumnDef, type HeaderContext, type CellContext } from '@tanstack/table-core';
 import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
-import { parseStandingsQuery, standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, DEFAULT_QUERY, type SortKey, type StandingsQuery } from '@/lib/standings/params';
-import type { PublicStandingsRow as StandingsRow } from '@/lib/standings/estimate';
+import { standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, type SortKey, type StandingsQuery } from '@/lib/standings/params';
+import type { PublicStandingsRow as Row } from '@/lib/standings/estimate';
 import { formatOverEstimate, OVER_ESTIMATE_EXPLANATION, OVER_ESTIMATE_LABEL } from '@/lib/standings/estimate';
-import type { PublicStandingsPage as StandingsPage } from '@/lib/standings/views';
+import type { PublicStandingsPage } from '@/lib/standings/views';
 import { formatDate, formatDurationMs, formatNumber, formatPageStatus } from '@/lib/format';
+import { CopyLinkButton, MorePrintsButton, StandingsRow, ViewForm } from './StandingsControls';
 
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
 const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
-
-const col = createColumnHelper<StandingsRow>();
+const MATERIAL_LABELS = Object.fromEntries(MATERIAL_FAMILIES.map((m) => [m, materialLabel(m)]));
 
 /** Column id → API sort key; columns not listed are not sortable. Flow sorts highest first. */
 const SORTABLE: Record<string, { key: SortKey; descFirst?: boolean }> = {
@@ -34,121 +36,65 @@ const SORTABLE: Record<string, { key: SortKey; descFirst?: boolean }> = {
   layer_height_mm: { key: 'layer_height', descFirst: true },
   date: { key: 'date' },
 };
-const COLUMN_OF_SORT = Object.fromEntries(Object.entries(SORTABLE).map(([id, s]) => [s.key, id])) as Record<SortKey, string>;
-
-interface OlderRun {
-  entry_id: number;
-  rank: number | null;
-  machine: string;
-  material: string;
-  time_ms: number;
-  peak_flow_mm3s: number | null;
-  date: string | null;
-}
 
 /** Columns left out on a phone, so rank, entrant and time lead and fit the screen (the entry page and the CSV have the rest). */
 const PHONE_HIDDEN = new Set(['over_estimate_percent', 'machine', 'motion', 'material', 'nozzle_mm', 'peak_flow_mm3s', 'p95_flow_mm3s', 'layer_height_mm', 'date']);
 
-/** The URL parameters the table keeps (the API's names); validated by the shared zod schema, not here. */
-const URL_KEYS = ['page', 'per_page', 'sort', 'material', 'motion', 'q'] as const;
-const URL_STATE = Object.fromEntries(URL_KEYS.map((k) => [k, parseAsString])) as Record<(typeof URL_KEYS)[number], typeof parseAsString>;
+const col = createColumnHelper<Row>();
+function num(digits: number) {
+  return function NumberCell(c: CellContext<Row, number | null>) {
+    return <span className="num">{formatNumber(c.getValue(), digits)}</span>;
+  };
+}
 
-export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: { seasonSlug: string; classSlug: string; initial: StandingsPage; initialKey: string }) {
-  const [urlState, setUrlState] = useQueryStates(URL_STATE, { history: 'push', scroll: false, shallow: true });
-  const search = new URLSearchParams(Object.entries(urlState).filter((e): e is [string, string] => e[1] != null)).toString();
-  const query: StandingsQuery = useMemo(() => {
-    try {
-      return parseStandingsQuery(new URLSearchParams(search));
-    } catch {
-      return DEFAULT_QUERY;
-    }
-  }, [search]);
+const COLUMNS = [
+  col.accessor('rank', { header: 'Rank', cell: (c) => <span className="num font-semibold">{c.getValue()}</span> }),
+  col.accessor('entrant', {
+    header: 'Entrant',
+    cell: (c) => (
+      <div>
+        <Link href={`/entrants/${c.row.original.entrant_id}`}>{c.getValue()}</Link>
+        {c.row.original.verified_entries > 1 && <MorePrintsButton count={c.row.original.verified_entries - 1} />}
+      </div>
+    ),
+  }),
+  col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
+  col.accessor('over_estimate_percent', {
+    header: () => (
+      <span title={OVER_ESTIMATE_EXPLANATION} className="cursor-help underline decoration-dotted underline-offset-2">
+        {OVER_ESTIMATE_LABEL}
+        <span className="sr-only">: {OVER_ESTIMATE_EXPLANATION}</span>
+      </span>
+    ),
+    cell: (c) => <span className="num" title={c.row.original.estimated_time_s != null ? `Estimate ${formatDurationMs(c.row.original.estimated_time_s * 1000)}` : 'No finished inspection'}>{formatOverEstimate(c.getValue())}</span>,
+  }),
+  col.accessor('machine', { header: 'Machine', cell: (c) => <Link href={`/machines/${c.row.original.machine_id}`}>{c.getValue()}</Link> }),
+  col.accessor('motion', { header: 'Motion', cell: (c) => motionLabel(c.getValue()) }),
+  col.accessor('material', { header: 'Material', cell: (c) => materialLabel(c.getValue()) }),
+  col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: num(2) }),
+  col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: num(1) }),
+  col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: num(1) }),
+  col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: num(2) }),
+  col.accessor('date', { header: 'Submitted', cell: (c) => formatDate(c.getValue()) }),
+] as ColumnDef<Row, unknown>[];
+
+/** A header or cell template rendered to React (what react-table's flexRender does, without its hooks module). */
+function render<P extends object>(template: unknown, props: P): React.ReactNode {
+  return typeof template === 'function' ? (template as (p: P) => React.ReactNode)(props) : (template as React.ReactNode);
+}
+
+export function StandingsTable({ seasonSlug, classSlug, query, data }: { seasonSlug: string; classSlug: string; query: StandingsQuery; data: PublicStandingsPage }) {
+  const pagePath = `/seasons/${seasonSlug}/classes/${classSlug}`;
   const api = `/api/v1/seasons/${seasonSlug}/classes/${classSlug}/standings`;
-  const [qText, setQText] = useState(query.q ?? '');
-  const [older, setOlder] = useState<Record<number, OlderRun[] | 'loading' | string>>({});
-  const [copied, setCopied] = useState(false);
-  const key = standingsSearchParams(query).toString();
-
-  const { data, error, loading } = useJsonRead<StandingsPage>(`${api}?${key}`, initial, `${api}?${initialKey}`);
-
-  const navigate = useCallback(
-    (patch: Partial<StandingsQuery>) => {
-      const next = { ...query, ...patch };
-      const qs = standingsSearchParams(next);
-      void setUrlState(Object.fromEntries(URL_KEYS.map((k) => [k, qs.get(k)])));
-    },
-    [query, setUrlState],
-  );
-
-  // Search as you type, a moment after the last key.
-  const typing = useRef<ReturnType<typeof setTimeout> | null>(null);
-  const onSearch = (text: string) => {
-    setQText(text);
-    if (typing.current) clearTimeout(typing.current);
-    typing.current = setTimeout(() => navigate({ q: text.trim() || undefined, page: 1 }), 350);
+  const href = (patch: Partial<StandingsQuery>) => {
+    const qs = standingsSearchParams({ ...query, ...patch }).toString();
+    return qs ? `${pagePath}?${qs}` : pagePath;
   };
-  useEffect(() => setQText(query.q ?? ''), [query.q]);
+  const sortedId = Object.entries(SORTABLE).find(([, s]) => s.key === query.sort)?.[0] ?? 'rank';
 
-  const toggleOlder = async (row: StandingsRow) => {
-    if (older[row.entry_id]) {
-      setOlder(({ [row.entry_id]: _, ...rest }) => rest);
-      return;
-    }
-    setOlder((o) => ({ ...o, [row.entry_id]: 'loading' }));
-    try {
-      const res = await fetch(`/api/v1/seasons/${seasonSlug}/classes/${classSlug}/entrants/${row.entrant_id}/entries`);
-      const body = await res.json();
-      if (!res.ok) throw new Error(body.error);
-      setOlder((o) => ({ ...o, [row.entry_id]: (body.entries as OlderRun[]).filter((e) => e.entry_id !== row.entry_id) }));
-    } catch (err) {
-      setOlder((o) => ({ ...o, [row.entry_id]: err instanceof Error ? err.message : 'Could not load the other prints.' }));
-    }
-  };
-
-  const columns = useMemo(
-    () => [
-      col.accessor('rank', { header: 'Rank', cell: (c) => <span className="num font-semibold">{c.getValue()}</span> }),
-      col.accessor('entrant', {
-        header: 'Entrant',
-        cell: (c) => (
-          <div>
-            <Link href={`/entrants/${c.row.original.entrant_id}`}>{c.getValue()}</Link>
-            {c.row.original.verified_entries > 1 && (
-              <button type="button" className="ml-2 text-xs text-ink-600 underline" aria-expanded={!!older[c.row.original.entry_id]} onClick={() => toggleOlder(c.row.original)}>
-                {older[c.row.original.entry_id] ? 'hide' : `${c.row.original.verified_entries - 1} more print${c.row.original.verified_entries > 2 ? 's' : ''}`}
-              </button>
-            )}
-          </div>
-        ),
-      }),
-      col.accessor('time_ms', { header: 'Time', cell: (c) => <Link className="num font-semibold" href={`/entries/${c.row.original.entry_id}`}>{formatDurationMs(c.getValue())}</Link> }),
-      col.accessor('over_estimate_percent', {
-        header: () => (
-          <span title={OVER_ESTIMATE_EXPLANATION} className="cursor-help underline decoration-dotted underline-offset-2">
-            {OVER_ESTIMATE_LABEL}
-            <span className="sr-only">: {OVER_ESTIMATE_EXPLANATION}</span>
-          </span>
-        ),
-        enableSorting: false,
-        cell: (c) => <span className="num" title={c.row.original.estimated_time_s != null ? `Estimate ${formatDurationMs(c.row.original.estimated_time_s * 1000)}` : 'No finished inspection'}>{formatOverEstimate(c.getValue())}</span>,
-      }),
-      col.accessor('machine', { header: 'Machine', cell: (c) => <Link href={`/machines/${c.row.original.machine_id}`}>{c.getValue()}</Link> }),
-      col.accessor('motion', { header: 'Motion', enableSorting: false, cell: (c) => motionLabel(c.getValue()) }),
-      col.accessor('material', { header: 'Material', enableSorting: false, cell: (c) => materialLabel(c.getValue()) }),
-      col.accessor('nozzle_mm', { header: 'Nozzle (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),
-      col.accessor('peak_flow_mm3s', { header: 'Peak flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
-      col.accessor('p95_flow_mm3s', { header: 'P95 flow (mm³/s)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 1)}</span> }),
-      col.accessor('layer_height_mm', { header: 'Layer (mm)', cell: (c) => <span className="num">{formatNumber(c.getValue(), 2)}</span> }),
-      col.accessor('date', { header: 'Submitted', cell: (c) => formatDate(c.getValue()) }),
-    ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [older],
-  );
-
-  const sorting: SortingState = query.sort === 'rank' && !query.desc ? [] : [{ id: COLUMN_OF_SORT[query.sort], desc: query.desc }];
-  const table = useReactTable({
+  const table = createTable<Row>({
     data: data.rows,
-    columns,
+    columns: COLUMNS,
     getCoreRowModel: getCoreRowModel(),
     getRowId: (r) => String(r.entry_id),
     manualSorting: true,
@@ -157,82 +103,70 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
     enableMultiSort: false,
     pageCount: data.pages,
     rowCount: data.total,
-    state: { sorting, pagination: { pageIndex: query.page - 1, pageSize: query.perPage } },
-    onSortingChange: (updater) => {
-      const next = typeof updater === 'function' ? updater(sorting) : updater;
-      const s = next[0];
-      navigate({ sort: s ? SORTABLE[s.id].key : 'rank', desc: s ? s.desc : false, page: 1 });
-    },
-    onPaginationChange: (updater) => {
-      const next = typeof updater === 'function' ? updater({ pageIndex: query.page - 1, pageSize: query.perPage }) : updater;
-      navigate({ page: next.pageIndex + 1, perPage: next.pageSize });
-    },
+    state: {},
+    onStateChange: () => {},
+    renderFallbackValue: null,
   });
-  const sortableIds = new Set(Object.keys(SORTABLE));
+  table.setOptions((prev) => ({
+    ...prev,
+    state: { ...table.initialState, sorting: [{ id: sortedId, desc: query.desc }], pagination: { pageIndex: query.page - 1, pageSize: query.perPage } },
+  }));
 
+  // The fields other than the form's own, carried as hidden inputs so a form changes one thing.
+  const hidden = (omit: string[]) =>
+    [...standingsSearchParams(query).entries()].filter(([k]) => !omit.includes(k)).map(([k, v]) => <input key={k} type="hidden" name={k} value={v} />);
+  const last = Math.max(1, data.pages);
   const csvHref = `${api}?${standingsSearchParams(query, { format: 'csv', withPaging: false }).toString()}`;
 
   return (
     <section aria-label="Standings" className="space-y-4">
-      <form className="card flex flex-wrap items-end gap-4" role="search" onSubmit={(e) => { e.preventDefault(); navigate({ q: qText.trim() || undefined, page: 1 }); }}>
+      <ViewForm action={pagePath} label="Filter the standings" role="search" className="card flex flex-wrap items-end gap-4">
+        {hidden(['material', 'motion', 'q', 'page'])}
         <div>
           <label className="label" htmlFor="f-material">Material</label>
-          <select id="f-material" className="input" value={query.material ?? ''} onChange={(e) => navigate({ material: (e.target.value || undefined) as StandingsQuery['material'], page: 1 })}>
+          <select key={query.material ?? ''} id="f-material" name="material" className="input" defaultValue={query.material ?? ''}>
             <option value="">All materials</option>
             {MATERIAL_FAMILIES.map((m) => <option key={m} value={m}>{materialLabel(m)}</option>)}
           </select>
         </div>
         <div>
           <label className="label" htmlFor="f-motion">Motion system</label>
-          <select id="f-motion" className="input" value={query.motion ?? ''} onChange={(e) => navigate({ motion: (e.target.value || undefined) as StandingsQuery['motion'], page: 1 })}>
+          <select key={query.motion ?? ''} id="f-motion" name="motion" className="input" defaultValue={query.motion ?? ''}>
             <option value="">All motion systems</option>
             {MOTION_SYSTEMS.map((m) => <option key={m} value={m}>{motionLabel(m)}</option>)}
           </select>
         </div>
         <div className="min-w-48 flex-1">
           <label className="label" htmlFor="f-q">Machine name</label>
-          <input id="f-q" className="input" type="search" maxLength={Q_MAX_LENGTH} placeholder="Search machines" value={qText} onChange={(e) => onSearch(e.target.value)} />
+          <input id="f-q" name="q" className="input" type="search" maxLength={Q_MAX_LENGTH} placeholder="Search machines" defaultValue={query.q ?? ''} />
         </div>
         <div className="flex gap-2">
+          <button type="submit" className="btn-quiet">Apply filters</button>
           <a className="btn-quiet" href={csvHref} download data-testid="csv-link">Download CSV</a>
-          <button type="button" className="btn-quiet" onClick={() => {
-              const href = window.location.href;
-              // The clipboard API needs a secure context; elsewhere show the link to copy by hand.
-              if (navigator.clipboard) navigator.clipboard.writeText(href).then(() => setCopied(true), () => window.prompt('Copy this link:', href));
-              else window.prompt('Copy this link:', href);
-            }}>
-            {copied ? 'Link copied' : 'Copy link to this view'}
-          </button>
+          <CopyLinkButton />
         </div>
-      </form>
+      </ViewForm>
 
-      {error && <p role="alert" className="field-error">{error}</p>}
-      <div className="card overflow-x-auto p-0" aria-busy={loading}>
+      <div className="card overflow-x-auto p-0">
         <table className="table" data-testid="standings-table">
           <thead>
             {table.getHeaderGroups().map((hg) => (
               <tr key={hg.id}>
                 {hg.headers.map((h) => {
-                  const sortable = sortableIds.has(h.column.id) && h.column.getCanSort();
-                  const dir = h.column.getIsSorted() || (h.column.id === 'rank' && !sorting.length ? 'asc' : false);
+                  const sort = SORTABLE[h.column.id];
+                  const dir = h.column.id === sortedId ? (query.desc ? 'desc' : 'asc') : null;
+                  const label = render(h.column.columnDef.header, h.getContext() as HeaderContext<Row, unknown>);
+                  // First click: the column's natural direction; again: the other one.
+                  const nextDesc = dir ? dir === 'asc' : !!sort?.descFirst;
                   return (
                     <th key={h.id} scope="col" className={PHONE_HIDDEN.has(h.column.id) ? 'hidden sm:table-cell' : undefined} aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
-                      {sortable ? (
-                        <button
-                          type="button"
-                          className="inline-flex items-center gap-1 font-semibold text-ink-700 hover:text-ember-700"
-                          onClick={() => {
-                            const spec = SORTABLE[h.column.id];
-                            const cur = h.column.getIsSorted();
-                            const desc = cur ? cur === 'asc' : !!spec.descFirst;
-                            table.setSorting(h.column.id === 'rank' && !desc ? [] : [{ id: h.column.id, desc }]);
-                          }}
-                        >
-                          {flexRender(h.column.columnDef.header, h.getContext())}
+                      {sort ? (
+                        <Link scroll={false} href={href({ sort: sort.key, desc: nextDesc, page: 1 })} className="inline-flex items-center gap-1 font-semibold text-ink-700 hover:text-ember-700">
+                          {label}
                           <span aria-hidden="true" className="text-xs">{dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : '↕'}</span>
-                        </button>
+                        </Link>
                       ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
+                        label
                       )}
                     </th>
                   );
@@ -240,55 +174,42 @@ export function StandingsTable({ seasonSlug, classSlug, initial, initialKey }: {
               </tr>
             ))}
           </thead>
-          <tbody className={loading ? 'opacity-50' : ''}>
+          <tbody>
             {table.getRowModel().rows.map((row) => {
-              const prints = older[row.original.entry_id];
-              return (
-                <Fragment key={row.id}>
-                  <tr data-testid="standings-row" data-entry={row.original.entry_id}>
-                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={PHONE_HIDDEN.has(cell.column.id) ? 'hidden sm:table-cell' : undefined}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
-                  </tr>
-                  {prints && (
-                    <tr className="bg-ink-50">
-                      <td />
-                      <td colSpan={columns.length - 1}>
-                        {prints === 'loading' ? 'Loading other prints…' : typeof prints === 'string' ? <span className="field-error">{prints}</span> : (
-                          <ul className="space-y-1 text-sm" aria-label={`Other prints of ${row.original.entrant}`}>
-                            {prints.map((r) => (
-                              <li key={r.entry_id}>
-                                <Link href={`/entries/${r.entry_id}`} className="num">{formatDurationMs(r.time_ms)}</Link> · {r.machine} · {materialLabel(r.material)} · peak {formatNumber(r.peak_flow_mm3s, 1)} mm³/s · {formatDate(r.date)}
-                              </li>
-                            ))}
-                          </ul>
-                        )}
-                      </td>
-                    </tr>
-                  )}
-                </Fragment>
+              const cells = row.getVisibleCells().map((cell) => (
+                <td key={cell.id} className={PHONE_HIDDEN.has(cell.column.id) ? 'hidden sm:table-cell' : undefined}>
+                  {render(cell.column.columnDef.cell, cell.getContext())}
+                </td>
+              ));
+              const r = row.original;
+              return r.verified_entries > 1 ? (
+                <StandingsRow key={row.id} entryId={r.entry_id} entrant={r.entrant} columns={COLUMNS.length} materialLabels={MATERIAL_LABELS} othersUrl={`/api/v1/seasons/${seasonSlug}/classes/${classSlug}/entrants/${r.entrant_id}/entries`}>
+                  {cells}
+                </StandingsRow>
+              ) : (
+                <tr key={row.id} data-testid="standings-row" data-entry={r.entry_id}>{cells}</tr>
               );
             })}
             {!data.rows.length && (
-              <tr><td colSpan={columns.length} className="py-6 text-center text-ink-600">{query.page > Math.max(1, data.pages) ? 'This page is past the last one: go to the last page.' : 'No verified entry matches this view.'}</td></tr>
+              <tr><td colSpan={COLUMNS.length} className="py-6 text-center text-ink-600">{query.page > last ? 'This page is past the last one: go to the last page.' : 'No verified entry matches this view.'}</td></tr>
             )}
           </tbody>
         </table>
       </div>
 
       <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
-        <button type="button" className="btn-quiet" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>Previous page</button>
-        <span data-testid="page-status" className="text-sm text-ink-700">
-          {formatPageStatus(query.page, data.pages, data.total)}
-        </span>
-        <button type="button" className="btn-quiet" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>Next page</button>
-        {query.page > Math.max(1, data.pages) && (
-          <button type="button" className="btn-quiet" onClick={() => table.setPageIndex(Math.max(1, data.pages) - 1)}>Go to the last page</button>
-        )}
-        <label className="ml-auto flex items-center gap-2 text-sm text-ink-700">
-          Rows per page
-          <select className="input w-auto" value={query.perPage} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>
+        {query.page > 1 ? <Link scroll={false} className="btn-quiet" href={href({ page: Math.min(query.page - 1, last) })}>Previous page</Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Previous page</span>}
+        <span data-testid="page-status" className="text-sm text-ink-700">{formatPageStatus(query.page, data.pages, data.total)}</span>
+        {query.page < data.pages ? <Link scroll={false} className="btn-quiet" href={href({ page: query.page + 1 })}>Next page</Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Next page</span>}
+        {query.page > last && <Link scroll={false} className="btn-quiet" href={href({ page: last })}>Go to the last page</Link>}
+        <ViewForm action={pagePath} label="Page length" className="ml-auto flex items-center gap-2 text-sm text-ink-700">
+          {hidden(['per_page', 'page'])}
+          <label htmlFor="f-per-page">Rows per page</label>
+          <select key={query.perPage} id="f-per-page" name="per_page" className="input w-auto" defaultValue={String(query.perPage)}>
             {PER_PAGE_CHOICES.map((n) => <option key={n} value={n}>{n}</option>)}
           </select>
-        </label>
+          <noscript><button type="submit" className="btn-quiet">Show</button></noscript>
+        </ViewForm>
       </nav>
     </section>
   );

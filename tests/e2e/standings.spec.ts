@@ -48,7 +48,7 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   expect(new Set(materials)).toEqual(new Set(['PLA']));
 
   // Sort by peak flow: highest first on the first click.
-  await page.getByRole('button', { name: /Peak flow/ }).click();
+  await page.getByRole('link', { name: /Peak flow/ }).click();
   await expect(page).toHaveURL(/sort=-peak_flow/);
   await expect(page.getByRole('columnheader', { name: /Peak flow/ })).toHaveAttribute('aria-sort', 'descending');
   await expect.poll(async () => {
@@ -60,7 +60,7 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   await page.getByLabel('Rows per page').selectOption('10');
   await expect(page).toHaveURL(/per_page=10/);
   await expect(page.getByTestId('page-status')).toHaveText('Page 1 of 2 · 15 ranked');
-  await page.getByRole('button', { name: 'Next page' }).click();
+  await page.getByRole('link', { name: 'Next page' }).click();
   await expect(page).toHaveURL(/page=2/);
   await expect(page.getByTestId('page-status')).toHaveText('Page 2 of 2 · 15 ranked');
   await expect(page.getByTestId('standings-row')).toHaveCount(5);
@@ -87,6 +87,41 @@ test('a viewer filters, sorts and pages a class, shares the link, and downloads 
   expect(onScreen.map((r) => Number(r[1]))).toEqual(shown.map((r) => r.entry));
   expect(onScreen.map((r) => [r[0], r[2], r[3]])).toEqual(shown.map((r) => [r.cells[0], r.cells[1], r.cells[4]]));
   expect(onScreen.map((r) => Number(r[8]).toFixed(1))).toEqual(shown.map((r) => r.cells[8]));
+});
+
+test('search as you type narrows the class, and Rank sorts both ways', async ({ page }) => {
+  await page.goto(`/seasons/${slug}/classes/open`);
+  await page.getByLabel('Machine name').fill('Rig 1');
+  // "Rig 1" and "Rig 10"–"Rig 19": eleven machines, found a moment after the last key.
+  await expect(page).toHaveURL(/q=Rig\+1/);
+  await expect(page.getByTestId('page-status')).toHaveText(/11 ranked/);
+  await expect(page.getByLabel('Machine name')).toBeFocused();
+  await page.getByRole('link', { name: /^Rank/ }).click();
+  await expect(page).toHaveURL(/sort=-rank/);
+  await expect(page.getByRole('columnheader', { name: /Rank/ })).toHaveAttribute('aria-sort', 'descending');
+  const ranks = (await tableRows(page)).map((r) => Number(r.cells[0]));
+  expect(ranks).toEqual([...ranks].sort((a, b) => b - a));
+  await page.getByRole('link', { name: /^Rank/ }).click();
+  await expect(page).not.toHaveURL(/sort=/);
+  await expect(page.getByRole('columnheader', { name: /Rank/ })).toHaveAttribute('aria-sort', 'ascending');
+});
+
+test('without JavaScript the table still filters, sorts and pages (plain links and GET forms)', async ({ browser }) => {
+  const ctx = await browser.newContext({ javaScriptEnabled: false });
+  const page = await ctx.newPage();
+  await page.goto(`/seasons/${slug}/classes/open`);
+  await page.getByLabel('Material').selectOption('petg');
+  await page.getByRole('button', { name: 'Apply filters' }).click();
+  await expect(page.getByTestId('page-status')).toHaveText(/15 ranked/);
+  await expect(page.getByRole('alert')).toHaveCount(0);
+  expect(new Set((await tableRows(page)).map((r) => r.cells[6]))).toEqual(new Set(['PETG']));
+  await page.getByRole('link', { name: /Peak flow/ }).click();
+  await expect(page).toHaveURL(/sort=-peak_flow/);
+  await expect(page).toHaveURL(/material=petg/);
+  await page.goto(page.url() + '&per_page=10');
+  await page.getByRole('link', { name: 'Next page' }).click();
+  await expect(page.getByTestId('page-status')).toHaveText('Page 2 of 2 · 15 ranked');
+  await ctx.close();
 });
 
 test('older prints open under the row, and the entry, entrant and machine pages follow', async ({ page }) => {

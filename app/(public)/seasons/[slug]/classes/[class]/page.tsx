@@ -1,16 +1,16 @@
-import { Suspense } from 'react';
 import Link from 'next/link';
 import type { Metadata } from 'next';
 import { HttpError } from '@/lib/errors';
 import { DEFAULT_QUERY, parseStandingsQuery, standingsSearchParams, type StandingsQuery } from '@/lib/standings/params';
 import { classStandings, findSeason, parseSlug } from '@/lib/standings/views';
 import { StandingsTable } from '@/components/standings/StandingsTable';
-import { Providers } from '@/components/Providers';
 import { loadOr404 } from '@/components/standings/load';
 import { StatePill } from '@/components/StatePill';
 import { getSequelize } from '@/lib/db';
 import { QueryTypes } from 'sequelize';
 import { keptForVersion } from '@/lib/standings/publicCache';
+
+const FORM_FILTERS = new Set(['material', 'motion', 'q']);
 
 type Props = { params: Promise<{ slug: string; class: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> };
 
@@ -24,7 +24,9 @@ export default async function ClassStandingsPage({ params, searchParams }: Props
   let query: StandingsQuery = DEFAULT_QUERY;
   let queryError: string | null = null;
   try {
-    query = parseStandingsQuery(await searchParams);
+    // The page's GET forms send empty fields for "all"; an empty filter there is no filter (the API stays strict).
+    const sp = Object.entries(await searchParams).filter(([k, v]) => !(FORM_FILTERS.has(k) && (v === '' || (typeof v === 'string' && !v.trim()))));
+    query = parseStandingsQuery(Object.fromEntries(sp));
   } catch (err) {
     if (!(err instanceof HttpError)) throw err;
     queryError = err.message;
@@ -64,11 +66,7 @@ export default async function ClassStandingsPage({ params, searchParams }: Props
         </nav>
       </header>
       {queryError && <p role="alert" className="field-error">{queryError} Showing the default view.</p>}
-      <Suspense>
-        <Providers>
-          <StandingsTable seasonSlug={season.slug} classSlug={view.class.slug} initial={view.page} initialKey={standingsSearchParams(query).toString()} />
-        </Providers>
-      </Suspense>
+      <StandingsTable seasonSlug={season.slug} classSlug={view.class.slug} query={query} data={view.page} />
     </div>
   );
 }
