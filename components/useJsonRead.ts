@@ -6,15 +6,18 @@
  */
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 
+/** One of our JSON APIs' answer, or its error sentence as the thrown Error's message. */
+export async function readJson<T>(url: string, signal?: AbortSignal): Promise<T> {
+  const res = await fetch(url, { signal });
+  const body = await res.json();
+  if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
+  return body as T;
+}
+
 export function useJsonRead<T>(url: string, initial: T, initialUrl: string): { data: T; error: string | null; loading: boolean } {
   const q = useQuery({
     queryKey: ['json-read', url],
-    queryFn: async ({ signal }): Promise<T> => {
-      const res = await fetch(url, { signal });
-      const body = await res.json();
-      if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
-      return body as T;
-    },
+    queryFn: ({ signal }) => readJson<T>(url, signal),
     initialData: url === initialUrl ? initial : undefined,
     refetchOnMount: false,
     placeholderData: keepPreviousData,

@@ -5,6 +5,7 @@ import { utcDaySql } from '@/lib/dbDialect';
 import { DEFAULT_QUERY } from './params';
 import { classRef, findSeason, seasonClasses, type ClassStandings } from './views';
 import { isoDate, standingsPage, type StandingsRow } from './query';
+import { keptForVersion } from './publicCache';
 
 /** Round bin widths (1, 2 or 5 × 10ⁿ) keep histogram edges at readable times; one definition for bins and axes. */
 import { niceStep } from '@/lib/charts/niceTicks';
@@ -76,5 +77,10 @@ export async function seasonOverview(slug: string) {
     timeline,
   };
 }
+
+export type SeasonOverview = Awaited<ReturnType<typeof seasonOverview>>;
+
+/** The overview kept per standings version: the page's text and the charts' API answer share one build. */
+export const keptSeasonOverview = (slug: string): Promise<SeasonOverview> => keptForVersion(`overview:${slug}`, () => seasonOverview(slug));
 
 export type { ClassStandings };

@@ -88,6 +88,7 @@ beforeAll(async () => {
     { label: 'seasons API', path: '/api/v1/seasons' },
     { label: 'season API', path: '/api/v1/seasons/frostbite-sprint' },
     { label: 'season results CSV', path: '/api/v1/seasons/frostbite-sprint/results' },
+    { label: 'season overview API', path: '/api/v1/seasons/frostbite-sprint/overview' },
     { label: 'entry API', path: `/api/v1/entries/${entryId}` },
     { label: 'home page', path: '/', page: true },
     { label: 'season page', path: '/seasons/frostbite-sprint', page: true },

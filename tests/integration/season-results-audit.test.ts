@@ -1,6 +1,6 @@
 /**
- * Against the built app: the season's one-file results (public, kept per standings version, 304 on
- * its ETag, rebuilt after a change, no parameters, drafts hidden), and the audit log's filters,
+ * Against the built app: the season's one-file results and its overview charts' data (public, kept
+ * per standings version, 304 on its ETag, rebuilt after a change, no parameters, drafts hidden), and the audit log's filters,
  * paging and the client address recorded from the request.
  */
 import { describe, it, expect, inject, beforeAll } from 'vitest';
@@ -61,6 +61,28 @@ describe('GET /api/v1/seasons/{season}/results', () => {
     const draft = await insertSeason(db, { state: 'draft' });
     expect((await anon.get(`/api/v1/seasons/${draft.slug}/results`)).status).toBe(404);
     expect((await anon.get('/api/v1/seasons/NOT_A_SLUG/results')).status).toBe(400);
+  });
+
+  it('the overview API gives the charts their data, kept per standings version, with no parameters and no drafts', async () => {
+    const path = `/api/v1/seasons/${s.slug}/overview`;
+    const first = await anon.get(path);
+    expect(first.status).toBe(200);
+    expect(first.headers.get('content-type')).toMatch(/^application\/json/);
+    const o = await first.json();
+    expect(o.season.slug).toBe(s.slug);
+    expect(o.classes.map((c: { slug: string; ranked: number }) => [c.slug, c.ranked])).toEqual(expect.arrayContaining([['small', expect.any(Number)], ['open', 1]]));
+    // Each ranked print is counted once in the histogram, in its class's column.
+    const small = o.classes.find((c: { slug: string }) => c.slug === 'small').ranked;
+    expect(o.histogram.reduce((n: number, b: Record<string, number>) => n + b.small, 0)).toBe(small);
+    expect(o.scatter.find((c: { slug: string }) => c.slug === 'open').points).toEqual([{ time_s: 1650, peak_flow_mm3s: 20, entrant: 'Export Tester', rank: 1 }]);
+    const again = await anon.get(path);
+    expect(again.headers.get('x-cache')).toBe('HIT');
+    expect((await anon.request(path, { headers: { 'if-none-match': again.headers.get('etag')! } })).status).toBe(304);
+    const bad = await anon.get(`${path}?class=open`);
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).error).toMatch(/takes no parameters/);
+    const draft = await insertSeason(db, { state: 'draft' });
+    expect((await anon.get(`/api/v1/seasons/${draft.slug}/overview`)).status).toBe(404);
   });
 
   it('standings rows carry the estimate and the over-estimate figure', async () => {

@@ -109,6 +109,16 @@ export default async function ApiDocsPage() {
       </section>
 
       <section>
+        <h2><code>GET /api/v1/seasons/{'{season}'}/overview</code></h2>
+        <p className="text-ink-700">
+          What the season overview charts draw, ranked prints only: <code>histogram</code> (bins of claimed time, <code>from_s</code>–<code>to_s</code>, a count per class),
+          <code> scatter</code> (per class, peak flow in mm³/s against time in seconds; at most 1 500 points a class, evenly sampled by rank),
+          <code> timeline</code> (entries submitted and verified by UTC day, with running totals) and <code>classes</code> with their ranked counts. No parameters.
+        </p>
+        <p className="mt-2 text-sm text-ink-700">Example: <a href={`/api/v1/seasons/${s}/overview`}><code>/api/v1/seasons/{s}/overview</code></a></p>
+      </section>
+
+      <section>
         <h2><code>GET /api/v1/entries/{'{id}'}</code></h2>
         <p className="text-ink-700">A verified entry with its machine, rank, inspection figures, a plain-words summary and the flow time series. Unverified entries answer 404. Photos: <code>GET /api/v1/entries/{'{id}'}/photos/{'{photo_id}'}</code>.</p>
         {ex?.entry && <Example data={ex.entry} />}

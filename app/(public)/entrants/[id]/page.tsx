@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { entrantHistory, parseId } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
 import { HistoryTable } from '@/components/standings/HistoryTable';
-import { TimesOverSeasons } from '@/components/standings/charts';
+import { LazyTimesOverSeasons as TimesOverSeasons } from '@/components/charts/lazy';
 
 export const metadata = { title: 'Entrant' };
 

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { parseId, publicEntry } from '@/lib/standings/views';
 import { inspectionVerdict } from '@/lib/standings/summary';
 import { loadOr404 } from '@/components/standings/load';
-import { LazyFlowChart } from './LazyFlowChart';
+import { LazyFlowChart } from '@/components/charts/lazy';
 import { SeverityPill } from '@/components/SeverityPill';
 import { formatDate, formatDateTime, formatDurationMs, formatDurationS, formatNumber } from '@/lib/format';
 import { MATERIALS } from '@/lib/inspection/materials';

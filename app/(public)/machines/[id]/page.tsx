@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { machineHistory, parseId } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
 import { HistoryTable } from '@/components/standings/HistoryTable';
-import { TimesOverSeasons } from '@/components/standings/charts';
+import { LazyTimesOverSeasons as TimesOverSeasons } from '@/components/charts/lazy';
 import { MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { publicFlowLimits } from '@/lib/machines';
 import { speedCeilingMms } from '@/lib/extrusion';

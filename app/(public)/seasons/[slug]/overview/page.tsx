@@ -1,14 +1,14 @@
 import Link from 'next/link';
-import { seasonOverview } from '@/lib/standings/overview';
+import { keptSeasonOverview } from '@/lib/standings/overview';
 import { parseSlug } from '@/lib/standings/views';
 import { loadOr404 } from '@/components/standings/load';
-import { EntriesTimeline, FlowScatter, TimesHistogram } from '@/components/standings/charts';
+import { LazyOverviewCharts } from '@/components/charts/lazy';
 
 export const metadata = { title: 'Season overview' };
 
 export default async function SeasonOverviewPage({ params }: { params: Promise<{ slug: string }> }) {
   const { slug } = await params;
-  const o = await loadOr404((async () => seasonOverview(parseSlug(slug, 'season')))());
+  const o = await loadOr404((async () => keptSeasonOverview(parseSlug(slug, 'season')))());
   return (
     <div className="space-y-6">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-600">
@@ -24,13 +24,7 @@ export default async function SeasonOverviewPage({ params }: { params: Promise<{
           </span>
         ))}
       </p>
-      <div className="grid gap-6 lg:grid-cols-2">
-        <TimesHistogram bins={o.histogram} classes={o.classes} />
-        <FlowScatter series={o.scatter} />
-        <div className="lg:col-span-2">
-          <EntriesTimeline days={o.timeline} />
-        </div>
-      </div>
+      <LazyOverviewCharts url={`/api/v1/seasons/${o.season.slug}/overview`} />
     </div>
   );
 }
