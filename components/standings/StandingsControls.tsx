@@ -6,12 +6,13 @@
  * - ViewForm: a GET form of the same page that, with JavaScript, moves to the new view at once when a
  *   select changes and a moment after the last key in a text field (no full reload, scroll kept);
  * - CopyLinkButton: copies the address of the view;
- * - StandingsRow + MorePrintsButton: a row that opens the entrant's other verified prints under it.
+ * - StandingsRow + MorePrintsButton: a row that opens the entrant's other verified prints under it;
+ * - LinkPending: inside a sort or page link, shows that the view it asked for is on its way.
  * No URL or parameter logic lives here: the form's fields are the query, and the server checks it.
  * Kept free of zod, TanStack Query and nuqs: they were most of the page's JavaScript.
  */
 import { createContext, useContext, useEffect, useRef, useState, useTransition } from 'react';
-import Link from 'next/link';
+import Link, { useLinkStatus } from 'next/link';
 import { useRouter } from 'next/navigation';
 import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
 
@@ -57,6 +58,11 @@ export function ViewForm({ action, label, role, className, children }: { action:
       {children}
     </form>
   );
+}
+
+export function LinkPending() {
+  const { pending } = useLinkStatus();
+  return pending ? <span aria-hidden="true" className="ml-1 animate-pulse text-xs">loading…</span> : null;
 }
 
 export function CopyLinkButton() {

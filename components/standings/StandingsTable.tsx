@@ -18,7 +18,7 @@ import type { PublicStandingsRow as Row } from '@/lib/standings/estimate';
 import { formatOverEstimate, OVER_ESTIMATE_EXPLANATION, OVER_ESTIMATE_LABEL } from '@/lib/standings/estimate';
 import type { PublicStandingsPage } from '@/lib/standings/views';
 import { formatDate, formatDurationMs, formatNumber, formatPageStatus } from '@/lib/format';
-import { CopyLinkButton, MorePrintsButton, StandingsRow, ViewForm } from './StandingsControls';
+import { CopyLinkButton, LinkPending, MorePrintsButton, StandingsRow, ViewForm } from './StandingsControls';
 
 const materialLabel = (m: string) => MATERIALS[m as keyof typeof MATERIALS]?.label ?? m;
 const motionLabel = (m: string) => MOTION_SYSTEM_LABELS[m as MotionSystem] ?? m;
@@ -164,6 +164,7 @@ export function StandingsTable({ seasonSlug, classSlug, query, data }: { seasonS
                         <Link scroll={false} href={href({ sort: sort.key, desc: nextDesc, page: 1 })} className="inline-flex items-center gap-1 font-semibold text-ink-700 hover:text-ember-700">
                           {label}
                           <span aria-hidden="true" className="text-xs">{dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : '↕'}</span>
+                          <LinkPending />
                         </Link>
                       ) : (
                         label
@@ -198,9 +199,9 @@ export function StandingsTable({ seasonSlug, classSlug, query, data }: { seasonS
       </div>
 
       <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
-        {query.page > 1 ? <Link scroll={false} className="btn-quiet" href={href({ page: Math.min(query.page - 1, last) })}>Previous page</Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Previous page</span>}
+        {query.page > 1 ? <Link scroll={false} className="btn-quiet" href={href({ page: Math.min(query.page - 1, last) })}>Previous page<LinkPending /></Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Previous page</span>}
         <span data-testid="page-status" className="text-sm text-ink-700">{formatPageStatus(query.page, data.pages, data.total)}</span>
-        {query.page < data.pages ? <Link scroll={false} className="btn-quiet" href={href({ page: query.page + 1 })}>Next page</Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Next page</span>}
+        {query.page < data.pages ? <Link scroll={false} className="btn-quiet" href={href({ page: query.page + 1 })}>Next page<LinkPending /></Link> : <span className="btn-quiet opacity-50" aria-disabled="true">Next page</span>}
         {query.page > last && <Link scroll={false} className="btn-quiet" href={href({ page: last })}>Go to the last page</Link>}
         <ViewForm action={pagePath} label="Page length" className="ml-auto flex items-center gap-2 text-sm text-ink-700">
           {hidden(['per_page', 'page'])}
