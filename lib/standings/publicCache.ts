@@ -15,8 +15,14 @@ interface Kept {
   version: number;
   value: Promise<unknown>;
 }
-const kept = new Map<string, Kept>();
-/** Distinct pages kept (class × query views, entries, seasons); least recently used go first. */
+/*
+ * One map per process, on `globalThis` under a `Symbol.for` key: module instances are per bundle
+ * (see keptAnswers.ts), and a page and a route handler that keep the same value (the season
+ * overview's page and its API) must share one build, not make one each.
+ */
+const STORE = Symbol.for('hotlap.keptPageData');
+const kept: Map<string, Kept> = ((globalThis as typeof globalThis & { [STORE]?: Map<string, Kept> })[STORE] ??= new Map());
+/** Distinct values kept (class × query views, entries, seasons, overviews); least recently used go first. */
 const KEPT_MAX = 2000;
 
 /**
