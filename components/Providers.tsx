@@ -2,8 +2,8 @@
 /**
  * Client-side providers for the components that read data in the browser: TanStack Query's client
  * (polling and client reads go through it, not hand-written fetch + useState) and nuqs's adapter (URL
- * state of client tables). Mounted around those components only (the standings table, the audit
- * table, the entry workbench), not in the root layout: every other page would load both libraries
+ * state of client tables). Mounted around those components only (the audit table, the entry
+ * workbench, the season overview's charts), not in the root layout: every other page would load both libraries
  * for nothing. One client per mounted tree, kept in state so a re-render does not drop its cache.
  */
 import { useState } from 'react';

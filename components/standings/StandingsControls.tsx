@@ -18,10 +18,10 @@ import { formatDate, formatDurationMs, formatNumber } from '@/lib/format';
 
 /** The form's fields as a query string, empty fields left out (an empty filter is no filter). */
 function viewHref(form: HTMLFormElement): string {
-  const qs = new URLSearchParams();
-  for (const [k, v] of new FormData(form)) if (typeof v === 'string' && v.trim() !== '') qs.append(k, v.trim());
-  const s = qs.toString();
-  return s ? `${form.action.replace(/\?.*$/, '')}?${s}` : form.action.replace(/\?.*$/, '');
+  const url = new URL(form.action);
+  url.search = '';
+  for (const [k, v] of new FormData(form)) if (typeof v === 'string' && v.trim() !== '') url.searchParams.append(k, v.trim());
+  return url.href;
 }
 
 export function ViewForm({ action, label, role, className, children }: { action: string; label: string; role?: 'search'; className?: string; children: React.ReactNode }) {

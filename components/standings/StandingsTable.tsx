@@ -10,7 +10,7 @@
  * (scripts/bench-public.ts --weight-only), over the 150 KB public pages are allowed.
  */
 import Link from 'next/link';
-import { createColumnHelper, createTable, getCoreRowModel, type ColumnDef, type HeaderContext, type CellContext } from '@tanstack/table-core';
+import { createColumnHelper, createTable, getCoreRowModel, type ColumnDef, type CellContext } from '@tanstack/table-core';
 import { MATERIAL_FAMILIES, MATERIALS } from '@/lib/inspection/materials';
 import { MOTION_SYSTEMS, MOTION_SYSTEM_LABELS, type MotionSystem } from '@/lib/domain';
 import { standingsSearchParams, PER_PAGE_CHOICES, Q_MAX_LENGTH, type SortKey, type StandingsQuery } from '@/lib/standings/params';
@@ -92,25 +92,18 @@ export function StandingsTable({ seasonSlug, classSlug, query, data }: { seasonS
   };
   const sortedId = Object.entries(SORTABLE).find(([, s]) => s.key === query.sort)?.[0] ?? 'rank';
 
+  // Headers and cells only: the rows arrive sorted, filtered and paged by the query, and the links
+  // below carry the view, so the table keeps no state of its own (its defaults, set once).
   const table = createTable<Row>({
     data: data.rows,
     columns: COLUMNS,
     getCoreRowModel: getCoreRowModel(),
     getRowId: (r) => String(r.entry_id),
-    manualSorting: true,
-    manualPagination: true,
-    manualFiltering: true,
-    enableMultiSort: false,
-    pageCount: data.pages,
-    rowCount: data.total,
     state: {},
     onStateChange: () => {},
     renderFallbackValue: null,
   });
-  table.setOptions((prev) => ({
-    ...prev,
-    state: { ...table.initialState, sorting: [{ id: sortedId, desc: query.desc }], pagination: { pageIndex: query.page - 1, pageSize: query.perPage } },
-  }));
+  table.setOptions((prev) => ({ ...prev, state: table.initialState }));
 
   // The fields other than the form's own, carried as hidden inputs so a form changes one thing.
   const hidden = (omit: string[]) =>
@@ -155,7 +148,7 @@ export function StandingsTable({ seasonSlug, classSlug, query, data }: { seasonS
                 {hg.headers.map((h) => {
                   const sort = SORTABLE[h.column.id];
                   const dir = h.column.id === sortedId ? (query.desc ? 'desc' : 'asc') : null;
-                  const label = render(h.column.columnDef.header, h.getContext() as HeaderContext<Row, unknown>);
+                  const label = render(h.column.columnDef.header, h.getContext());
                   // First click: the column's natural direction; again: the other one.
                   const nextDesc = dir ? dir === 'asc' : !!sort?.descFirst;
                   return (
