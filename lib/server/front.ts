@@ -6,11 +6,13 @@
  * - TRACE/TRACK → 405 (lib/security/forbiddenMethods.ts: Next.js would fail them with 500);
  * - kept public answers (lib/server/keptFront.ts: Next.js's own pipeline costs more CPU per request
  *   than a kept answer is worth).
- * Everything else reaches Next.js unchanged.
+ * Everything else reaches Next.js, with one change: a request body the app stops reading half-way
+ * closes its connection after the answer, not before it (lib/server/abandonedBody.ts).
  */
 import http from 'node:http';
 import { refuseForbiddenMethod } from '@/lib/security/forbiddenMethods';
 import { keptAnswerFront } from './keptFront';
+import { deferAbandonedBody } from './abandonedBody';
 
 const PATCHED = Symbol.for('hotlap.front');
 
@@ -39,6 +41,7 @@ export function installFront() {
     if (event === 'request') {
       const [req, res] = args as [http.IncomingMessage, http.ServerResponse];
       if (refuseForbiddenMethod(req, res)) return true;
+      deferAbandonedBody(req, res);
       if (kept && keptFrontOrNext(req, res, () => emit.call(this, event, ...args))) return true;
     }
     return emit.call(this, event, ...args);

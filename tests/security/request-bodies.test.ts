@@ -60,6 +60,16 @@ describe('request bodies', () => {
     expect(res.sentBytes).toBeLessThan(5 * 1024 * 1024);
   });
 
+  it('attack: oversized chunked bodies, 3 at a time, each get their 413 sentence — the connection closes after the answer, not before', { timeout: 120_000 }, async () => {
+    // Before lib/server/abandonedBody.ts, 1–2 of these 60 lost their answer to a reset (measured).
+    const lost: string[] = [];
+    for (let k = 0; k < 60; k += 3) {
+      const answers = await Promise.all([0, 1, 2].map(() => chunkedPost('/api/account/password-reset', 8 * 1024 * 1024).catch((e: NodeJS.ErrnoException) => ({ status: 0, body: String(e.code), sentBytes: 0 }))));
+      for (const a of answers) if (a.status !== 413 || !/larger than 64 KB/.test(a.body)) lost.push(`${a.status} ${JSON.stringify(a.body)}`);
+    }
+    expect(lost).toEqual([]);
+  });
+
   it('attack: the same through next-auth sign-in is refused too', async () => {
     const res = await chunkedPost('/api/auth/callback/credentials', 4 * 1024 * 1024);
     expect(res.status).toBe(413);
